@@ -1,0 +1,25 @@
+#include <unistd.h>
+
+#include <cstdio>
+
+#include "analyzer/cli/command.h"
+
+namespace framelint::cli {
+
+// Each command lives in its own file; one line here registers it.
+int run_analyze(const std::vector<std::string>& args);
+int run_probe(const std::vector<std::string>& args);
+
+const std::vector<Command>& commands() {
+  static const std::vector<Command> table = {
+      {"analyze", "analyze clips; write a JSON and an HTML report per clip", run_analyze},
+      {"probe", "print what a clip's container holds, as JSON", run_probe},
+  };
+  return table;
+}
+
+void print_error(const std::string& line) { std::fprintf(stderr, "framelint: %s\n", line.c_str()); }
+
+bool stderr_is_terminal() { return isatty(2) == 1; }
+
+}  // namespace framelint::cli

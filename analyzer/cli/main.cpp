@@ -1,0 +1,34 @@
+// framelint: checks generated video clips for temporal incoherence.
+#include <cstdio>
+#include <string>
+#include <vector>
+
+#include "analyzer/cli/command.h"
+#include "framelint/version.h"
+
+using namespace framelint::cli;
+
+namespace {
+void print_usage() {
+  std::printf("usage: framelint COMMAND [ARGS...]\n\ncommands:\n");
+  for (const auto& c : commands()) std::printf("  %-9s %s\n", c.name, c.summary);
+  std::printf("\n`framelint COMMAND --help` describes a command; `framelint --version` prints the version.\n");
+}
+}  // namespace
+
+int main(int argc, char** argv) {
+  std::vector<std::string> args(argv + 1, argv + argc);
+  if (args.empty() || args[0] == "--help" || args[0] == "-h" || args[0] == "help") {
+    print_usage();
+    return args.empty() ? kExitUsage : kExitOk;
+  }
+  if (args[0] == "--version") {
+    std::printf("framelint %s\n", framelint::version());
+    return kExitOk;
+  }
+  for (const auto& c : commands()) {
+    if (args[0] == c.name) return c.run({args.begin() + 1, args.end()});
+  }
+  print_error("unknown command '" + args[0] + "' (see framelint --help)");
+  return kExitUsage;
+}

@@ -1,0 +1,45 @@
+// framelint probe CLIP: the container facts as JSON on stdout.
+#include <cstdio>
+
+#include "analyzer/cli/args.h"
+#include "analyzer/cli/command.h"
+#include "framelint/clip_source.h"
+
+namespace framelint::cli {
+
+int run_probe(const std::vector<std::string>& args) {
+  const std::vector<OptionSpec> specs = {
+      {"fps", true, "frame rate for a folder of numbered images"},
+  };
+  if (wants_help(args)) {
+    std::fputs(format_help("probe", "CLIP", "Prints what the clip's container holds, as JSON.", specs)
+                   .c_str(),
+               stdout);
+    return kExitOk;
+  }
+  auto parsed = parse_args(args, specs);
+  if (!parsed) {
+    print_error(parsed.error().message());
+    return kExitUsage;
+  }
+  if (parsed->positionals.size() != 1) {
+    print_error("probe takes exactly one CLIP (see framelint probe --help)");
+    return kExitUsage;
+  }
+  auto fps = parsed->get_double("fps", 0.001, 1000);
+  if (!fps) {
+    print_error(fps.error().message());
+    return kExitUsage;
+  }
+  SourceOptions options;
+  options.folder_fps = *fps;
+  auto facts = probe_clip(parsed->positionals[0], options);
+  if (!facts) {
+    print_error(facts.error().message());
+    return kExitInputError;
+  }
+  std::printf("%s\n", facts->dump(2).c_str());
+  return kExitOk;
+}
+
+}  // namespace framelint::cli

@@ -1,0 +1,5 @@
+#include "framelint/version.h"
+
+namespace framelint {
+const char* version() { return FRAMELINT_VERSION; }
+}  // namespace framelint

@@ -1,0 +1,50 @@
+// The one interface every metric implements. A metric says which per-frame
+// columns it writes, measures a frame pair (possibly concurrently with other
+// pairs), may carry state across frames in order, and finishes its series
+// into the report once the clip ends. Metrics are listed in registry.cpp.
+#pragma once
+
+#include <memory>
+#include <span>
+#include <string>
+#include <vector>
+
+#include "analyzer/metrics/frame_pair.h"
+#include "framelint/analysis.h"
+#include "framelint/report.h"
+
+namespace framelint {
+
+class Metric {
+ public:
+  virtual ~Metric() = default;
+
+  // Per-frame columns this metric writes into report.frames, in order.
+  virtual std::vector<std::string> columns() const = 0;
+
+  // Called for frame 0 (no previous frame); `out` has one slot per column,
+  // pre-filled with kUndefined.
+  virtual void measure_first(const FramePlanes& /*frame*/, std::span<double> /*out*/) const {}
+
+  // Called for each pair (t-1, t). May run on several threads at once for
+  // different pairs: must not change the metric's state.
+  virtual void measure_pair(const FramePair& pair, std::span<double> out) const = 0;
+
+  // Called for every pair in frame order on one thread after measure_pair,
+  // with its values, for metrics that follow something across frames
+  // (objects, camera path). May rewrite `out`.
+  virtual void observe_in_order(const FramePair& /*pair*/, std::span<double> /*out*/) {}
+
+  // Called once after the last frame with the report's series filled in:
+  // post-process series (e.g. high-pass), add summary.details, objects.
+  virtual void finish(Report& /*report*/) {}
+
+  // True if observe_in_order needs the flow fields and planes kept alive in
+  // order (costs memory and a serial stage).
+  virtual bool needs_in_order() const { return false; }
+};
+
+// A fresh set of metric instances for one clip, in registry order.
+std::vector<std::unique_ptr<Metric>> make_metrics(const AnalysisSettings& settings);
+
+}  // namespace framelint

@@ -1,0 +1,17 @@
+# Turns every file in the given folders into a C++ string constant, looked up
+# by file name through framelint::asset("name") (analyzer/core/assets.h).
+function(framelint_embed_assets out_var)
+  set(files "")
+  foreach(dir ${ARGN})
+    file(GLOB found CONFIGURE_DEPENDS ${dir}/*)
+    list(APPEND files ${found})
+  endforeach()
+  list(SORT files)
+  set(out ${PROJECT_BINARY_DIR}/generated/framelint_assets.cpp)
+  add_custom_command(
+    OUTPUT ${out}
+    COMMAND ${CMAKE_COMMAND} -DOUT=${out} "-DFILES=${files}" -P ${PROJECT_SOURCE_DIR}/cmake/embed_assets.cmake
+    DEPENDS ${files} ${PROJECT_SOURCE_DIR}/cmake/embed_assets.cmake
+    COMMENT "Embedding report assets")
+  set(${out_var} ${out} PARENT_SCOPE)
+endfunction()

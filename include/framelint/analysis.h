@@ -1,0 +1,48 @@
+// Analysing one clip: decode, follow motion with optical flow, measure each
+// metric per frame, find incoherent segments, summarise and judge.
+#pragma once
+
+#include <cstdint>
+#include <functional>
+#include <optional>
+#include <string>
+
+#include <nlohmann/json.hpp>
+
+#include "framelint/clip_source.h"
+#include "framelint/error.h"
+#include "framelint/policy.h"
+#include "framelint/report.h"
+
+namespace framelint {
+
+// Optical flow effort (OpenCV DIS presets): fast = ULTRAFAST,
+// balanced = FAST, thorough = MEDIUM.
+enum class Preset { fast, balanced, thorough };
+const char* to_string(Preset p);
+std::optional<Preset> preset_from_string(const std::string& s);
+
+struct AnalysisSettings {
+  Preset preset = Preset::balanced;
+  int working_long_side = 512;       // --width
+  int threads = 0;                   // 0 = hardware concurrency
+  std::optional<double> folder_fps;  // for frame folders
+  int long_range_k = 5;              // frames spanned by the long-range warp error
+  int max_objects = 8;               // drift: objects followed at once
+};
+
+// The settings as written into report.settings (and hashed by the store).
+nlohmann::json settings_to_json(const AnalysisSettings& settings);
+
+// Optional observers of a running analysis. Called on the analysis thread.
+struct AnalysisHooks {
+  // Every decoded analysis frame, in order (e.g. to keep thumbnails).
+  std::function<void(const DecodedFrame&)> on_frame;
+  // Frames done so far and the container's estimate of the total (may be 0).
+  std::function<void(int64_t done, int64_t expected)> on_progress;
+};
+
+Expected<Report> analyze_clip(const std::string& path, const AnalysisSettings& settings,
+                              const Policy& policy, const AnalysisHooks& hooks = {});
+
+}  // namespace framelint

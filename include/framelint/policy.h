@@ -1,0 +1,69 @@
+// Policies: how per-frame series become segments, and how a report becomes
+// a verdict (pass | review | reject). A built-in default policy is
+// documented in the README; a JSON policy file overrides any part of it.
+#pragma once
+
+#include <map>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include <nlohmann/json.hpp>
+
+#include "framelint/error.h"
+#include "framelint/report.h"
+
+namespace framelint {
+
+// Turning one metric's per-frame series into segments (analyzer/segments).
+// A segment opens where the value reaches `enter` and closes where it falls
+// below `leave` (hysteresis). The effective enter level is raised to the
+// clip's own baseline, median + baseline_k * 1.4826 * MAD, when that is
+// higher, so a busy clip is judged against itself (baseline_k = 0 turns the
+// baseline off). Segments shorter than min_frames are dropped; segments
+// separated by at most merge_gap_frames are joined. Severity comes from the
+// peak: >= reject_peak is reject, >= review_peak is review, else info.
+struct SegmentRule {
+  double enter = 0;
+  double leave = 0;
+  int min_frames = 1;
+  int merge_gap_frames = 0;
+  double baseline_k = 0;
+  double review_peak = 0;
+  double reject_peak = 0;
+};
+
+// A threshold on one clip-level statistic of one metric. statistic is one of
+// mean, p50, p95, max (of the per-frame series), segment_count,
+// longest_segment_s, segment_total_s, or a key of summary.<metric> details.
+struct SummaryRule {
+  std::string metric;
+  std::string statistic;
+  std::optional<double> review;  // value >= review -> at least review
+  std::optional<double> reject;  // value >= reject -> reject
+};
+
+struct Policy {
+  std::string name = "default";
+  std::map<std::string, SegmentRule> segments;  // by metric
+  std::vector<SummaryRule> rules;
+  bool flash_hazard_rejects = true;                  // any flash hazard rejects
+  std::optional<double> stream_mismatch_review_s = 1.0;  // audio/video mismatch reviews
+  std::optional<double> coherence_review_below;       // coherence score floor
+  std::optional<double> coherence_reject_below;
+};
+
+const Policy& default_policy();
+
+// Reads a policy file. Keys not given keep the default. Unknown keys, wrong
+// types and review thresholds above reject thresholds are usage errors that
+// name the key.
+Expected<Policy> load_policy(const std::string& path);
+Expected<Policy> parse_policy(const std::string& json_text, const std::string& subject);
+nlohmann::json policy_to_json(const Policy& policy);
+
+// The verdict of a finished report under a policy, with reasons that name
+// the metric, the value, the threshold and the time range.
+VerdictResult evaluate_policy(const Report& report, const Policy& policy);
+
+}  // namespace framelint

@@ -1,0 +1,134 @@
+// The per-clip report model: plain values, written to JSON by
+// report/json_report.* (schema "framelint.report/1") and read back by the
+// gate, the store and compare. Field names match the JSON keys.
+#pragma once
+
+#include <cmath>
+#include <cstdint>
+#include <limits>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include <nlohmann/json.hpp>
+
+namespace framelint {
+
+inline constexpr const char* kReportSchema = "framelint.report/1";
+
+// NaN marks a per-frame value that is undefined (e.g. warp error of frame 0);
+// it is written as JSON null.
+inline constexpr double kUndefined = std::numeric_limits<double>::quiet_NaN();
+inline bool is_defined(double v) { return !std::isnan(v); }
+
+struct AudioInfo {
+  bool present = false;
+  std::string codec;
+  std::optional<double> duration_s;
+  std::optional<double> silent_from_s;  // start of a silent tail, if any
+};
+
+// What the container says, plus what decoding found.
+struct ClipInfo {
+  std::string path;
+  std::string sha256;
+  std::string container;
+  std::string codec;
+  int width = 0;  // displayed size, after rotation
+  int height = 0;
+  double fps = 0;  // average frame rate (frames / duration)
+  int64_t frame_count = 0;
+  double duration_s = 0;
+  std::string pix_fmt;
+  int bit_depth = 8;
+  int rotation = 0;  // degrees clockwise applied to display the picture
+  AudioInfo audio;
+};
+
+// Timing facts about the video stream, measured from real timestamps.
+struct StreamFacts {
+  double video_duration_s = 0;
+  std::optional<double> audio_duration_s;
+  std::optional<double> mismatch_s;  // |audio - video| when both exist
+  bool vfr = false;
+  int dropped_frames = 0;          // gaps of ~2+ nominal intervals
+  int duplicate_timestamps = 0;    // frames whose time repeats the previous
+};
+
+// One per-frame series, e.g. "warp_error". values.size() == frame count.
+struct MetricSeries {
+  std::string metric;
+  std::vector<double> values;
+};
+
+enum class Severity { info, review, reject };
+const char* to_string(Severity s);
+std::optional<Severity> severity_from_string(const std::string& s);
+
+// An incoherent stretch of one metric; frames inclusive.
+struct Segment {
+  std::string metric;
+  int64_t start_frame = 0;
+  int64_t end_frame = 0;
+  double start_s = 0;
+  double end_s = 0;
+  double peak = 0;
+  int64_t peak_frame = 0;
+  Severity severity = Severity::info;
+};
+
+struct MetricSummary {
+  std::string metric;
+  double mean = kUndefined;
+  double p50 = kUndefined;
+  double p95 = kUndefined;
+  double max = kUndefined;
+};
+
+struct Summary {
+  std::vector<MetricSummary> metrics;
+  double coherence = 100;  // 0-100, README states the formula
+  StreamFacts stream;
+  // Clip-level statistics that belong to one metric (flicker index, flash
+  // counts, ...), keyed by metric name; written under summary.<metric>.
+  nlohmann::json details = nlohmann::json::object();
+};
+
+// An object followed through the clip (drift). Per-frame series are sampled
+// at `frames`.
+struct TrackedObject {
+  int id = 0;
+  int64_t first_frame = 0;
+  int64_t last_frame = 0;
+  bool vanished = false;
+  std::string end_reason;  // "clip_end", "left_frame", "vanished", "lost", "cut"
+  nlohmann::json detail = nlohmann::json::object();  // boxes, drift series, rates
+};
+
+enum class Verdict { pass, review, reject };
+const char* to_string(Verdict v);
+
+struct VerdictResult {
+  Verdict status = Verdict::pass;
+  std::vector<std::string> reasons;  // human-readable, name metric, value, threshold, time
+};
+
+struct Report {
+  std::string tool_name = "framelint";
+  std::string tool_version;
+  ClipInfo clip;
+  nlohmann::json settings = nlohmann::json::object();
+  std::vector<double> frame_times_s;  // t of each decoded frame
+  std::vector<MetricSeries> series;   // one per per-frame metric column
+  std::vector<Segment> segments;
+  Summary summary;
+  std::vector<TrackedObject> objects;
+  VerdictResult verdict;
+  std::vector<std::string> notes;  // e.g. the flash screening caution
+
+  const MetricSeries* find_series(const std::string& metric) const;
+  MetricSeries* find_series(const std::string& metric);
+  const MetricSummary* find_summary(const std::string& metric) const;
+};
+
+}  // namespace framelint

@@ -1,0 +1,27 @@
+// Reading and writing reports. JSON follows report/schema/
+// framelint.report-1.schema.json; the HTML page is self-contained.
+#pragma once
+
+#include <string>
+
+#include <nlohmann/json.hpp>
+
+#include "framelint/error.h"
+#include "framelint/report.h"
+
+namespace framelint {
+
+nlohmann::json report_to_json(const Report& report);
+// Reads a report written by report_to_json (used by gate, merge, compare).
+// Errors name `subject` and the offending key.
+Expected<Report> report_from_json(const nlohmann::json& json, const std::string& subject);
+Expected<Report> read_report_file(const std::string& path);
+
+// Writes `content` to `path` atomically: a temporary file in the same folder,
+// flushed, then renamed over the target. Readers never see half a file.
+Status write_file_atomic(const std::string& path, const std::string& content);
+
+// The report's JSON text, pretty-printed, written atomically.
+Status write_json_report(const Report& report, const std::string& path);
+
+}  // namespace framelint
