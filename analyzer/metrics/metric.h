@@ -2,6 +2,17 @@
 // columns it writes, measures a frame pair (possibly concurrently with other
 // pairs), may carry state across frames in order, and finishes its series
 // into the report once the clip ends. Metrics are listed in registry.cpp.
+//
+// Order of a clip's analysis (analyzer/pipeline):
+//   1. decode -> FramePlanes per frame; measure_first(frame 0);
+//   2. per pair (t-1, t): flow both ways, occlusion mask, warp -> FramePair;
+//      measure_pair() for every metric (pairs run concurrently);
+//   3. in frame order: observe_in_order() for metrics with needs_in_order();
+//   4. after the last frame: finish(report) for every metric, in registry
+//      order: post-process its own series, add summary.details[metric],
+//      objects, or segments that are not a plain threshold on a series;
+//   5. the segmenter turns every series that has a SegmentRule in the policy
+//      into segments; summary statistics; coherence; policy verdict.
 #pragma once
 
 #include <memory>
