@@ -5,6 +5,7 @@
 #include <cstdint>
 
 #include <opencv2/core.hpp>
+#include <opencv2/core/matx.hpp>
 
 namespace framelint {
 
@@ -27,6 +28,13 @@ struct FramePair {
   cv::Mat warped_prev_bgr;     // CV_8UC3: prev warped onto cur by flow_backward
   cv::Mat warped_prev_luminance;  // CV_32FC1
   double valid_fraction = 0;   // share of pixels where `valid` is set
+
+  // Dominant (camera) motion from prev to cur: a homography fitted robustly
+  // (RANSAC) to flow samples on valid, textured pixels (analyzer/flow/
+  // camera_motion.*). Maps prev pixel coordinates to cur coordinates.
+  // Identity with camera_inlier_fraction = 0 when no fit was possible.
+  cv::Matx33d camera_homography = cv::Matx33d::eye();
+  double camera_inlier_fraction = 0;
 };
 
 }  // namespace framelint
