@@ -1,0 +1,34 @@
+// Building a FramePair: optical flow both ways (OpenCV DIS), the occlusion
+// mask by the forward-backward check, the previous frame warped onto the
+// current one, and the camera motion fit. Used by the pipeline for every
+// pair and by `inspect` / the HTML panels for single frames.
+#pragma once
+
+#include <memory>
+
+#include "analyzer/metrics/frame_pair.h"
+#include "framelint/analysis.h"
+
+namespace framelint {
+
+// Fills the per-frame planes (gray, luminance) of a decoded frame.
+void prepare_planes(int64_t index, double t_s, const cv::Mat& bgr, FramePlanes& planes);
+
+// One per worker thread: owns the DIS instance and scratch buffers, so
+// building pairs allocates nothing in the steady state.
+class PairBuilder {
+ public:
+  explicit PairBuilder(Preset preset);
+  ~PairBuilder();
+  PairBuilder(const PairBuilder&) = delete;
+  PairBuilder& operator=(const PairBuilder&) = delete;
+
+  // Computes everything in `pair` for (prev, cur); pair.prev/cur point at them.
+  void build(const FramePlanes& prev, const FramePlanes& cur, FramePair& pair);
+
+ private:
+  struct Impl;
+  std::unique_ptr<Impl> impl_;
+};
+
+}  // namespace framelint
