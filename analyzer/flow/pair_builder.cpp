@@ -1,0 +1,66 @@
+#include "analyzer/flow/pair_builder.h"
+
+#include <opencv2/imgproc.hpp>
+#include <opencv2/video/tracking.hpp>
+
+#include "analyzer/color/relative_luminance.h"
+#include "analyzer/flow/camera_motion.h"
+#include "analyzer/flow/occlusion.h"
+
+namespace framelint {
+
+void prepare_planes(int64_t index, double t_s, const cv::Mat& bgr, FramePlanes& planes) {
+  planes.index = index;
+  planes.t_s = t_s;
+  if (planes.bgr.data != bgr.data) bgr.copyTo(planes.bgr);
+  cv::cvtColor(planes.bgr, planes.gray, cv::COLOR_BGR2GRAY);
+  relative_luminance(planes.bgr, planes.luminance);
+}
+
+namespace {
+int dis_preset(Preset preset) {
+  switch (preset) {
+    case Preset::fast: return cv::DISOpticalFlow::PRESET_ULTRAFAST;
+    case Preset::balanced: return cv::DISOpticalFlow::PRESET_FAST;
+    case Preset::thorough: return cv::DISOpticalFlow::PRESET_MEDIUM;
+  }
+  return cv::DISOpticalFlow::PRESET_FAST;
+}
+}  // namespace
+
+struct PairBuilder::Impl {
+  cv::Ptr<cv::DISOpticalFlow> dis;
+  cv::Mat map;                // x + flow_backward(x)
+  cv::Mat forward_at_target;  // flow_forward sampled at x + flow_backward(x)
+};
+
+PairBuilder::PairBuilder(Preset preset) : impl_(std::make_unique<Impl>()) {
+  impl_->dis = cv::DISOpticalFlow::create(dis_preset(preset));
+}
+
+PairBuilder::~PairBuilder() = default;
+
+void PairBuilder::build(const FramePlanes& prev, const FramePlanes& cur, FramePair& pair) {
+  pair.prev = &prev;
+  pair.cur = &cur;
+  pair.dt_s = cur.t_s - prev.t_s;
+  impl_->dis->calc(prev.gray, cur.gray, pair.flow_forward);
+  impl_->dis->calc(cur.gray, prev.gray, pair.flow_backward);
+
+  // One sampling map serves the occlusion check and both warps, so each
+  // plane of frame t-1 is read once (bilinear, as the warping error expects).
+  flow_to_map(pair.flow_backward, impl_->map);
+  cv::remap(pair.flow_forward, impl_->forward_at_target, impl_->map, cv::noArray(), cv::INTER_LINEAR,
+            cv::BORDER_REPLICATE);
+  pair.valid_fraction = forward_backward_check(pair.flow_backward, impl_->forward_at_target, pair.valid);
+  cv::remap(prev.bgr, pair.warped_prev_bgr, impl_->map, cv::noArray(), cv::INTER_LINEAR,
+            cv::BORDER_REPLICATE);
+  cv::remap(prev.luminance, pair.warped_prev_luminance, impl_->map, cv::noArray(), cv::INTER_LINEAR,
+            cv::BORDER_REPLICATE);
+
+  const CameraMotion camera = fit_camera_motion(pair.flow_backward, pair.valid);
+  pair.camera_homography = camera.homography;
+  pair.camera_inlier_fraction = camera.inlier_fraction;
+}
+
+}  // namespace framelint

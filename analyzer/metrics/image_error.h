@@ -1,0 +1,19 @@
+// Per-pixel comparisons shared by several metrics.
+#pragma once
+
+#include <opencv2/core.hpp>
+
+namespace framelint {
+
+// Mean over pixels where mask != 0 of the squared RGB difference summed over
+// the three channels, with 8-bit values scaled to [0,1]. NaN if the mask is
+// empty. (The warping error of Lai et al. 2018.)
+double masked_squared_rgb_error(const cv::Mat& a_bgr8, const cv::Mat& b_bgr8, const cv::Mat& mask);
+
+// Mean absolute difference of two CV_8UC1 images, in [0,1].
+double mean_absolute_difference(const cv::Mat& a8, const cv::Mat& b8);
+
+// Mean over mask of (a - b) for CV_32FC1 images; NaN if the mask is empty.
+double masked_mean_difference(const cv::Mat& a32, const cv::Mat& b32, const cv::Mat& mask);
+
+}  // namespace framelint

@@ -1,0 +1,126 @@
+// analyze_clip: the whole analysis of one clip.
+//   decoder thread -> FramePlanes -> worker pool (one PairBuilder each):
+//   flow, occlusion, warp, per-pair metrics -> in-order stage (stateful
+//   metrics) -> per-frame rows. Then finish, segments, summary, verdict.
+// At most `window` pairs are in flight, so memory is bounded by the window,
+// never by clip length; results do not depend on the thread count because
+// every pair is computed the same way and rows are committed in order.
+#include <algorithm>
+#include <deque>
+#include <future>
+#include <thread>
+
+#include "analyzer/flow/pair_builder.h"
+#include "analyzer/metrics/metric.h"
+#include "analyzer/pipeline/frame_stream.h"
+#include "analyzer/pipeline/report_assembly.h"
+#include "analyzer/pipeline/worker_pool.h"
+#include "framelint/analysis.h"
+
+namespace framelint {
+namespace {
+
+struct PairJob {
+  std::shared_ptr<const FramePlanes> prev, cur;
+  FramePair pair;
+  std::vector<double> row;
+  std::promise<void> done;
+};
+
+class Analysis {
+ public:
+  Analysis(const AnalysisSettings& settings, int workers)
+      : metrics_(make_metrics(settings)), table_(metrics_), pool_(workers, 2 * workers + 2) {
+    builders_.reserve(workers);
+    for (int i = 0; i < workers; ++i) builders_.push_back(std::make_unique<PairBuilder>(settings.preset));
+    for (const auto& m : metrics_) needs_in_order_ = needs_in_order_ || m->needs_in_order();
+    window_ = static_cast<size_t>(2 * workers + 1);
+  }
+
+  void add_frame(std::shared_ptr<const FramePlanes> frame) {
+    if (!prev_) {
+      std::vector<double> row(table_.width(), kUndefined);
+      for (size_t m = 0; m < metrics_.size(); ++m) metrics_[m]->measure_first(*frame, table_.slot(row, m));
+      table_.append(frame->t_s, std::move(row));
+    } else {
+      auto job = std::make_shared<PairJob>();
+      job->prev = prev_;
+      job->cur = frame;
+      job->row.assign(table_.width(), kUndefined);
+      pool_.submit([this, job](int worker) {
+        builders_[worker]->build(*job->prev, *job->cur, job->pair);
+        for (size_t m = 0; m < metrics_.size(); ++m) metrics_[m]->measure_pair(job->pair, table_.slot(job->row, m));
+        job->done.set_value();
+      });
+      in_flight_.push_back(std::move(job));
+      while (in_flight_.size() > window_) commit_oldest();
+    }
+    prev_ = std::move(frame);
+  }
+
+  // Commits every pair still in flight; returns the finished columns.
+  MetricTable& finish() {
+    while (!in_flight_.empty()) commit_oldest();
+    return table_;
+  }
+  std::vector<std::unique_ptr<Metric>>& metrics() { return metrics_; }
+
+ private:
+  void commit_oldest() {
+    std::shared_ptr<PairJob> job = std::move(in_flight_.front());
+    in_flight_.pop_front();
+    job->done.get_future().wait();
+    if (needs_in_order_)
+      for (size_t m = 0; m < metrics_.size(); ++m)
+        if (metrics_[m]->needs_in_order()) metrics_[m]->observe_in_order(job->pair, table_.slot(job->row, m));
+    table_.append(job->cur->t_s, std::move(job->row));
+  }
+
+  std::vector<std::unique_ptr<Metric>> metrics_;
+  MetricTable table_;
+  std::vector<std::unique_ptr<PairBuilder>> builders_;
+  WorkerPool pool_;  // declared after what its tasks use, so it is joined first
+  std::deque<std::shared_ptr<PairJob>> in_flight_;
+  std::shared_ptr<const FramePlanes> prev_;
+  size_t window_ = 3;
+  bool needs_in_order_ = false;
+};
+
+int worker_count(const AnalysisSettings& settings) {
+  const int cores = static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
+  return settings.threads > 0 ? settings.threads : cores;
+}
+
+}  // namespace
+
+Expected<Report> analyze_clip(const std::string& path, const AnalysisSettings& settings, const Policy& policy,
+                              const AnalysisHooks& hooks) {
+  SourceOptions options;
+  options.working_long_side = settings.working_long_side;
+  options.folder_fps = settings.folder_fps;
+  options.threads = std::min(2, worker_count(settings));
+  auto source = ClipSource::open(path, options);
+  if (!source) return source.error();
+
+  const int64_t expected = (*source)->info().frame_count;
+  Analysis analysis(settings, worker_count(settings));
+  std::optional<Error> stopped;
+  {
+    FrameStream stream(**source, 4);
+    int64_t done = 0;
+    while (auto frame = stream.next()) {
+      if (hooks.on_frame) hooks.on_frame(DecodedFrame{frame->index, frame->t_s, frame->bgr});
+      analysis.add_frame(std::move(frame));
+      if (hooks.on_progress) hooks.on_progress(++done, expected);
+    }
+    stopped = stream.error();
+  }
+  MetricTable& table = analysis.finish();
+  if (table.frame_count() == 0)
+    return input_error(path, stopped ? stopped->cause : "no video frames could be decoded");
+
+  ReportInputs inputs{path, settings, policy, **source, stopped};
+  return assemble_report(inputs, table, analysis.metrics());
+}
+
+}  // namespace framelint

@@ -1,0 +1,36 @@
+// Decoding on its own thread: frames are read, their planes prepared (grey,
+// luminance), and handed on through a bounded queue.
+#pragma once
+
+#include <memory>
+#include <optional>
+#include <thread>
+
+#include "analyzer/metrics/frame_pair.h"
+#include "analyzer/pipeline/bounded_queue.h"
+#include "framelint/clip_source.h"
+
+namespace framelint {
+
+class FrameStream {
+ public:
+  // Starts reading at once. `capacity` bounds the frames held in the queue.
+  FrameStream(ClipSource& source, size_t capacity);
+  ~FrameStream();  // stops and joins the thread
+  FrameStream(const FrameStream&) = delete;
+  FrameStream& operator=(const FrameStream&) = delete;
+
+  // The next frame's planes, or nullptr at the end (then check error()).
+  std::shared_ptr<const FramePlanes> next();
+  // Set if decoding stopped on a corrupt input rather than at the end.
+  const std::optional<Error>& error() const { return error_; }
+
+ private:
+  void run();
+  ClipSource& source_;
+  BoundedQueue<std::shared_ptr<const FramePlanes>> queue_;
+  std::optional<Error> error_;
+  std::thread thread_;
+};
+
+}  // namespace framelint

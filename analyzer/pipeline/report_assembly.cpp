@@ -1,0 +1,47 @@
+#include "analyzer/pipeline/report_assembly.h"
+
+#include <algorithm>
+
+#include "analyzer/segments/segmenter.h"
+#include "analyzer/summary/summary.h"
+#include "framelint/version.h"
+
+namespace framelint {
+
+Report assemble_report(const ReportInputs& in, MetricTable& table,
+                       std::vector<std::unique_ptr<Metric>>& metrics) {
+  Report report;
+  report.tool_version = version();
+  report.clip = in.source.info();
+  report.clip.path = in.path;
+  if (auto sha = sha256_file(in.path)) report.clip.sha256 = *sha;
+  report.settings = settings_to_json(in.settings);
+  table.move_into(report);
+
+  // Frame facts come from what was decoded, not from the container's guess.
+  const auto& t = report.frame_times_s;
+  report.clip.frame_count = static_cast<int64_t>(t.size());
+  report.summary.stream = in.source.stream_facts();
+  if (t.size() >= 2) {
+    const double interval = (t.back() - t.front()) / static_cast<double>(t.size() - 1);
+    report.clip.fps = interval > 0 ? 1.0 / interval : report.clip.fps;
+    report.clip.duration_s = t.back() - t.front() + (interval > 0 ? interval : 0);
+  }
+  if (in.stopped)
+    report.notes.push_back("decoding stopped early after frame " + std::to_string(t.size() - 1) + ": " +
+                           in.stopped->cause);
+
+  for (auto& m : metrics) m->finish(report);  // may add details, objects, segments
+
+  std::vector<Segment> found = segment_report(report, in.policy);
+  report.segments.insert(report.segments.end(), found.begin(), found.end());
+  std::stable_sort(report.segments.begin(), report.segments.end(),
+                   [](const Segment& a, const Segment& b) { return a.start_frame < b.start_frame; });
+
+  report.summary.metrics = summarise_series(report.series);
+  report.summary.coherence = coherence_score(report.segments, report.clip.frame_count);
+  report.verdict = evaluate_policy(report, in.policy);
+  return report;
+}
+
+}  // namespace framelint

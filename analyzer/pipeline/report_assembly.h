@@ -1,0 +1,27 @@
+// The end of an analysis: from the per-frame table to a finished report
+// (metric post-processing, segments, summary, coherence, verdict).
+#pragma once
+
+#include <memory>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "analyzer/metrics/metric.h"
+#include "analyzer/pipeline/metric_table.h"
+#include "framelint/analysis.h"
+
+namespace framelint {
+
+struct ReportInputs {
+  const std::string& path;
+  const AnalysisSettings& settings;
+  const Policy& policy;
+  const ClipSource& source;
+  const std::optional<Error>& stopped;  // decoding ended early on corrupt data
+};
+
+Report assemble_report(const ReportInputs& in, MetricTable& table,
+                       std::vector<std::unique_ptr<Metric>>& metrics);
+
+}  // namespace framelint
