@@ -17,6 +17,10 @@ nlohmann::json report_to_json(const Report& report);
 Expected<Report> report_from_json(const nlohmann::json& json, const std::string& subject);
 Expected<Report> read_report_file(const std::string& path);
 
+// Checks a report's JSON against report/schema/framelint.report-1.schema.json
+// (compiled into the library); the error names the first offending path.
+Status validate_report_json(const nlohmann::json& report, const std::string& subject);
+
 // Writes `content` to `path` atomically: a temporary file in the same folder,
 // flushed, then renamed over the target. Readers never see half a file.
 Status write_file_atomic(const std::string& path, const std::string& content);
