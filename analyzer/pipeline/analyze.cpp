@@ -6,6 +6,7 @@
 // never by clip length; results do not depend on the thread count because
 // every pair is computed the same way and rows are committed in order.
 #include <algorithm>
+#include <chrono>
 #include <deque>
 #include <future>
 #include <thread>
@@ -20,6 +21,17 @@
 namespace framelint {
 namespace {
 
+using Clock = std::chrono::steady_clock;
+double ms_since(Clock::time_point start) {
+  return std::chrono::duration<double, std::milli>(Clock::now() - start).count();
+}
+
+// Thread time per stage, one record per worker so no locking is needed.
+struct StageClock {
+  double pair_ms = 0;
+  std::vector<double> metric_ms;
+};
+
 struct PairJob {
   std::shared_ptr<const FramePlanes> prev, cur;
   FramePair pair;
@@ -33,6 +45,7 @@ class Analysis {
       : metrics_(make_metrics(settings)), table_(metrics_), pool_(workers, 2 * workers + 2) {
     builders_.reserve(workers);
     for (int i = 0; i < workers; ++i) builders_.push_back(std::make_unique<PairBuilder>(settings.preset));
+    clocks_.assign(workers + 1, StageClock{0, std::vector<double>(metrics_.size(), 0.0)});
     for (const auto& m : metrics_) needs_in_order_ = needs_in_order_ || m->needs_in_order();
     window_ = static_cast<size_t>(2 * workers + 1);
   }
@@ -48,8 +61,15 @@ class Analysis {
       job->cur = frame;
       job->row.assign(table_.width(), kUndefined);
       pool_.submit([this, job](int worker) {
+        StageClock& clock = clocks_[worker];
+        auto start = Clock::now();
         builders_[worker]->build(*job->prev, *job->cur, job->pair);
-        for (size_t m = 0; m < metrics_.size(); ++m) metrics_[m]->measure_pair(job->pair, table_.slot(job->row, m));
+        clock.pair_ms += ms_since(start);
+        for (size_t m = 0; m < metrics_.size(); ++m) {
+          start = Clock::now();
+          metrics_[m]->measure_pair(job->pair, table_.slot(job->row, m));
+          clock.metric_ms[m] += ms_since(start);
+        }
         job->done.set_value();
       });
       in_flight_.push_back(std::move(job));
@@ -65,6 +85,13 @@ class Analysis {
   }
   std::vector<std::unique_ptr<Metric>>& metrics() { return metrics_; }
 
+  void add_times(PipelineTimings& t) const {
+    for (const auto& clock : clocks_) {
+      t.pair_ms += clock.pair_ms;
+      for (size_t m = 0; m < metrics_.size(); ++m) t.metric_ms[metrics_[m]->columns().front()] += clock.metric_ms[m];
+    }
+  }
+
  private:
   void commit_oldest() {
     std::shared_ptr<PairJob> job = std::move(in_flight_.front());
@@ -72,13 +99,18 @@ class Analysis {
     job->done.get_future().wait();
     if (needs_in_order_)
       for (size_t m = 0; m < metrics_.size(); ++m)
-        if (metrics_[m]->needs_in_order()) metrics_[m]->observe_in_order(job->pair, table_.slot(job->row, m));
+        if (metrics_[m]->needs_in_order()) {
+          const auto start = Clock::now();
+          metrics_[m]->observe_in_order(job->pair, table_.slot(job->row, m));
+          clocks_.back().metric_ms[m] += ms_since(start);  // the in-order stage's own record
+        }
     table_.append(job->cur->t_s, std::move(job->row));
   }
 
   std::vector<std::unique_ptr<Metric>> metrics_;
   MetricTable table_;
   std::vector<std::unique_ptr<PairBuilder>> builders_;
+  std::vector<StageClock> clocks_;  // one per worker, plus the in-order stage
   WorkerPool pool_;  // declared after what its tasks use, so it is joined first
   std::deque<std::shared_ptr<PairJob>> in_flight_;
   std::shared_ptr<const FramePlanes> prev_;
@@ -102,6 +134,7 @@ Expected<Report> analyze_clip(const std::string& path, const AnalysisSettings& s
   auto source = ClipSource::open(path, options);
   if (!source) return source.error();
 
+  const auto started = Clock::now();
   const int64_t expected = (*source)->info().frame_count;
   Analysis analysis(settings, worker_count(settings));
   std::optional<Error> stopped;
@@ -114,13 +147,22 @@ Expected<Report> analyze_clip(const std::string& path, const AnalysisSettings& s
       if (hooks.on_progress) hooks.on_progress(++done, expected);
     }
     stopped = stream.error();
+    if (hooks.timings) hooks.timings->decode_ms += stream.busy_ms();
   }
   MetricTable& table = analysis.finish();
   if (table.frame_count() == 0)
     return input_error(path, stopped ? stopped->cause : "no video frames could be decoded");
 
+  const auto finishing = Clock::now();
   ReportInputs inputs{path, settings, policy, **source, stopped};
-  return assemble_report(inputs, table, analysis.metrics());
+  Report report = assemble_report(inputs, table, analysis.metrics());
+  if (PipelineTimings* t = hooks.timings) {
+    analysis.add_times(*t);
+    t->finish_ms += ms_since(finishing);
+    t->wall_ms += ms_since(started);
+    t->frames += report.clip.frame_count;
+  }
+  return report;
 }
 
 }  // namespace framelint

@@ -1,5 +1,7 @@
 #include "analyzer/pipeline/frame_stream.h"
 
+#include <chrono>
+
 #include "analyzer/flow/pair_builder.h"
 
 namespace framelint {
@@ -14,7 +16,9 @@ FrameStream::~FrameStream() {
 
 void FrameStream::run() {
   DecodedFrame frame;
+  using Clock = std::chrono::steady_clock;
   while (true) {
+    const auto start = Clock::now();
     auto more = source_.read(frame);
     if (!more) {
       error_ = more.error();
@@ -23,6 +27,7 @@ void FrameStream::run() {
     if (!*more) break;
     auto planes = std::make_shared<FramePlanes>();
     prepare_planes(frame.index, frame.t_s, frame.bgr, *planes);
+    busy_ms_ += std::chrono::duration<double, std::milli>(Clock::now() - start).count();
     if (!queue_.push(std::move(planes))) return;  // consumer stopped
   }
   queue_.close();

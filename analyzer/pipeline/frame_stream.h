@@ -24,12 +24,15 @@ class FrameStream {
   std::shared_ptr<const FramePlanes> next();
   // Set if decoding stopped on a corrupt input rather than at the end.
   const std::optional<Error>& error() const { return error_; }
+  // Time the decoder thread spent working (not waiting), after the end.
+  double busy_ms() const { return busy_ms_; }
 
  private:
   void run();
   ClipSource& source_;
   BoundedQueue<std::shared_ptr<const FramePlanes>> queue_;
   std::optional<Error> error_;
+  double busy_ms_ = 0;
   std::thread thread_;
 };
 

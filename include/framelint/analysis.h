@@ -4,6 +4,7 @@
 
 #include <cstdint>
 #include <functional>
+#include <map>
 #include <optional>
 #include <string>
 
@@ -34,12 +35,25 @@ struct AnalysisSettings {
 // The settings as written into report.settings (and hashed by the store).
 nlohmann::json settings_to_json(const AnalysisSettings& settings);
 
+// Where the time went, summed over threads (milliseconds of thread time).
+// Filled when AnalysisHooks::timings is set; used by the benchmark.
+struct PipelineTimings {
+  double decode_ms = 0;     // reading, decoding, scaling, preparing planes
+  double pair_ms = 0;       // flow both ways, occlusion, warp, camera fit
+  std::map<std::string, double> metric_ms;  // per metric (first column's name)
+  double finish_ms = 0;     // post-processing, segments, summary, verdict
+  double wall_ms = 0;
+  int64_t frames = 0;
+};
+
 // Optional observers of a running analysis. Called on the analysis thread.
 struct AnalysisHooks {
   // Every decoded analysis frame, in order (e.g. to keep thumbnails).
   std::function<void(const DecodedFrame&)> on_frame;
   // Frames done so far and the container's estimate of the total (may be 0).
   std::function<void(int64_t done, int64_t expected)> on_progress;
+  // If set, filled with per-stage times.
+  PipelineTimings* timings = nullptr;
 };
 
 Expected<Report> analyze_clip(const std::string& path, const AnalysisSettings& settings,
