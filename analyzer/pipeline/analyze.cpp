@@ -133,13 +133,17 @@ Expected<Report> analyze_clip(const std::string& path, const AnalysisSettings& s
   options.threads = std::min(2, worker_count(settings));
   auto source = ClipSource::open(path, options);
   if (!source) return source.error();
+  return analyze_source(**source, path, settings, policy, hooks);
+}
 
+Expected<Report> analyze_source(ClipSource& source, const std::string& path, const AnalysisSettings& settings,
+                                const Policy& policy, const AnalysisHooks& hooks) {
   const auto started = Clock::now();
-  const int64_t expected = (*source)->info().frame_count;
+  const int64_t expected = source.info().frame_count;
   Analysis analysis(settings, worker_count(settings));
   std::optional<Error> stopped;
   {
-    FrameStream stream(**source, 4);
+    FrameStream stream(source, 4);
     int64_t done = 0;
     while (auto frame = stream.next()) {
       if (hooks.on_frame) hooks.on_frame(DecodedFrame{frame->index, frame->t_s, frame->bgr});
@@ -154,7 +158,7 @@ Expected<Report> analyze_clip(const std::string& path, const AnalysisSettings& s
     return input_error(path, stopped ? stopped->cause : "no video frames could be decoded");
 
   const auto finishing = Clock::now();
-  ReportInputs inputs{path, settings, policy, **source, stopped};
+  ReportInputs inputs{path, settings, policy, source, stopped};
   Report report = assemble_report(inputs, table, analysis.metrics());
   if (PipelineTimings* t = hooks.timings) {
     analysis.add_times(*t);

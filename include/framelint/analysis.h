@@ -59,4 +59,10 @@ struct AnalysisHooks {
 Expected<Report> analyze_clip(const std::string& path, const AnalysisSettings& settings,
                               const Policy& policy, const AnalysisHooks& hooks = {});
 
+// The same analysis over a source you opened or wrote yourself (frames
+// already in memory, a camera, a test). `path` is what the report names.
+Expected<Report> analyze_source(ClipSource& source, const std::string& path,
+                                const AnalysisSettings& settings, const Policy& policy,
+                                const AnalysisHooks& hooks = {});
+
 }  // namespace framelint
