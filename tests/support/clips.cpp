@@ -6,6 +6,7 @@
 #include <unistd.h>
 
 #include <atomic>
+#include <cmath>
 #include <cstdlib>
 #include <fstream>
 #include <random>
@@ -107,10 +108,21 @@ std::vector<double> ffprobe_frame_times(const std::string& clip, const std::stri
   std::string line;
   while (std::getline(lines, line)) {
     while (!line.empty() && (line.back() == ',' || line.back() == '\r')) line.pop_back();
-    if (line.empty() || line == "N/A") continue;
-    times.push_back(std::stod(line));
+    if (line.empty()) continue;
+    times.push_back(line == "N/A" ? std::nan("") : std::stod(line));
   }
   return times;
+}
+
+std::string ffprobe_value(const std::string& clip, const std::string& entry,
+                          const std::vector<std::string>& extra) {
+  std::vector<std::string> argv = {"ffprobe", "-v", "error", "-select_streams", "v:0"};
+  argv.insert(argv.end(), extra.begin(), extra.end());
+  argv.insert(argv.end(), {"-show_entries", entry, "-of", "default=nw=1:nk=1", clip});
+  const CommandResult r = run_command(argv);
+  if (r.exit_code != 0) return "";
+  std::string value = r.out.substr(0, r.out.find('\n'));
+  return value;
 }
 
 std::vector<double> ffmpeg_frame_metadata(const std::string& clip, const std::string& filter,

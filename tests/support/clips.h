@@ -65,10 +65,18 @@ std::string make_lavfi_clip(const std::string& out, const std::string& source,
                             const std::vector<std::string>& inputs_before = {});
 
 // Per-frame times of the first video stream as ffprobe reports them.
-// entry: "best_effort_timestamp_time" (default) or "pts_time". Frames
-// without a value are skipped. Empty when ffprobe fails.
+// entry: "best_effort_timestamp_time" (default) or "pts_time". A frame
+// without a value (ffprobe's "N/A", e.g. a frame flushed from a decoder
+// with delay) is NaN. Empty when ffprobe fails.
 std::vector<double> ffprobe_frame_times(const std::string& clip,
                                         const std::string& entry = "best_effort_timestamp_time");
+
+// One value ffprobe reports for the first video stream or the container,
+// e.g. ffprobe_value(clip, "stream=codec_name"), ffprobe_value(clip,
+// "format=format_name"), ffprobe_value(clip, "stream=nb_read_frames",
+// {"-count_frames"}). "" when ffprobe fails or has no such entry.
+std::string ffprobe_value(const std::string& clip, const std::string& entry,
+                          const std::vector<std::string>& extra = {});
 
 // One value per frame that an FFmpeg filter writes as frame metadata, e.g.
 // ffmpeg_frame_metadata(clip, "signalstats", "lavfi.signalstats.YAVG").
