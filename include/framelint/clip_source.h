@@ -22,12 +22,13 @@ struct SourceOptions {
   int working_long_side = 512;
   // Frame rate for folders of images (ignored for video files).
   std::optional<double> folder_fps;
-  // Decoder threads; 0 lets the library choose.
+  // Decoder threads (frame + slice threading); 0 means 2.
   int threads = 0;
 };
 
 // One decoded frame, already rotated for display and scaled to the working
-// size.
+// size. Pass the same DecodedFrame to every read(): its buffer is reused
+// unless another cv::Mat still shares it (a kept frame is never overwritten).
 struct DecodedFrame {
   int64_t index = 0;  // 0-based decode order
   double t_s = 0;     // presentation time from the first frame, seconds
@@ -42,20 +43,27 @@ class ClipSource {
   static Expected<std::unique_ptr<ClipSource>> open(const std::string& path,
                                                     const SourceOptions& options);
 
-  // Container facts known before decoding. frame_count, duration_s and fps
-  // are the container's estimates until finish_info() is called.
+  // What the clip is. frame_count, duration_s and fps are the container's
+  // estimates until read() has returned false; then they are exact, and
+  // audio.duration_s / audio.silent_from_s come from the decoded sound.
+  // width/height are the displayed size (rotation and pixel aspect
+  // applied). sha256 is left for the caller (sha256_file).
   virtual const ClipInfo& info() const = 0;
 
   // Next frame into `frame`. Returns false at the end of the clip, or an
-  // input Error when the data is corrupt beyond recovery.
+  // input Error when the data is corrupt beyond recovery ("truncated or
+  // unreadable after frame 41 (...)"); packets that fail to decode in the
+  // middle of a stream are skipped.
   virtual Expected<bool> read(DecodedFrame& frame) = 0;
 
   // Timing facts measured while reading (valid after read() returned false).
   virtual StreamFacts stream_facts() const = 0;
 };
 
-// Container facts without decoding every frame (`framelint probe`): the
-// ClipInfo plus the stream facts, as a JSON object.
+// Container facts without decoding video (`framelint probe`): the ClipInfo
+// (sha256 empty for a folder) plus "stream" with the StreamFacts, as a JSON object with
+// the report's key names. The frame count and timing facts come from the
+// video packets; the audio facts from decoding the audio.
 Expected<nlohmann::json> probe_clip(const std::string& path, const SourceOptions& options);
 
 // Hex SHA-256 of a file's bytes (the store's content key).
