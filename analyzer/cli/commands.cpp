@@ -9,11 +9,15 @@ namespace framelint::cli {
 // Each command lives in its own file; one line here registers it.
 int run_analyze(const std::vector<std::string>& args);
 int run_probe(const std::vector<std::string>& args);
+int run_gate(const std::vector<std::string>& args);
+int run_merge(const std::vector<std::string>& args);
 
 const std::vector<Command>& commands() {
   static const std::vector<Command> table = {
       {"analyze", "analyze clips; write a JSON and an HTML report per clip", run_analyze},
       {"probe", "print what a clip's container holds, as JSON", run_probe},
+      {"gate", "judge a batch of clips into a review queue (queue.jsonl, index.html)", run_gate},
+      {"merge", "join the outputs of gate shards into one queue", run_merge},
   };
   return table;
 }

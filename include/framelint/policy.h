@@ -22,7 +22,9 @@ namespace framelint {
 // higher, so a busy clip is judged against itself (baseline_k = 0 turns the
 // baseline off). Segments shorter than min_frames are dropped; segments
 // separated by at most merge_gap_frames are joined. Severity comes from the
-// peak: >= reject_peak is reject, >= review_peak is review, else info.
+// peak: >= reject_peak is reject, >= review_peak is review, else info. An
+// infinite peak level means that severity is never given from the peak
+// (written as null in policy JSON).
 struct SegmentRule {
   double enter = 0;
   double leave = 0;
@@ -35,7 +37,9 @@ struct SegmentRule {
 
 // A threshold on one clip-level statistic of one metric. statistic is one of
 // mean, p50, p95, max (of the per-frame series), segment_count,
-// longest_segment_s, segment_total_s, or a key of summary.<metric> details.
+// longest_segment_s, segment_total_s (over the metric's segments, inclusive
+// of the last frame's interval), or "details.<key>" for a number under
+// summary.<metric>.details (a dotted key reaches into nested objects).
 struct SummaryRule {
   std::string metric;
   std::string statistic;
@@ -47,20 +51,32 @@ struct Policy {
   std::string name = "default";
   std::map<std::string, SegmentRule> segments;  // by metric
   std::vector<SummaryRule> rules;
-  bool flash_hazard_rejects = true;                  // any flash hazard rejects
-  std::optional<double> stream_mismatch_review_s = 1.0;  // audio/video mismatch reviews
-  std::optional<double> coherence_review_below;       // coherence score floor
+  // Hard rules, checked on every clip.
+  bool flash_hazard_rejects = true;  // > 3 flashes in a one-second window (WCAG 2.x)
+  std::optional<double> stream_mismatch_review_s = 1.0;  // |audio - video| duration reviews
+  std::optional<double> coherence_review_below;          // coherence score floor
   std::optional<double> coherence_reject_below;
+  std::optional<int> dropped_frames_review;  // stream.dropped_frames at or above this reviews
+  // Reviews a clip whose decoder reported warnings: a non-empty array or a
+  // positive count at summary.decode.details.warnings.
+  bool decode_warnings_review = true;
 };
+
+// Every statistic name a SummaryRule may use besides "details.<key>".
+const std::vector<std::string>& policy_statistics();
 
 const Policy& default_policy();
 
-// Reads a policy file. Keys not given keep the default. Unknown keys, wrong
-// types and review thresholds above reject thresholds are usage errors that
-// name the key.
+// Reads a policy file (format in docs/gate.md). Keys not given keep the
+// default: objects merge key by key, any other value replaces, null turns a
+// rule off. Unknown keys, wrong types and impossible thresholds (review above
+// reject, leave above enter, negative values) are usage errors whose subject
+// names the file and the key path, e.g. "p.json: metrics.flicker.segment.enter".
 Expected<Policy> load_policy(const std::string& path);
 Expected<Policy> parse_policy(const std::string& json_text, const std::string& subject);
-nlohmann::json policy_to_json(const Policy& policy);
+// The whole policy as JSON that parse_policy accepts back unchanged, keys in
+// reading order (schema, name, rules, metrics).
+nlohmann::ordered_json policy_to_json(const Policy& policy);
 
 // The verdict of a finished report under a policy, with reasons that name
 // the metric, the value, the threshold and the time range.

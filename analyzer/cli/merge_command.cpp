@@ -1,0 +1,43 @@
+// framelint merge DIR... --out DIR : joins the outputs of gate shards.
+#include <cstdio>
+
+#include "analyzer/cli/args.h"
+#include "analyzer/cli/command.h"
+#include "analyzer/cli/gate_output.h"
+#include "framelint/gate.h"
+
+namespace framelint::cli {
+
+int run_merge(const std::vector<std::string>& args) {
+  const std::vector<OptionSpec> specs = {
+      {"out", true, "merged output folder (required; not one of the inputs)"},
+      {"fail-on", true, "review or reject (default): exit 1 when a merged clip has it"},
+      {"quiet", false, "no summary line"},
+  };
+  if (wants_help(args)) {
+    std::fputs(format_help("merge", "DIR... --out DIR [options]",
+                           "Joins the output folders of `framelint gate --shard` runs: one queue.jsonl in\n"
+                           "input order without duplicates, the reports, one framelint.db and index.html.\n"
+                           "Exit status as for gate: 0, 1 (a clip reached --fail-on), 2 bad usage,\n"
+                           "3 a clip could not be read.",
+                           specs)
+                   .c_str(),
+               stdout);
+    return kExitOk;
+  }
+  auto parsed = parse_args(args, specs);
+  if (!parsed) return print_error(parsed.error().message()), kExitUsage;
+  if (parsed->positionals.empty() || !parsed->get("out"))
+    return print_error("merge needs DIR... and --out DIR (see framelint merge --help)"), kExitUsage;
+  auto fail_on = fail_on_from_args(*parsed);
+  if (!fail_on) return print_error(fail_on.error().message()), kExitUsage;
+  auto run = merge_gate_outputs(parsed->positionals, *parsed->get("out"));
+  if (!run) return print_error(run.error().message()), run.error().kind == ErrorKind::input ? kExitInputError : kExitUsage;
+  for (const auto& w : run->warnings) print_error(w);
+  if (!parsed->has("quiet"))
+    std::printf("merge: %d clips: %s -> %s/queue.jsonl\n", run->counts.total, summary_text(run->counts).c_str(),
+                parsed->get("out")->c_str());
+  return gate_exit_status(run->counts, *fail_on);
+}
+
+}  // namespace framelint::cli

@@ -1,0 +1,152 @@
+// framelint merge: the outputs of shard runs joined into one folder. Report
+// names are unique across shards (the gate names clips over the whole input
+// list before taking its share), so a merge normally copies them unchanged.
+#include <algorithm>
+#include <filesystem>
+#include <fstream>
+#include <map>
+#include <set>
+#include <sstream>
+
+#include "framelint/gate.h"
+#include "framelint/report_io.h"
+#include "framelint/store.h"
+
+namespace framelint {
+namespace {
+
+namespace fs = std::filesystem;
+
+std::string canonical_text(const fs::path& p) {
+  std::error_code ec;
+  auto c = fs::weakly_canonical(p, ec);
+  return (ec ? fs::absolute(p) : c).lexically_normal().string();
+}
+
+Expected<std::string> read_text(const fs::path& p) {
+  std::ifstream in(p, std::ios::binary);
+  if (!in) return input_error(p.string(), "cannot open");
+  std::stringstream buffer;
+  buffer << in.rdbuf();
+  return buffer.str();
+}
+
+Status copy_atomic(const fs::path& from, const fs::path& to) {
+  auto text = read_text(from);
+  if (!text) return text.error();
+  return write_file_atomic(to.string(), *text);
+}
+
+Status read_queue(const fs::path& dir, std::vector<ClipResult>& out) {
+  const fs::path queue = dir / "queue.jsonl";
+  std::ifstream in(queue, std::ios::binary);
+  if (!in) return usage_error(dir.string(), "has no queue.jsonl (not a gate output folder)");
+  std::string line;
+  for (int number = 1; std::getline(in, line); ++number) {
+    if (line.find_first_not_of(" \t\r") == std::string::npos) continue;
+    const std::string where = queue.string() + ":" + std::to_string(number);
+    auto j = nlohmann::json::parse(line, nullptr, /*allow_exceptions=*/false);
+    if (j.is_discarded()) return input_error(where, "not valid JSON");
+    auto r = clip_result_from_queue_line(j, where);
+    if (!r) return r.error();
+    out.push_back(std::move(r.value()));
+  }
+  return Ok{};
+}
+
+struct Merger {
+  fs::path out_dir;
+  std::set<std::string> used_names;
+  std::map<std::string, std::string> moved;  // canonical source report -> canonical merged report
+  std::vector<std::string> warnings;
+
+  std::string free_name(const std::string& stem) {
+    std::string name = stem;
+    for (int n = 2; used_names.count(name); ++n) name = stem + "-" + std::to_string(n);
+    used_names.insert(name);
+    return name;
+  }
+
+  // Copies r's report (JSON and HTML when present) and points r at the copy.
+  void copy_report(const fs::path& dir, ClipResult& r) {
+    if (r.report.empty()) return;
+    const fs::path src = dir / r.report;
+    std::error_code ec;
+    if (!fs::exists(src, ec)) {
+      warnings.push_back(src.string() + ": report listed in the queue is missing");
+      r.report.clear();
+      return;
+    }
+    const std::string name = free_name(fs::path(r.report).stem().string());
+    const fs::path dst = out_dir / (name + ".json");
+    if (auto st = copy_atomic(src, dst); !st) {
+      warnings.push_back(st.error().message());
+      r.report.clear();
+      return;
+    }
+    const fs::path html = fs::path(src).replace_extension(".html");
+    if (fs::exists(html, ec))
+      if (auto st = copy_atomic(html, out_dir / (name + ".html")); !st) warnings.push_back(st.error().message());
+    moved[canonical_text(src)] = canonical_text(dst);
+    r.report = name + ".json";
+    r.input.output_name = name;
+  }
+
+  Status merge_store(const fs::path& dir, ResultStore& into) {
+    const fs::path db = dir / "framelint.db";
+    std::error_code ec;
+    if (!fs::exists(db, ec)) return Ok{};  // the shard used a shared --db
+    auto from = ResultStore::open(db.string());
+    if (!from) return from.error();
+    auto rows = (*from)->all();
+    if (!rows) return rows.error();
+    for (auto& row : *rows) {
+      auto it = moved.find(canonical_text(row.report_path));
+      if (it != moved.end()) row.report_path = it->second;
+      auto present = into.contains(row);
+      if (!present) return present.error();
+      if (*present) continue;
+      if (auto st = into.insert(row); !st) return st;
+    }
+    return Ok{};
+  }
+};
+
+}  // namespace
+
+Expected<GateRun> merge_gate_outputs(const std::vector<std::string>& shard_dirs, const std::string& out_dir) {
+  std::error_code ec;
+  fs::create_directories(out_dir, ec);
+  if (ec) return output_error(out_dir, "cannot create output folder: " + ec.message());
+  const std::string out_canonical = canonical_text(out_dir);
+  for (const auto& dir : shard_dirs)
+    if (canonical_text(dir) == out_canonical) return usage_error(dir, "merge output folder must not be one of its inputs");
+
+  auto store = ResultStore::open((fs::path(out_dir) / "framelint.db").string());
+  if (!store) return store.error();
+  Merger merger{fs::path(out_dir)};
+  std::map<std::string, std::string> seen;  // id -> the folder it came from
+  GateRun run;
+  for (const auto& dir : shard_dirs) {
+    std::vector<ClipResult> lines;
+    if (auto st = read_queue(dir, lines); !st) return st.error();
+    for (auto& r : lines) {
+      auto [it, fresh] = seen.emplace(r.input.id, dir);
+      if (!fresh) {
+        merger.warnings.push_back(dir + ": clip '" + r.input.id + "' is also in " + it->second + "; kept that one");
+        continue;
+      }
+      merger.copy_report(dir, r);
+      run.results.push_back(std::move(r));
+    }
+    if (auto st = merger.merge_store(dir, **store); !st) return st.error();
+  }
+  std::stable_sort(run.results.begin(), run.results.end(),
+                   [](const ClipResult& a, const ClipResult& b) { return a.input.index < b.input.index; });
+  for (const auto& r : run.results) run.counts.add(r);
+  run.warnings = std::move(merger.warnings);
+  if (auto st = write_queue_outputs(out_dir, run.results); !st) return st.error();
+  return run;
+}
+
+}  // namespace framelint

@@ -1,0 +1,202 @@
+// The built-in policy: one block per metric, owned by that metric's author,
+// plus the hard rules at the end. Every number below is INITIAL, TO BE
+// CALIBRATED BY THE ACCURACY HARNESS (issue 8): it is a reasoned first guess,
+// not a measurement. Where a comment gives a typical value for clean footage
+// it says whether that value was measured or guessed.
+//
+// Reading a block: `segment` is the SegmentRule (policy.h) used by the
+// segmenter: {enter, leave, min_frames, merge_gap_frames, baseline_k,
+// review_peak, reject_peak}; kNever as a peak level means "this severity is
+// never given from the peak". `thresholds` are {statistic, review, reject}
+// on clip-level statistics; std::nullopt leaves that level off.
+#include <limits>
+#include <optional>
+
+#include "framelint/policy.h"
+
+namespace framelint {
+namespace {
+
+constexpr double kNever = std::numeric_limits<double>::infinity();
+constexpr std::nullopt_t kOff = std::nullopt;
+
+struct Threshold {
+  const char* statistic;
+  std::optional<double> review;
+  std::optional<double> reject;
+};
+
+struct MetricBlock {
+  const char* metric;
+  std::optional<SegmentRule> segment;
+  std::vector<Threshold> thresholds;
+};
+
+std::vector<MetricBlock> metric_blocks() {
+  return {
+      // ---- warp_error ------------------------------------------------------
+      // Mean squared RGB difference in [0,1] between frame t and frame t-1
+      // warped by flow, over non-occluded pixels (Lai et al., ECCV 2018).
+      // Clean real footage at 512 px: ~0.001-0.005 [guess, to be calibrated].
+      // A defect confined to a tenth of the frame that moves each channel by
+      // 0.3 adds 0.1 * 0.3^2 = 0.009, so enter at 0.012 (above the clean
+      // range plus such a local defect's smallest visible size) and leave at
+      // 0.008 for hysteresis. Peaks: 0.02 (4x the clean ceiling) reviews,
+      // 0.05 (10x) rejects. baseline_k 5 keeps fast-motion clips, where flow
+      // is less exact everywhere, from flagging their whole length.
+      {"warp_error",
+       SegmentRule{.enter = 0.012, .leave = 0.008, .min_frames = 1, .merge_gap_frames = 2,
+                   .baseline_k = 5, .review_peak = 0.02, .reject_peak = 0.05},
+       {// p95: at least 5% of the clip is above it; same 4x / 8x reasoning.
+        {"p95", 0.015, 0.04},
+        // A high mean alone usually means motion the flow cannot follow
+        // (blur, fast pans): worth a look, not proof of a defect.
+        {"mean", 0.01, kOff}}},
+
+      // ---- warp_error_long -------------------------------------------------
+      // The same error over k = 5 frames. Flow error compounds over the
+      // span, so clean footage is guessed at ~3x the one-frame value
+      // (~0.003-0.015). It catches slow morphing the one-frame error misses;
+      // because chained flow inflates it, it only ever reviews.
+      {"warp_error_long",
+       SegmentRule{.enter = 0.03, .leave = 0.02, .min_frames = 3, .merge_gap_frames = 3,
+                   .baseline_k = 5, .review_peak = 0.05, .reject_peak = kNever},
+       {{"p95", 0.04, kOff}}},
+
+      // ---- occluded_pct ----------------------------------------------------
+      // Share of pixels failing the forward-backward check (Sundaram et al.,
+      // ECCV 2010), 0-100. Ordinary motion occludes ~5-20% near moving edges
+      // [guess]. More than a third of the frame unexplained by motion means
+      // the picture was replaced or melted; 60% reviews. Never rejects by
+      // itself: fast legitimate motion can do it, and cut/warp_error carry
+      // the verdict when it is a defect.
+      {"occluded_pct",
+       SegmentRule{.enter = 35, .leave = 25, .min_frames = 2, .merge_gap_frames = 2,
+                   .baseline_k = 4, .review_peak = 60, .reject_peak = kNever},
+       {{"mean", 30, kOff}}},
+
+      // ---- flicker ---------------------------------------------------------
+      // Motion-compensated mean relative luminance, high-passed, absolute
+      // value, luminance units 0-1. A visible pulse is ~0.02+ [guess]; enter
+      // at half of that so a segment covers the pulse's shoulders, leave at a
+      // quarter. One frame is enough: a one-frame pulse is the typical
+      // defect. 0.05 (2.5x visible) rejects.
+      {"flicker",
+       SegmentRule{.enter = 0.01, .leave = 0.005, .min_frames = 1, .merge_gap_frames = 2,
+                   .baseline_k = 5, .review_peak = 0.02, .reject_peak = 0.05},
+       {// 5% of the clip pulsing at 0.03 is a clip-wide flicker.
+        {"p95", 0.012, 0.03},
+        // Three separate pulses in one clip read as unsteady light.
+        {"segment_count", 3, kOff},
+        // Half a second of flicker in total reviews, 1.5 s rejects.
+        {"segment_total_s", 0.5, 1.5}}},
+
+      // ---- flicker_local ---------------------------------------------------
+      // The same quantity per block: a region that pulses while the frame
+      // mean stays put. A block averages fewer pixels than the frame, so its
+      // noise floor is higher [guess: ~3x]; thresholds are ~2.5x flicker's.
+      {"flicker_local",
+       SegmentRule{.enter = 0.03, .leave = 0.015, .min_frames = 1, .merge_gap_frames = 2,
+                   .baseline_k = 5, .review_peak = 0.05, .reject_peak = 0.12},
+       {{"p95", 0.04, 0.08}}},
+
+      // ---- freeze ----------------------------------------------------------
+      // 1 when the frame repeats the previous one, else 0. Frame-rate
+      // conversion repeats isolated frames (24->30 fps pulldown repeats one
+      // frame in five: mean 0.2, runs of 1), so a run must be 2+ frames and
+      // runs are never merged (merging would join pulldown repeats into one
+      // long false freeze). The baseline is off: on a 0/1 series the median
+      // is meaningless. Peaks carry no severity (every run peaks at 1); the
+      // verdict comes from how long the picture stands still, in seconds so
+      // it does not depend on the frame rate.
+      {"freeze",
+       SegmentRule{.enter = 0.5, .leave = 0.5, .min_frames = 2, .merge_gap_frames = 0,
+                   .baseline_k = 0, .review_peak = kNever, .reject_peak = kNever},
+       {// 0.3 s still is a visible hitch; a full second is a stall.
+        {"longest_segment_s", 0.3, 1.0},
+        // Above pulldown's 0.2: a third of frames repeated looks choppy,
+        // over half is a slideshow.
+        {"mean", 0.3, 0.6}}},
+
+      // ---- cut -------------------------------------------------------------
+      // 0-1 score of a hard discontinuity. Generated clips are meant to be one
+      // shot, so a confident cut (>= 0.5) reviews; several cuts in one clip
+      // are a chain of jumps and reject. Absolute only (baseline off): a
+      // clip's own level must not excuse a jump.
+      {"cut",
+       SegmentRule{.enter = 0.5, .leave = 0.3, .min_frames = 1, .merge_gap_frames = 0,
+                   .baseline_k = 0, .review_peak = 0.5, .reject_peak = kNever},
+       {{"segment_count", kOff, 3}}},
+
+      // ---- drift -----------------------------------------------------------
+      // Worst tracked object's departure from its own first appearance,
+      // assumed to be CIEDE2000 colour difference (ΔE00) once lighting is
+      // taken out; the drift owner refines the unit. ΔE00 ~1 is a just
+      // noticeable difference and ~2-3 is visible at a glance (common
+      // practice); 4 enters, 6 reviews, 12 (plainly another colour) rejects.
+      // A short blip is tracking noise, so 3 frames minimum.
+      {"drift",
+       SegmentRule{.enter = 4, .leave = 3, .min_frames = 3, .merge_gap_frames = 3,
+                   .baseline_k = 0, .review_peak = 6, .reject_peak = 12},
+       {{"longest_segment_s", 0.5, kOff}}},
+
+      // ---- flash -----------------------------------------------------------
+      // Count of WCAG 2.x flashes in the one-second window around the frame.
+      // More than 3 in a second is the WCAG general/red flash threshold; the
+      // hard rule flash_hazard_rejects below handles that, so the segment
+      // only marks flashing stretches and reviews at the limit itself (3).
+      {"flash",
+       SegmentRule{.enter = 1, .leave = 1, .min_frames = 1, .merge_gap_frames = 0,
+                   .baseline_k = 0, .review_peak = 3, .reject_peak = kNever},
+       {}},
+
+      // ---- jerk ------------------------------------------------------------
+      // Spikes in the acceleration of the dominant (camera) motion, assumed in
+      // working-width pixels per frame^2 [guess; the jerk owner sets the
+      // unit]. A smooth pan changes speed by well under a pixel per frame; a
+      // jump of 8 px/frame is a visible stutter, 16 reviews. Camera shake is
+      // judged against the clip's own level (baseline_k 6). Review only.
+      {"jerk",
+       SegmentRule{.enter = 8, .leave = 4, .min_frames = 1, .merge_gap_frames = 1,
+                   .baseline_k = 6, .review_peak = 16, .reject_peak = kNever},
+       {{"segment_count", 3, kOff}}},
+  };
+}
+
+Policy build_default_policy() {
+  Policy p;
+  p.name = "default";
+  for (const auto& block : metric_blocks()) {
+    if (block.segment) p.segments[block.metric] = *block.segment;
+    for (const auto& t : block.thresholds) p.rules.push_back({block.metric, t.statistic, t.review, t.reject});
+  }
+  // ---- hard rules ----------------------------------------------------------
+  // More than 3 flashes in any one second is the WCAG 2.x threshold for
+  // photosensitive seizure risk: a clip that may harm a viewer never ships.
+  p.flash_hazard_rejects = true;
+  // Audio and video durations differing by more than a second is a muxing or
+  // generation fault a viewer notices as a silent tail or cut-off sound
+  // (common practice for delivery checks).
+  p.stream_mismatch_review_s = 1.0;
+  // The 0-100 coherence score summarises all metrics; below 50 the clip is
+  // worse than half-way to the worst case and deserves a look [guess].
+  // Rejection needs a named defect, so there is no reject floor by default.
+  p.coherence_review_below = 50;
+  p.coherence_reject_below = std::nullopt;
+  // A few dropped frames are a visible stutter; one alone is often a muxing
+  // artefact nobody sees, so 3 [guess].
+  p.dropped_frames_review = 3;
+  // Decoder warnings (corrupt packets concealed) mean the pixels we judged
+  // may not be what the author made.
+  p.decode_warnings_review = true;
+  return p;
+}
+
+}  // namespace
+
+const Policy& default_policy() {
+  static const Policy policy = build_default_policy();
+  return policy;
+}
+
+}  // namespace framelint

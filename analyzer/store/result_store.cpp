@@ -1,0 +1,208 @@
+// The results store on SQLite. WAL mode lets readers and one writer work at
+// once (other processes too); the busy timeout makes a writer wait for
+// another process's transaction instead of failing; BEGIN IMMEDIATE takes the
+// write lock up front so two writers never deadlock upgrading a read lock.
+#include <sqlite3.h>
+
+#include "framelint/store.h"
+
+namespace framelint {
+namespace {
+
+constexpr int kBusyTimeoutMs = 60000;
+constexpr int kSchemaVersion = 1;
+
+const char* kSchema = R"sql(
+CREATE TABLE IF NOT EXISTS analyses (
+  row_id         INTEGER PRIMARY KEY,
+  content_sha256 TEXT NOT NULL,
+  settings_hash  TEXT NOT NULL,
+  tool_version   TEXT NOT NULL,
+  clip_id        TEXT NOT NULL,
+  clip_path      TEXT NOT NULL,
+  model          TEXT NOT NULL,
+  prompt_id      TEXT NOT NULL,
+  verdict        TEXT NOT NULL CHECK (verdict IN ('pass', 'review', 'reject')),
+  coherence      REAL,
+  reasons_json   TEXT NOT NULL,
+  summary_json   TEXT NOT NULL,
+  report_path    TEXT NOT NULL,
+  created_at     TEXT NOT NULL
+);
+CREATE INDEX IF NOT EXISTS analyses_by_key ON analyses (content_sha256, settings_hash);
+)sql";
+
+const char* kColumns =
+    "row_id, content_sha256, settings_hash, tool_version, clip_id, clip_path, model, prompt_id, "
+    "verdict, coherence, reasons_json, summary_json, report_path, created_at";
+
+// A prepared statement, finalized on scope exit.
+class Statement {
+ public:
+  Statement(sqlite3* db, const std::string& sql) { rc_ = sqlite3_prepare_v2(db, sql.c_str(), -1, &stmt_, nullptr); }
+  ~Statement() { sqlite3_finalize(stmt_); }
+  bool ok() const { return rc_ == SQLITE_OK; }
+  sqlite3_stmt* get() { return stmt_; }
+  void text(int i, const std::string& s) { sqlite3_bind_text(stmt_, i, s.data(), static_cast<int>(s.size()), SQLITE_TRANSIENT); }
+  void real(int i, double v) { sqlite3_bind_double(stmt_, i, v); }
+
+ private:
+  sqlite3_stmt* stmt_ = nullptr;
+  int rc_;
+};
+
+std::string column_text(sqlite3_stmt* s, int i) {
+  const unsigned char* t = sqlite3_column_text(s, i);
+  return t ? reinterpret_cast<const char*>(t) : "";
+}
+
+Verdict verdict_from(const std::string& s) {
+  return s == "reject" ? Verdict::reject : s == "review" ? Verdict::review : Verdict::pass;
+}
+
+StoredAnalysis read_row(sqlite3_stmt* s) {
+  StoredAnalysis r;
+  r.row_id = sqlite3_column_int64(s, 0);
+  r.content_sha256 = column_text(s, 1);
+  r.settings_hash = column_text(s, 2);
+  r.tool_version = column_text(s, 3);
+  r.clip_id = column_text(s, 4);
+  r.clip_path = column_text(s, 5);
+  r.model = column_text(s, 6);
+  r.prompt_id = column_text(s, 7);
+  r.verdict = verdict_from(column_text(s, 8));
+  r.coherence = sqlite3_column_double(s, 9);
+  auto reasons = nlohmann::json::parse(column_text(s, 10), nullptr, false);
+  if (reasons.is_array())
+    for (const auto& x : reasons)
+      if (x.is_string()) r.reasons.push_back(x.get<std::string>());
+  r.summary = nlohmann::json::parse(column_text(s, 11), nullptr, false);
+  if (r.summary.is_discarded()) r.summary = nlohmann::json::object();
+  r.report_path = column_text(s, 12);
+  r.created_at = column_text(s, 13);
+  return r;
+}
+
+}  // namespace
+
+Expected<std::unique_ptr<ResultStore>> ResultStore::open(const std::string& path) {
+  sqlite3* db = nullptr;
+  const int flags = SQLITE_OPEN_READWRITE | SQLITE_OPEN_CREATE | SQLITE_OPEN_NOMUTEX;
+  if (sqlite3_open_v2(path.c_str(), &db, flags, nullptr) != SQLITE_OK) {
+    std::string cause = db ? sqlite3_errmsg(db) : "out of memory";
+    sqlite3_close(db);
+    return output_error(path, "cannot open results store: " + cause);
+  }
+  std::unique_ptr<ResultStore> store(new ResultStore(db, path));
+  sqlite3_busy_timeout(db, kBusyTimeoutMs);
+  // journal_mode returns a row; exec ignores it. synchronous=NORMAL is safe
+  // in WAL mode: a power cut may lose the last commits, never corrupt.
+  for (const char* sql : {"PRAGMA journal_mode=WAL", "PRAGMA synchronous=NORMAL", kSchema}) {
+    auto st = store->exec(sql);
+    if (!st) return st.error();
+  }
+  Statement version(db, "PRAGMA user_version");
+  int found = version.ok() && sqlite3_step(version.get()) == SQLITE_ROW ? sqlite3_column_int(version.get(), 0) : 0;
+  if (found > kSchemaVersion)
+    return output_error(path, "results store was written by a newer framelint (schema " + std::to_string(found) + ")");
+  if (found < kSchemaVersion) {
+    auto st = store->exec(("PRAGMA user_version=" + std::to_string(kSchemaVersion)).c_str());
+    if (!st) return st.error();
+  }
+  return store;
+}
+
+ResultStore::~ResultStore() { sqlite3_close(db_); }
+
+Status ResultStore::exec(const char* sql) {
+  char* message = nullptr;
+  if (sqlite3_exec(db_, sql, nullptr, nullptr, &message) != SQLITE_OK) {
+    std::string cause = message ? message : sqlite3_errmsg(db_);
+    sqlite3_free(message);
+    return output_error(path_, "results store: " + cause);
+  }
+  return Ok{};
+}
+
+Expected<std::optional<StoredAnalysis>> ResultStore::find(const std::string& content_sha256,
+                                                          const std::string& settings_hash) {
+  std::lock_guard lock(mutex_);
+  Statement s(db_, std::string("SELECT ") + kColumns +
+                       " FROM analyses WHERE content_sha256 = ?1 AND settings_hash = ?2"
+                       " ORDER BY row_id DESC LIMIT 1");
+  if (!s.ok()) return output_error(path_, std::string("results store: ") + sqlite3_errmsg(db_));
+  s.text(1, content_sha256);
+  s.text(2, settings_hash);
+  const int rc = sqlite3_step(s.get());
+  if (rc == SQLITE_ROW) return std::optional<StoredAnalysis>(read_row(s.get()));
+  if (rc == SQLITE_DONE) return std::optional<StoredAnalysis>();
+  return output_error(path_, std::string("results store: ") + sqlite3_errmsg(db_));
+}
+
+Status ResultStore::insert(StoredAnalysis& row) {
+  std::lock_guard lock(mutex_);
+  auto begun = exec("BEGIN IMMEDIATE");
+  if (!begun) return begun;
+  Statement s(db_,
+              "INSERT INTO analyses (content_sha256, settings_hash, tool_version, clip_id, clip_path, "
+              "model, prompt_id, verdict, coherence, reasons_json, summary_json, report_path, created_at) "
+              "VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11, ?12, "
+              "COALESCE(NULLIF(?13, ''), strftime('%Y-%m-%dT%H:%M:%fZ', 'now'))) "
+              "RETURNING row_id, created_at");
+  bool ok = s.ok();
+  if (ok) {
+    s.text(1, row.content_sha256);
+    s.text(2, row.settings_hash);
+    s.text(3, row.tool_version);
+    s.text(4, row.clip_id);
+    s.text(5, row.clip_path);
+    s.text(6, row.model);
+    s.text(7, row.prompt_id);
+    s.text(8, to_string(row.verdict));
+    s.real(9, row.coherence);
+    s.text(10, nlohmann::json(row.reasons).dump());
+    s.text(11, row.summary.dump());
+    s.text(12, row.report_path);
+    s.text(13, row.created_at);
+    ok = sqlite3_step(s.get()) == SQLITE_ROW;
+    if (ok) {
+      row.row_id = sqlite3_column_int64(s.get(), 0);
+      row.created_at = column_text(s.get(), 1);
+      ok = sqlite3_step(s.get()) == SQLITE_DONE;
+    }
+  }
+  if (!ok) {
+    std::string cause = sqlite3_errmsg(db_);
+    (void)exec("ROLLBACK");
+    return output_error(path_, "results store: cannot insert: " + cause);
+  }
+  return exec("COMMIT");
+}
+
+Expected<bool> ResultStore::contains(const StoredAnalysis& row) {
+  std::lock_guard lock(mutex_);
+  Statement s(db_,
+              "SELECT 1 FROM analyses WHERE content_sha256 = ?1 AND settings_hash = ?2 AND clip_id = ?3 "
+              "AND created_at = ?4 LIMIT 1");
+  if (!s.ok()) return output_error(path_, std::string("results store: ") + sqlite3_errmsg(db_));
+  s.text(1, row.content_sha256);
+  s.text(2, row.settings_hash);
+  s.text(3, row.clip_id);
+  s.text(4, row.created_at);
+  const int rc = sqlite3_step(s.get());
+  if (rc == SQLITE_ROW || rc == SQLITE_DONE) return rc == SQLITE_ROW;
+  return output_error(path_, std::string("results store: ") + sqlite3_errmsg(db_));
+}
+
+Expected<std::vector<StoredAnalysis>> ResultStore::all() {
+  std::lock_guard lock(mutex_);
+  Statement s(db_, std::string("SELECT ") + kColumns + " FROM analyses ORDER BY row_id");
+  if (!s.ok()) return output_error(path_, std::string("results store: ") + sqlite3_errmsg(db_));
+  std::vector<StoredAnalysis> rows;
+  int rc;
+  while ((rc = sqlite3_step(s.get())) == SQLITE_ROW) rows.push_back(read_row(s.get()));
+  if (rc != SQLITE_DONE) return output_error(path_, std::string("results store: ") + sqlite3_errmsg(db_));
+  return rows;
+}
+
+}  // namespace framelint

@@ -1,0 +1,139 @@
+// The review-queue gate: many clips in, one verdict per clip out, in a
+// queue a person or a pipeline acts on. Inputs are clips, folders and
+// manifests; results are per-clip reports, DIR/queue.jsonl, DIR/index.html
+// and rows in the results store (include/framelint/store.h). A batch never
+// stops at a bad clip: its error is recorded in its queue line.
+#pragma once
+
+#include <cstdint>
+#include <functional>
+#include <optional>
+#include <string>
+#include <string_view>
+#include <vector>
+
+#include <nlohmann/json.hpp>
+
+#include "framelint/analysis.h"
+#include "framelint/error.h"
+#include "framelint/policy.h"
+#include "framelint/report.h"
+
+namespace framelint {
+
+// One clip of a batch.
+struct GateInput {
+  int64_t index = 0;        // position in the whole (unsharded) input list
+  std::string path;         // the clip: a video file or a folder of frames
+  std::string id;           // manifest "id", else `path`; shards hash it
+  std::string prompt_id;    // "" when not given
+  std::string model;        // "" when not given
+  nlohmann::json seed;      // null when not given
+  nlohmann::json metadata = nlohmann::json::object();  // other manifest fields, as given
+  std::string origin;       // "manifest.jsonl:12" for manifest lines, else ""
+  std::string output_name;  // report file stem, unique in the batch (set by the caller)
+};
+
+struct CollectedInputs {
+  std::vector<GateInput> inputs;
+  std::vector<std::string> warnings;  // e.g. a clip named twice (kept once)
+};
+
+// Expands INPUT arguments in order: a `.jsonl` file is a manifest (one JSON
+// object per line with "path", optional "id", "prompt_id", "model", "seed"
+// and free fields; relative paths resolve against the manifest's folder); a
+// folder is searched recursively for video files (by extension) and folders
+// of numbered frames, in name order; anything else is a clip (a missing one
+// is recorded as an unreadable input when the batch runs). A bad manifest
+// line or a repeated manifest id is a usage error naming the file and line.
+Expected<CollectedInputs> collect_inputs(const std::vector<std::string>& args);
+
+// --shard I/N: 0-based I. The share of a clip is shard_of(id, N).
+struct ShardSpec {
+  int index = 0;
+  int count = 1;
+};
+// "I/N" with 0 <= I < N, or "auto/N": I from JOB_COMPLETION_INDEX
+// (Kubernetes indexed Job) or SLURM_ARRAY_TASK_ID minus SLURM_ARRAY_TASK_MIN
+// (Slurm job array), read through `getenv`.
+Expected<ShardSpec> parse_shard(const std::string& text,
+                                const std::function<const char*(const char*)>& getenv);
+// FNV-1a 64 of the id, mixed by the splitmix64 finalizer (so every bit of
+// the hash reaches the low bits used by the modulo), modulo `count`.
+uint64_t shard_hash(const std::string& id);
+uint64_t fnv1a_64(std::string_view bytes);
+int shard_of(const std::string& id, int count);
+std::vector<GateInput> select_shard(const std::vector<GateInput>& inputs, const ShardSpec& shard);
+
+// The outcome for one clip: a queue line.
+struct ClipResult {
+  GateInput input;
+  std::optional<Verdict> verdict;  // nullopt when the clip could not be judged
+  double coherence = kUndefined;
+  std::vector<std::string> reasons;
+  std::string report;  // JSON report path relative to the output folder, "" if none
+  std::optional<Error> error;
+  bool from_store = false;  // taken from the results store, not recomputed
+  std::string sha256;       // content hash, "" if the clip could not be read
+};
+
+// "pass", "review", "reject" or "error".
+std::string queue_status(const ClipResult& result);
+// One queue.jsonl line (fields in docs/gate.md) and back.
+nlohmann::json queue_line(const ClipResult& result);
+Expected<ClipResult> clip_result_from_queue_line(const nlohmann::json& line, const std::string& subject);
+
+struct GateCounts {
+  int total = 0;
+  int pass = 0;
+  int review = 0;
+  int reject = 0;
+  int error = 0;
+  int from_store = 0;
+  void add(const ClipResult& r);
+};
+
+struct GateRun {
+  std::vector<ClipResult> results;  // in input order
+  GateCounts counts;
+  std::vector<std::string> warnings;  // e.g. a store row that could not be written
+};
+
+using AnalyzeFunction = std::function<Expected<Report>(
+    const std::string& path, const AnalysisSettings&, const Policy&, const AnalysisHooks&)>;
+using ReportWriter = std::function<Status(const Report& report, const std::string& base_path)>;
+
+struct GateOptions {
+  AnalysisSettings settings;  // settings.threads = 0: max(1, cores / jobs) per clip
+  Policy policy = default_policy();
+  std::string out_dir;
+  std::string db_path;  // "" = out_dir/framelint.db
+  int jobs = 0;         // clips analysed at once; 0 = number of cores
+  AnalyzeFunction analyze;     // empty = analyze_clip
+  ReportWriter write_report;   // empty = JSON only (base_path + ".json")
+};
+
+struct GateObserver {
+  // A clip finished (called on a worker thread, one call at a time).
+  std::function<void(const ClipResult& result, const GateCounts& so_far)> on_clip_done;
+};
+
+// Runs the batch: for each input, its content hash is looked up in the store
+// (a hit re-reads the stored report; a miss, or a stored report that no
+// longer exists, analyses the clip and adds a row), its report is written to
+// out_dir/<output_name>.json, and queue.jsonl + index.html are refreshed as
+// clips finish and written once more at the end. Fails only when the output
+// folder or the store cannot be used.
+Expected<GateRun> run_gate(const std::vector<GateInput>& inputs, const GateOptions& options,
+                           const GateObserver& observer = {});
+
+// Writes out_dir/queue.jsonl (input order) and out_dir/index.html (worst
+// first), each atomically.
+Status write_queue_outputs(const std::string& out_dir, const std::vector<ClipResult>& results);
+
+// Joins the outputs of shard runs (their queue.jsonl, reports and
+// framelint.db) into out_dir: one queue in input order without duplicates,
+// one store, one index page. Reports whose names collide get a new name.
+Expected<GateRun> merge_gate_outputs(const std::vector<std::string>& shard_dirs, const std::string& out_dir);
+
+}  // namespace framelint

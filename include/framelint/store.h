@@ -1,0 +1,86 @@
+// The results store: one SQLite row per analysis, keyed by the clip's
+// content hash and the settings hash, so a clip analysed before with the same
+// settings, policy and tool version is never recomputed. Many threads of one
+// process may share a ResultStore; many processes may share one file (WAL
+// mode, busy timeout; not on network file systems, where SQLite's locking is
+// unreliable).
+#pragma once
+
+#include <cstdint>
+#include <memory>
+#include <mutex>
+#include <optional>
+#include <string>
+#include <string_view>
+#include <vector>
+
+#include <nlohmann/json.hpp>
+
+#include "framelint/analysis.h"
+#include "framelint/error.h"
+#include "framelint/policy.h"
+#include "framelint/report.h"
+
+struct sqlite3;
+
+namespace framelint {
+
+struct StoredAnalysis {
+  int64_t row_id = 0;           // set by insert()
+  std::string content_sha256;   // of the clip's bytes (content_sha256())
+  std::string settings_hash;    // settings_hash()
+  std::string tool_version;
+  std::string clip_id;
+  std::string clip_path;
+  std::string model;      // model tag, "" when unknown
+  std::string prompt_id;  // "" when unknown
+  Verdict verdict = Verdict::pass;
+  double coherence = 0;
+  std::vector<std::string> reasons;
+  nlohmann::json summary = nlohmann::json::object();  // the report's summary JSON
+  std::string report_path;  // absolute path of the JSON report
+  std::string created_at;   // ISO 8601 UTC, set by insert() when empty
+};
+
+class ResultStore {
+ public:
+  // Opens or creates the store file (and its schema). Errors name the file.
+  static Expected<std::unique_ptr<ResultStore>> open(const std::string& path);
+  ~ResultStore();
+  ResultStore(const ResultStore&) = delete;
+  ResultStore& operator=(const ResultStore&) = delete;
+
+  const std::string& path() const { return path_; }
+
+  // The newest analysis of this content under these settings, if any.
+  Expected<std::optional<StoredAnalysis>> find(const std::string& content_sha256,
+                                               const std::string& settings_hash);
+  // Adds one row in its own transaction; sets row.row_id (and created_at).
+  Status insert(StoredAnalysis& row);
+  // True if a row with the same content, settings, clip id and creation time
+  // exists (merge uses it to never copy a row twice).
+  Expected<bool> contains(const StoredAnalysis& row);
+  // Every row, oldest first.
+  Expected<std::vector<StoredAnalysis>> all();
+
+ private:
+  ResultStore(sqlite3* db, std::string path) : db_(db), path_(std::move(path)) {}
+  Status exec(const char* sql);
+  sqlite3* db_;
+  std::string path_;
+  std::mutex mutex_;  // one connection, used by one thread at a time
+};
+
+// Hex SHA-256 of a byte string.
+std::string sha256_hex(std::string_view bytes);
+
+// The store's content key of a clip: the SHA-256 of a file's bytes, or for a
+// folder of frames the SHA-256 of "<name> <sha256 of file>\n" over its
+// files in name order. Errors name the path.
+Expected<std::string> content_sha256(const std::string& clip_path);
+
+// SHA-256 of the canonical settings JSON (threads left out: they do not
+// change results), the canonical policy JSON and the tool version.
+std::string settings_hash(const AnalysisSettings& settings, const Policy& policy);
+
+}  // namespace framelint
