@@ -9,11 +9,13 @@ namespace framelint::cli {
 // Each command lives in its own file; one line here registers it.
 int run_analyze(const std::vector<std::string>& args);
 int run_probe(const std::vector<std::string>& args);
+int run_inspect(const std::vector<std::string>& args);
 
 const std::vector<Command>& commands() {
   static const std::vector<Command> table = {
       {"analyze", "analyze clips; write a JSON and an HTML report per clip", run_analyze},
       {"probe", "print what a clip's container holds, as JSON", run_probe},
+      {"inspect", "write PNG panels (flow, warp, error, occlusion) for one frame", run_inspect},
   };
   return table;
 }

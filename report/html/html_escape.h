@@ -1,0 +1,22 @@
+// Text that goes into an HTML page: escaping for element text and attribute
+// values, and base64 for data: URIs. Every string that comes from an input
+// (file names, prompts, reasons) passes through html_escape before it is
+// written into a page, so it always reads as text and never as markup.
+#pragma once
+
+#include <string>
+#include <string_view>
+
+namespace framelint {
+
+// Replaces & < > " ' with character references. Safe for element text and
+// for attribute values in double or single quotes.
+std::string html_escape(std::string_view text);
+
+// Standard base64 (RFC 4648, section 4) with '=' padding, no line breaks.
+std::string base64_encode(std::string_view bytes);
+
+// "data:<mime>;base64,<payload>" for embedding an image in a page.
+std::string data_uri(std::string_view mime, std::string_view bytes);
+
+}  // namespace framelint
