@@ -1,6 +1,7 @@
 #include "analyzer/inspect/panels.h"
 
 #include <algorithm>
+#include <cmath>
 #include <cstdio>
 
 #include <opencv2/imgproc.hpp>
@@ -37,7 +38,7 @@ cv::Mat warp_error_map(const cv::Mat& current_bgr, const cv::Mat& warped_previou
   cv::subtract(a, b, diff);
   cv::multiply(diff, diff, diff);
   cv::Mat error(current_bgr.size(), CV_32FC1);
-  cv::transform(diff, error, cv::Matx13f(1.f / 3, 1.f / 3, 1.f / 3));  // mean of the channels
+  cv::transform(diff, error, cv::Matx13f(1.f, 1.f, 1.f));  // sum over the channels
   return error;
 }
 
@@ -45,6 +46,8 @@ cv::Mat warp_error_heat_image(const cv::Mat& error_map, const cv::Mat& valid) {
   cv::Mat unit;
   error_map.convertTo(unit, CV_32F, 1.0 / kWarpErrorHeatMax);
   cv::min(unit, 1.0, unit);
+  cv::max(unit, 0.0, unit);
+  cv::sqrt(unit, unit);  // colour position = RGB distance / sqrt(max): small errors stay visible
   cv::Mat heat = apply_heat_scale(unit);
   if (!valid.empty()) {
     for (int y = 0; y < heat.rows; ++y) {
@@ -105,18 +108,26 @@ cv::Mat warp_error_colour_bar(int width_px, int height_px, bool with_labels) {
   if (!with_labels) return out;
   const cv::Scalar ink(40, 40, 40);
   const double scale = 0.4;
-  auto put = [&](const std::string& text, int x, int y) {
-    cv::putText(out, text, {x, y}, cv::FONT_HERSHEY_SIMPLEX, scale, ink, 1, cv::LINE_AA);
-  };
-  char max_label[32];
-  std::snprintf(max_label, sizeof max_label, "%g+", kWarpErrorHeatMax);
-  int baseline = 0;
-  const int max_w = cv::getTextSize(max_label, cv::FONT_HERSHEY_SIMPLEX, scale, 1, &baseline).width;
-  put("0", 2, bar_h + 13);
-  put(max_label, width_px - max_w - 2, bar_h + 13);
-  put("squared RGB error per pixel (mean of R,G,B in 0-1); grey stripes: occluded", 2, bar_h + 29);
+  const int margin = 4;
+  // Ticks at colour positions 0, 0.2, ..., 1: squared errors max * p^2.
+  for (const double position : warp_error_tick_positions()) {
+    char label[32];
+    std::snprintf(label, sizeof label, position >= 1 ? ">=%g" : "%g", warp_error_at_position(position));
+    int baseline = 0;
+    const int w = cv::getTextSize(label, cv::FONT_HERSHEY_SIMPLEX, scale, 1, &baseline).width;
+    const int x = static_cast<int>(std::lround(position * (width_px - 1)));
+    cv::line(out, {x, bar_h - 4}, {x, bar_h + 2}, ink);
+    const int text_x = std::clamp(x - w / 2, margin, width_px - w - margin);
+    cv::putText(out, label, {text_x, bar_h + 14}, cv::FONT_HERSHEY_SIMPLEX, scale, ink, 1, cv::LINE_AA);
+  }
+  cv::putText(out, "warp error per pixel: squared RGB difference (sum over R,G,B in 0-1)", {margin, bar_h + 30},
+              cv::FONT_HERSHEY_SIMPLEX, scale, ink, 1, cv::LINE_AA);
   return out;
 }
+
+std::vector<double> warp_error_tick_positions() { return {0, 0.2, 0.4, 0.6, 0.8, 1.0}; }
+
+double warp_error_at_position(double position) { return kWarpErrorHeatMax * position * position; }
 
 cv::Mat flow_colour_key(int size_px) { return flow_colour_wheel_image(size_px); }
 

@@ -16,13 +16,16 @@
 
 namespace framelint {
 
-// Per-pixel warp error shown by the heat map: the mean over R, G, B (each in
-// [0, 1]) of the squared difference between the current frame and the
-// warped previous frame, the per-pixel term of the warping error of Lai et
-// al. (ECCV 2018). The colour scale is fixed so that heat maps of different
-// frames and clips compare: 0 (dark) to kWarpErrorHeatMax (bright, and
-// everything above it).
-inline constexpr double kWarpErrorHeatMax = 0.1;
+// Per-pixel warp error shown by the heat map: the squared difference between
+// the current frame and the warped previous frame, summed over R, G, B (each
+// in [0, 1], so 0 to 3): the per-pixel term of the warping error of Lai et
+// al. (ECCV 2018), whose mean over non-occluded pixels is the warp_error
+// metric. The colour scale is fixed so that heat maps of different frames
+// and clips compare: 0 (dark) to kWarpErrorHeatMax (bright, and everything
+// above it; 0.25 is an RGB distance of 0.5), with colour position
+// sqrt(error / max) so that small errors stay visible; the colour bar's
+// ticks give the squared error.
+inline constexpr double kWarpErrorHeatMax = 0.25;
 
 struct FramePanels {
   int64_t frame_index = 0;

@@ -72,7 +72,14 @@ std::string facts_block(const Report& report, const HtmlOptions& options) {
   if (st.mismatch_s && *st.mismatch_s > 0) audio += ", differs from video by " + seconds(*st.mismatch_s);
   if (c.audio.silent_from_s) audio += ", silent from " + seconds(*c.audio.silent_from_s);
   out += fact("audio", audio);
-  out += fact("analysis", "<code>" + html_escape(report.settings.dump()) + "</code>");
+  std::string settings;
+  if (report.settings.is_object())
+    for (const auto& [k, v] : report.settings.items()) {
+      if (v.is_null()) continue;
+      settings += (settings.empty() ? "" : " \u00b7 ") + html_escape(k) + " " +
+                  html_escape(v.is_string() ? v.get<std::string>() : v.dump());
+    }
+  out += fact("analysis settings", settings.empty() ? "\u2014" : settings);
   if (!c.sha256.empty()) out += fact("sha256", "<code class=\"hash\">" + html_escape(c.sha256) + "</code>");
   return out + "</dl>\n</section>\n";
 }

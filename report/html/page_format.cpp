@@ -36,8 +36,9 @@ std::string pct(double fraction) {
 
 std::string metric_description(const std::string& metric) {
   if (metric == "warp_error")
-    return "Warping error (Lai et al. 2018): mean squared RGB difference (0\u20131) between the "
-           "frame and the previous frame warped onto it by optical flow, over non-occluded pixels.";
+    return "Warping error (Lai et al. 2018): squared RGB difference (channels 0\u20131, summed) "
+           "between the frame and the previous frame warped onto it by optical flow, mean over "
+           "non-occluded pixels.";
   if (metric.rfind("warp_error_", 0) == 0)
     return "Long-range warping error: as warp_error, across several frames.";
   if (metric == "occluded_pct")

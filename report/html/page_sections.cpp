@@ -2,6 +2,7 @@
 #include <algorithm>
 #include <cmath>
 
+#include "analyzer/inspect/panels.h"
 #include "report/html/html_escape.h"
 #include "report/html/object_boxes.h"
 #include "report/html/page_parts.h"
@@ -22,6 +23,17 @@ std::string severity_tag(Severity s) {
 }
 
 std::string frame_ref(int64_t frame) { return "frame\u00a0" + std::to_string(frame); }
+
+// The heat map's scale: ticks evenly spaced along the bar, labelled with the
+// squared error each position stands for (the bar is in sqrt units).
+std::string colour_bar_html() {
+  std::string ticks;
+  for (double position : warp_error_tick_positions())
+    ticks += "<span>" + std::string(position >= 1 ? "\u2265\u00a0" : "") + num(warp_error_at_position(position)) +
+             "</span>";
+  return "<div class=\"colour-bar\" role=\"img\" aria-label=\"colour scale of the squared error from 0 to " +
+         num(kWarpErrorHeatMax) + " and above\"></div><div class=\"scale\">" + ticks + "</div>";
+}
 
 std::string looks_block(const PanelImages& p) {
   if (p.objects.empty()) return "";
@@ -63,26 +75,17 @@ std::string panel_set(const Report& report, const PanelImages& p) {
   out += "<p class=\"nums\">At this frame: warp error " + num(p.mean_warp_error) +
          " (non-occluded pixels) \u00b7 occluded " + num(p.occluded_pct) + "\u00a0% \u00b7 fastest motion " +
          num(p.max_flow_px) + "\u00a0px per frame</p>\n<div class=\"figs\">\n";
-  out += figure(p.previous, "previous frame", "<b>Previous</b> " + frame_ref(p.frame_index - 1));
-  out += figure(p.current, "current frame", "<b>Current</b> " + frame_ref(p.frame_index));
+  out += figure(p.previous, "previous frame", "<b>Previous</b> \u00b7 " + frame_ref(p.frame_index - 1));
+  out += figure(p.current, "current frame", "<b>Current</b> \u00b7 " + frame_ref(p.frame_index));
   out += figure(p.warped_previous, "previous frame warped onto the current one",
-                "<b>Previous warped onto current</b> by optical flow: where it differs from the current "
-                "frame, motion does not explain the change");
+                "<b>Previous warped onto current</b>");
   out += figure(p.warp_error_heat, "warp error heat map",
-                "<b>Warp error</b> per pixel: squared RGB difference of current and warped previous, "
-                "mean of R, G, B (each 0\u20131). Grey stripes: occluded, not counted.",
-                "<div class=\"colour-bar\" role=\"img\" aria-label=\"colour scale from 0 to " +
-                    num(kWarpErrorHeatMax) + " and above\"></div><div class=\"scale\"><span>0</span><span>" +
-                    num(kWarpErrorHeatMax / 2) + "</span><span>\u2265\u00a0" + num(kWarpErrorHeatMax) +
-                    "</span></div>");
+                "<b>Warp error</b> \u00b7 squared RGB difference per pixel",
+                colour_bar_html());
   out += figure(p.flow_colour, "optical flow in the Middlebury colour coding",
-                "<b>Motion</b> previous\u2009\u2192\u2009current, Middlebury colour coding (Baker et al. "
-                "2011): hue is the direction (wheel: right red, down yellow, left cyan, up blue), "
-                "white is still, full colour is " + num(p.max_flow_px) + "\u00a0px.",
+                "<b>Motion</b> \u00b7 full colour\u00a0=\u00a0" + num(p.max_flow_px) + "\u00a0px per frame",
                 "<div class=\"wheel\" role=\"img\" aria-label=\"flow colour wheel\"></div>");
-  out += figure(p.occlusion, "occlusion mask",
-                "<b>Occlusion</b>: red pixels fail the forward\u2013backward flow check (Sundaram et "
-                "al. 2010): uncovered, covered or badly tracked; the warp error leaves them out.");
+  out += figure(p.occlusion, "occlusion mask", "<b>Occlusion</b> \u00b7 red: not counted");
   return out + "</div>\n" + looks_block(p) + "</section>\n";
 }
 
@@ -99,6 +102,7 @@ bool is_scalar(const nlohmann::json& v) { return v.is_primitive(); }
 }  // namespace
 
 std::string panels_section(const Report& report, const HtmlAssets& assets) {
+  // Every set carries short captions; the explanation is given once.
   if (report.segments.empty()) return "";
   std::string out = "<section class=\"panels\" aria-labelledby=\"h-panels\">\n<h2 id=\"h-panels\">Worst "
                     "frames of the flagged segments</h2>\n";
@@ -107,8 +111,25 @@ std::string panels_section(const Report& report, const HtmlAssets& assets) {
     out += assets.notes.empty() ? "." : ": " + html_escape(assets.notes.front());
     return out + "</p>\n</section>\n";
   }
-  out += "<p class=\"hint\">Worst first. Each set shows the segment's peak frame as the analysis saw it "
-         "(working size), with the previous frame, the warp, its error and the flow.</p>\n";
+  out += "<details class=\"card how-to\" open><summary>How to read these pictures</summary><dl>"
+         "<dt>Previous, current</dt><dd>The two frames of the pair, at the analysis working size; the "
+         "sets are ordered worst first.</dd>"
+         "<dt>Previous warped onto current</dt><dd>The previous frame moved by the optical flow so it "
+         "should look like the current one. Where it does not, motion does not explain the "
+         "change.</dd>"
+         "<dt>Warp error</dt><dd>Per pixel, the squared difference of current and warped previous "
+         "summed over R, G and B (each 0\u20131), on a fixed scale from 0 (dark) to " +
+         num(kWarpErrorHeatMax) + " and above (bright), so sets and clips compare; the scale is "
+         "stretched (square root) so that small errors show. Its mean over the "
+         "counted pixels is the frame's warp_error (Lai et al. 2018). Grey stripes are occluded "
+         "pixels, which are not counted.</dd>"
+         "<dt>Motion</dt><dd>The optical flow from previous to current in the Middlebury colour coding "
+         "(Baker et al. 2011): hue gives the direction (see the wheel: right red, down yellow, left "
+         "cyan, up violet), saturation the speed; white is still; full colour is the fastest motion "
+         "in the frame, given under the picture.</dd>"
+         "<dt>Occlusion</dt><dd>Red pixels fail the forward\u2013backward flow check (Sundaram et al. "
+         "2010): newly uncovered, covered, or badly tracked. They are left out of the warp "
+         "error.</dd></dl></details>\n";
   for (const auto& p : assets.panels) out += panel_set(report, p);
   return out + "</section>\n";
 }
