@@ -8,10 +8,14 @@ function(framelint_embed_assets out_var)
   endforeach()
   list(SORT files)
   set(out ${PROJECT_BINARY_DIR}/generated/framelint_assets.cpp)
+  # A list would be split into separate arguments of the command; pass it
+  # joined with '|' (not a path character we use) and split it in the script.
+  string(REPLACE ";" "|" files_arg "${files}")
   add_custom_command(
     OUTPUT ${out}
-    COMMAND ${CMAKE_COMMAND} -DOUT=${out} "-DFILES=${files}" -P ${PROJECT_SOURCE_DIR}/cmake/embed_assets.cmake
+    COMMAND ${CMAKE_COMMAND} -DOUT=${out} "-DFILES=${files_arg}" -P ${PROJECT_SOURCE_DIR}/cmake/embed_assets.cmake
     DEPENDS ${files} ${PROJECT_SOURCE_DIR}/cmake/embed_assets.cmake
-    COMMENT "Embedding report assets")
+    COMMENT "Embedding report assets"
+    VERBATIM)
   set(${out_var} ${out} PARENT_SCOPE)
 endfunction()

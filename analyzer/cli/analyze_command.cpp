@@ -58,6 +58,8 @@ int run_analyze(const std::vector<std::string>& args) {
     ProgressLine progress(clip, quiet || !stderr_is_terminal());
     AnalysisHooks hooks;
     hooks.on_progress = [&](int64_t done, int64_t expected) { progress.update(done, expected); };
+    ThumbnailCollector thumbnails;  // a few small JPEGs for the page's strip
+    if (html) hooks.on_frame = [&](const DecodedFrame& frame) { thumbnails.add(frame); };
     auto report = analyze_clip(clip, options->settings, options->policy, hooks);
     progress.finish();
     if (!report) {
@@ -66,15 +68,18 @@ int run_analyze(const std::vector<std::string>& args) {
       continue;
     }
     const std::string base = (std::filesystem::path(out_dir) / namer.unique_name(clip)).string();
-    auto written = write_reports(*report, base, html);
+    ReportExtras extras;
+    extras.settings = &options->settings;
+    extras.thumbnails = &thumbnails;
+    auto written = write_reports(*report, base, html, extras);
     if (!written) {
       print_error(written.error().message());
       status = kExitInputError;
       continue;
     }
     if (!quiet)
-      std::printf("%s: %s (coherence %.1f) -> %s.json\n", clip.c_str(), to_string(report->verdict.status),
-                  report->summary.coherence, base.c_str());
+      std::printf("%s: %s (coherence %.1f) -> %s.json%s\n", clip.c_str(), to_string(report->verdict.status),
+                  report->summary.coherence, base.c_str(), html ? (", " + base + ".html").c_str() : "");
     if (report->verdict.status == Verdict::reject && status == kExitOk) status = kExitGateFailed;
   }
   return status;

@@ -11,6 +11,7 @@ int run_analyze(const std::vector<std::string>& args);
 int run_probe(const std::vector<std::string>& args);
 int run_gate(const std::vector<std::string>& args);
 int run_merge(const std::vector<std::string>& args);
+int run_inspect(const std::vector<std::string>& args);
 
 const std::vector<Command>& commands() {
   static const std::vector<Command> table = {
@@ -18,6 +19,7 @@ const std::vector<Command>& commands() {
       {"probe", "print what a clip's container holds, as JSON", run_probe},
       {"gate", "judge a batch of clips into a review queue (queue.jsonl, index.html)", run_gate},
       {"merge", "join the outputs of gate shards into one queue", run_merge},
+      {"inspect", "write PNG panels (flow, warp, error, occlusion) for one frame", run_inspect},
   };
   return table;
 }

@@ -1,10 +1,12 @@
 #include "report/html/html_escape.h"
 
+#include <cstdint>
+
 namespace framelint {
 
 std::string html_escape(std::string_view text) {
   std::string out;
-  out.reserve(text.size());
+  out.reserve(text.size() + text.size() / 8);
   for (char c : text) {
     switch (c) {
       case '&': out += "&amp;"; break;
@@ -33,6 +35,41 @@ std::string url_escape_path(std::string_view path) {
     }
   }
   return html_escape(out);
+}
+
+std::string base64_encode(std::string_view bytes) {
+  static constexpr char kAlphabet[] =
+      "ABCDEFGHIJKLMNOPQRSTUVWXYZabcdefghijklmnopqrstuvwxyz0123456789+/";
+  std::string out;
+  out.reserve((bytes.size() + 2) / 3 * 4);
+  size_t i = 0;
+  // Three bytes become four 6-bit symbols (RFC 4648, section 4).
+  for (; i + 3 <= bytes.size(); i += 3) {
+    const uint32_t n = (uint32_t(uint8_t(bytes[i])) << 16) | (uint32_t(uint8_t(bytes[i + 1])) << 8) |
+                       uint32_t(uint8_t(bytes[i + 2]));
+    out.push_back(kAlphabet[(n >> 18) & 63]);
+    out.push_back(kAlphabet[(n >> 12) & 63]);
+    out.push_back(kAlphabet[(n >> 6) & 63]);
+    out.push_back(kAlphabet[n & 63]);
+  }
+  const size_t rest = bytes.size() - i;
+  if (rest > 0) {
+    uint32_t n = uint32_t(uint8_t(bytes[i])) << 16;
+    if (rest == 2) n |= uint32_t(uint8_t(bytes[i + 1])) << 8;
+    out.push_back(kAlphabet[(n >> 18) & 63]);
+    out.push_back(kAlphabet[(n >> 12) & 63]);
+    out.push_back(rest == 2 ? kAlphabet[(n >> 6) & 63] : '=');
+    out.push_back('=');
+  }
+  return out;
+}
+
+std::string data_uri(std::string_view mime, std::string_view bytes) {
+  std::string out = "data:";
+  out += mime;
+  out += ";base64,";
+  out += base64_encode(bytes);
+  return out;
 }
 
 }  // namespace framelint

@@ -1,0 +1,129 @@
+// The per-clip HTML page: one self-contained file (inline CSS and SVG,
+// images as data: URIs, a little inline script, a Content-Security-Policy
+// that forbids everything else) that shows a reviewer where a clip goes
+// wrong and why.
+//
+// The report holds numbers only; the page also needs pixels. They are
+// gathered in two cheap steps, so analysis memory stays bounded:
+//   1. during analysis, a ThumbnailCollector on AnalysisHooks::on_frame keeps
+//      a few small JPEG thumbnails (at most max_count, thinned as the clip
+//      grows);
+//   2. after analysis, collect_html_assets() decodes the clip once more and
+//      builds frame pairs only at the worst frames of the flagged segments
+//      (and crops objects' first looks), as `framelint inspect` does.
+// render_clip_page() then writes the page from the report and the assets.
+#pragma once
+
+#include <cstdint>
+#include <string>
+#include <utility>
+#include <vector>
+
+#include <opencv2/core.hpp>
+
+#include "framelint/analysis.h"
+#include "framelint/clip_source.h"
+#include "framelint/error.h"
+#include "framelint/inspect.h"
+#include "framelint/report.h"
+
+namespace framelint {
+
+// A compressed image ready for a data: URI.
+struct EncodedImage {
+  std::string mime;   // "image/jpeg" or "image/png"
+  std::string bytes;  // the file's bytes
+  int width_px = 0;
+  int height_px = 0;
+  bool empty() const { return bytes.empty(); }
+};
+EncodedImage encode_jpeg(const cv::Mat& bgr, int quality);
+EncodedImage encode_png(const cv::Mat& image);
+
+struct Thumbnail {
+  int64_t frame_index = 0;
+  double t_s = 0;
+  EncodedImage image;
+};
+
+// Keeps one thumbnail every `interval` frames; when more than max_count
+// would be kept, the interval doubles and every other thumbnail is dropped,
+// so memory is bounded whatever the clip's length.
+class ThumbnailCollector {
+ public:
+  explicit ThumbnailCollector(int max_count = 16, int width_px = 160, int jpeg_quality = 70);
+  void add(const DecodedFrame& frame);  // usable as AnalysisHooks::on_frame
+  const std::vector<Thumbnail>& thumbnails() const { return thumbnails_; }
+  int64_t interval_frames() const { return interval_; }
+
+ private:
+  int max_count_;
+  int width_px_;
+  int jpeg_quality_;
+  int64_t interval_ = 1;
+  std::vector<Thumbnail> thumbnails_;
+};
+
+// A tracked object seen at a panel's frame (drift).
+struct ObjectLook {
+  int object_id = 0;
+  cv::Rect box_px;            // at the panel's frame, working-frame pixels
+  int64_t first_frame = 0;
+  EncodedImage first_look;    // the object's box at its first frame
+  EncodedImage current_look;  // the object's box at the panel's frame
+};
+
+// The panels of one frame, encoded for the page (see FramePanels).
+struct PanelImages {
+  int64_t frame_index = 0;
+  double t_s = 0;
+  bool has_previous = false;
+  EncodedImage previous, current, warped_previous, warp_error_heat, flow_colour, occlusion;
+  EncodedImage current_with_boxes;  // drift: the current frame with object boxes
+  std::vector<ObjectLook> objects;
+  double max_flow_px = 0;
+  double mean_warp_error = 0;
+  double occluded_pct = 0;
+};
+
+struct HtmlAssets {
+  std::vector<Thumbnail> thumbnails;
+  std::vector<PanelImages> panels;  // one per shown frame
+  std::vector<std::string> notes;   // e.g. why pictures are missing
+};
+
+struct HtmlOptions {
+  // Extra facts shown with the clip's own, e.g. {"prompt", "..."} from a
+  // gate manifest. Shown as text, always escaped.
+  std::vector<std::pair<std::string, std::string>> facts;
+  int max_panel_sets = 8;   // flagged segments shown with pictures, worst first
+  int panel_width_px = 320;
+  int jpeg_quality = 80;
+};
+
+// The frames whose panels the page shows: the peak frames of the segments,
+// worst first (reject, review, info; then longer first), without repeats,
+// at most options.max_panel_sets.
+std::vector<int64_t> panel_frames(const Report& report, const HtmlOptions& options);
+
+// Encodes panels (downscaled to options.panel_width_px) for the page and adds
+// the drift looks of objects present at that frame.
+PanelImages encode_panels(const FramePanels& panels, const Report& report, const HtmlOptions& options);
+
+// Step 2 above. `thumbnails` are those collected during analysis; when empty
+// they are collected in this pass. Never fails: if the clip cannot be read
+// again, the assets carry a note saying so and the page is written without
+// pictures.
+HtmlAssets collect_html_assets(const Report& report, const AnalysisSettings& settings,
+                               const HtmlOptions& options, std::vector<Thumbnail> thumbnails);
+
+// The page's text.
+std::string render_clip_page(const Report& report, const HtmlAssets& assets,
+                             const HtmlOptions& options);
+
+// collect_html_assets + render_clip_page, written atomically to `path`.
+Status write_html_report(const Report& report, const std::string& path,
+                         const AnalysisSettings& settings, const HtmlOptions& options,
+                         const ThumbnailCollector* thumbnails);
+
+}  // namespace framelint

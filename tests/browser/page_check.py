@@ -1,0 +1,230 @@
+#!/usr/bin/python3
+"""Loads a framelint page in headless Chromium and reports what happened.
+
+Usage: page_check.py CHROMIUM PAGE.html SCREENSHOT.png
+
+Drives Chromium over the DevTools protocol on a pipe (--remote-debugging-pipe:
+JSON messages separated by NUL bytes on fds 3 and 4), so only the Python
+standard library is needed. Prints one JSON object: console errors, uncaught
+exceptions, CSP violations, every request that is not a data: URI or the page
+itself, calls to alert(), and facts read from the DOM, including the effect
+of pressing "n" (next flagged segment). Exits 0 when the page was checked,
+1 when the browser could not be driven (the message says why).
+"""
+import base64
+import fcntl
+import json
+import os
+import pathlib
+import select
+import shutil
+import subprocess
+import sys
+import tempfile
+import time
+
+DEADLINE_S = 25
+
+# Runs in the page before its own scripts (DevTools-injected, so the page's
+# CSP does not apply to it): records CSP violations and alert() calls.
+PRELUDE = """
+window.__violations = [];
+window.__alerts = [];
+document.addEventListener('securitypolicyviolation', function (e) {
+  window.__violations.push(e.violatedDirective + ' blocked ' + (e.blockedURI || 'inline'));
+});
+window.alert = function (m) { window.__alerts.push(String(m)); };
+"""
+
+# Read after load; returns facts about the DOM.
+DOM_FACTS = """
+(function () {
+  function text(sel) { var e = document.querySelector(sel); return e ? e.textContent : null; }
+  var imgs = Array.prototype.slice.call(document.images);
+  return JSON.stringify({
+    markers: document.querySelectorAll('.seg-marker').length,
+    segment_rows: document.querySelectorAll('tr[id^="seg-"]').length,
+    panel_sets: document.querySelectorAll('.panel-set').length,
+    title: document.title,
+    h1: text('h1'),
+    facts: text('.facts'),
+    notes: document.getElementById('h-notes') ? document.getElementById('h-notes').parentNode.textContent : '',
+    caution: text('.caution'),
+    non_data_images: imgs.filter(function (i) { return i.src.indexOf('data:') !== 0; }).length,
+    broken_images: imgs.filter(function (i) { return !(i.complete && i.naturalWidth > 0); }).length,
+    images: imgs.length,
+    elements_with_onerror: document.querySelectorAll('[onerror]').length,
+    injected_bold: document.querySelectorAll('.facts b, h1 img, .facts img, .facts script').length,
+    scripts: document.scripts.length,
+    violations: window.__violations,
+    alerts: window.__alerts,
+    page_height: document.documentElement.scrollHeight
+  });
+})()
+"""
+
+AFTER_KEY = """
+JSON.stringify({
+  focused_marker: document.activeElement && document.activeElement.classList.contains('seg-marker'),
+  focused_seg: document.activeElement ? document.activeElement.getAttribute('data-seg') : null,
+  readout: document.getElementById('readout') ? document.getElementById('readout').textContent : '',
+  cursor_visible: !!document.getElementById('tl-cursor') && !document.getElementById('tl-cursor').hidden,
+  violations: window.__violations
+})
+"""
+
+
+class Browser:
+    def __init__(self, chromium, profile):
+        to_browser_r, self.to_browser = os.pipe()
+        self.from_browser, from_browser_w = os.pipe()
+
+        def wire_fds():
+            # The pipe ends may already sit on 3 or 4: move them out of the
+            # way first, then place them and make them survive exec.
+            high_r = fcntl.fcntl(to_browser_r, fcntl.F_DUPFD, 10)
+            high_w = fcntl.fcntl(from_browser_w, fcntl.F_DUPFD, 10)
+            os.dup2(high_r, 3, inheritable=True)
+            os.dup2(high_w, 4, inheritable=True)
+
+        args = [chromium, '--headless', '--no-sandbox', '--disable-gpu', '--disable-quic',
+                '--no-first-run', '--disable-background-networking', '--disable-component-update',
+                '--disable-sync', '--disable-extensions', '--disable-default-apps',
+                '--host-resolver-rules=MAP * ~NOTFOUND', '--remote-debugging-pipe',
+                '--user-data-dir=' + profile, '--hide-scrollbars', 'about:blank']
+        # Python's own fds are not inheritable, so only 0-4 reach the browser.
+        self.proc = subprocess.Popen(args, preexec_fn=wire_fds, close_fds=False,
+                                     stdin=subprocess.DEVNULL, stdout=subprocess.DEVNULL,
+                                     stderr=(None if os.environ.get("PAGE_CHECK_VERBOSE") else subprocess.DEVNULL))
+        os.close(to_browser_r)
+        os.close(from_browser_w)
+        self.next_id = 0
+        self.buffer = b''
+        self.events = []
+        self.deadline = time.monotonic() + DEADLINE_S
+
+    def send(self, method, params=None, session=None):
+        self.next_id += 1
+        msg = {'id': self.next_id, 'method': method, 'params': params or {}}
+        if session:
+            msg['sessionId'] = session
+        os.write(self.to_browser, json.dumps(msg).encode() + b'\0')
+        return self.next_id
+
+    def _read_message(self):
+        while b'\0' not in self.buffer:
+            left = self.deadline - time.monotonic()
+            if left <= 0:
+                raise TimeoutError('the browser did not answer within %d s' % DEADLINE_S)
+            ready, _, _ = select.select([self.from_browser], [], [], left)
+            if not ready:
+                continue
+            chunk = os.read(self.from_browser, 1 << 20)
+            if not chunk:
+                raise EOFError('the browser closed the DevTools pipe')
+            self.buffer += chunk
+        raw, self.buffer = self.buffer.split(b'\0', 1)
+        return json.loads(raw)
+
+    def call(self, method, params=None, session=None):
+        want = self.send(method, params, session)
+        while True:
+            msg = self._read_message()
+            if msg.get('id') == want:
+                if 'error' in msg:
+                    raise RuntimeError('%s failed: %s' % (method, msg['error']))
+                return msg.get('result', {})
+            self.events.append(msg)
+
+    def wait_event(self, method, session):
+        for i, ev in enumerate(self.events):
+            if ev.get('method') == method and ev.get('sessionId') == session:
+                return self.events.pop(i)
+        while True:
+            msg = self._read_message()
+            if msg.get('method') == method and msg.get('sessionId') == session:
+                return msg
+            self.events.append(msg)
+
+    def close(self):
+        try:
+            self.send('Browser.close')
+            self.proc.wait(timeout=5)
+        except Exception:
+            self.proc.kill()
+            self.proc.wait()
+
+
+def evaluate(browser, session, expression):
+    result = browser.call('Runtime.evaluate', {'expression': expression, 'returnByValue': True}, session)
+    if 'exceptionDetails' in result:
+        raise RuntimeError('evaluating a check failed: %s' % result['exceptionDetails'])
+    return json.loads(result['result']['value'])
+
+
+def check(chromium, page, screenshot):
+    profile = tempfile.mkdtemp(prefix='framelint-chromium-')
+    browser = Browser(chromium, profile)
+    try:
+        target = browser.call('Target.createTarget', {'url': 'about:blank'})['targetId']
+        session = browser.call('Target.attachToTarget', {'targetId': target, 'flatten': True})['sessionId']
+        for domain in ('Page', 'Runtime', 'Log', 'Network'):
+            browser.call(domain + '.enable', {}, session)
+        browser.call('Page.addScriptToEvaluateOnNewDocument', {'source': PRELUDE}, session)
+        browser.call('Emulation.setDeviceMetricsOverride',
+                     {'width': 1280, 'height': 900, 'deviceScaleFactor': 1, 'mobile': False}, session)
+        page_url = pathlib.Path(page).resolve().as_uri()
+        browser.call('Page.navigate', {'url': page_url}, session)
+        browser.wait_event('Page.loadEventFired', session)
+        dom = evaluate(browser, session, DOM_FACTS)
+        # Keyboard: "n" focuses the first flagged segment.
+        for kind in ('keyDown', 'keyUp'):
+            browser.call('Input.dispatchKeyEvent',
+                         {'type': kind, 'key': 'n', 'code': 'KeyN', 'text': 'n' if kind == 'keyDown' else '',
+                          'windowsVirtualKeyCode': 78}, session)
+        after_key = evaluate(browser, session, AFTER_KEY)
+        browser.call('Runtime.evaluate', {'expression': 'document.activeElement.blur(); window.scrollTo(0, 0)'},
+                     session)
+        height = min(int(dom['page_height']), 16000)
+        browser.call('Emulation.setDeviceMetricsOverride',
+                     {'width': 1280, 'height': height, 'deviceScaleFactor': 1, 'mobile': False}, session)
+        shot = browser.call('Page.captureScreenshot', {'format': 'png'}, session)
+        pathlib.Path(screenshot).write_bytes(base64.b64decode(shot['data']))
+        # Let late console messages arrive.
+        browser.call('Runtime.evaluate', {'expression': '1'}, session)
+    finally:
+        browser.close()
+        shutil.rmtree(profile, ignore_errors=True)
+
+    console_errors, exceptions, log_errors, requests = [], [], [], []
+    for ev in browser.events:
+        method, params = ev.get('method'), ev.get('params', {})
+        if method == 'Runtime.consoleAPICalled' and params.get('type') in ('error', 'assert'):
+            console_errors.append(' '.join(str(a.get('value', a.get('description', ''))) for a in params['args']))
+        elif method == 'Runtime.exceptionThrown':
+            exceptions.append(params['exceptionDetails'].get('text', '') + ' ' +
+                              str(params['exceptionDetails'].get('exception', {}).get('description', '')))
+        elif method == 'Log.entryAdded' and params['entry'].get('level') in ('error', 'warning'):
+            log_errors.append(params['entry'].get('source', '') + ': ' + params['entry'].get('text', ''))
+        elif method == 'Network.requestWillBeSent':
+            url = params['request']['url']
+            if not url.startswith('data:') and url != page_url:
+                requests.append(url)
+    return {'console_errors': console_errors, 'exceptions': exceptions, 'log_errors': log_errors,
+            'requests': requests, 'dom': dom, 'after_key': after_key}
+
+
+def main():
+    if len(sys.argv) != 4:
+        print(__doc__, file=sys.stderr)
+        return 2
+    try:
+        print(json.dumps(check(*sys.argv[1:4])))
+    except Exception as e:  # one line for the test's failure message
+        print('page_check: %s: %s' % (type(e).__name__, e), file=sys.stderr)
+        return 1
+    return 0
+
+
+if __name__ == '__main__':
+    sys.exit(main())

@@ -1,0 +1,167 @@
+// The per-clip page as text: self-contained, escaped, one marker per
+// segment, bounded size. Its behaviour in a real browser is checked in
+// tests/browser/. The report and pictures are the invented fixture of
+// tests/support/html_fixtures.* (only the page writer is under test).
+#include <gtest/gtest.h>
+
+#include <fstream>
+#include <regex>
+
+#include "framelint/html_report.h"
+#include "report/html/csp.h"
+#include "report/html/object_boxes.h"
+#include "support/html_fixtures.h"
+
+using namespace framelint;
+
+namespace {
+
+size_t count(const std::string& text, const std::string& needle) {
+  size_t n = 0;
+  for (size_t at = text.find(needle); at != std::string::npos; at = text.find(needle, at + 1)) ++n;
+  return n;
+}
+
+std::string between(const std::string& text, const std::string& open, const std::string& close) {
+  const size_t a = text.find(open);
+  if (a == std::string::npos) return "";
+  const size_t b = text.find(close, a + open.size());
+  return b == std::string::npos ? "" : text.substr(a + open.size(), b - a - open.size());
+}
+
+// Built once: rendering the scene's pairs takes a moment.
+struct PageFixture : ::testing::Test {
+  struct Shared {
+    fixtures::SyntheticScene scene;
+    HtmlOptions options;
+    Report report;
+    HtmlAssets assets;
+    std::string html;
+  };
+  static const Shared& shared() {
+    static const Shared s = [] {
+      Shared s;
+      s.options.facts = {{"prompt", fixtures::kHostilePrompt}};
+      s.report = fixtures::synthetic_report(s.scene, std::string("clips/") + fixtures::kHostileClipName);
+      s.assets = fixtures::synthetic_assets(s.report, s.scene, s.options);
+      s.html = render_clip_page(s.report, s.assets, s.options);
+      return s;
+    }();
+    return s;
+  }
+  const fixtures::SyntheticScene& scene = shared().scene;
+  const HtmlOptions& options = shared().options;
+  const Report& report = shared().report;
+  const HtmlAssets& assets = shared().assets;
+  const std::string& html = shared().html;
+};
+
+}  // namespace
+
+TEST_F(PageFixture, OneMarkerPerSegmentAndOnePanelSetPerPeakFrame) {
+  EXPECT_EQ(count(html, "class=\"seg-marker "), report.segments.size());
+  EXPECT_EQ(count(html, "<section class=\"card panel-set\""), 5u);  // five distinct peak frames
+  EXPECT_NE(html.find("id=\"frame-127\""), std::string::npos);
+  EXPECT_NE(html.find("id=\"seg-4\""), std::string::npos);
+}
+
+TEST_F(PageFixture, InputStringsAreEscaped) {
+  EXPECT_EQ(html.find("<img src=x"), std::string::npos);
+  EXPECT_EQ(html.find("<script>alert"), std::string::npos);
+  EXPECT_EQ(html.find("<b>box</b>"), std::string::npos);
+  EXPECT_NE(html.find("&lt;img src=x onerror=alert(1)&gt;.mp4"), std::string::npos);
+  EXPECT_NE(html.find("A &quot;red&quot; ball &amp; a &lt;b&gt;box&lt;/b&gt;; it&#39;s"), std::string::npos);
+  EXPECT_EQ(count(html, "<script"), 2u);  // the data block and the page script, nothing else
+}
+
+TEST_F(PageFixture, SelfContainedWithAPolicyThatPinsItsOwnStyleAndScript) {
+  EXPECT_EQ(html.find("http://"), std::string::npos);
+  EXPECT_EQ(html.find("https://"), std::string::npos);
+  EXPECT_EQ(html.find("url(http"), std::string::npos);
+  const std::string style = between(html, "<style>", "</style>");
+  const std::string script = between(html, "<script>", "</script>");
+  ASSERT_FALSE(style.empty());
+  ASSERT_FALSE(script.empty());
+  const std::string policy = between(html, "http-equiv=\"Content-Security-Policy\" content=\"", "\"");
+  EXPECT_EQ(policy, content_security_policy(style, script));
+  EXPECT_EQ(html.find(" style=\""), std::string::npos) << "style attributes would need 'unsafe-inline'";
+  EXPECT_EQ(count(html, "<style>"), 1u);
+}
+
+TEST_F(PageFixture, FlashesBringThePhotosensitiveCaution) {
+  EXPECT_NE(html.find("screening aid, not a certification"), std::string::npos);
+  EXPECT_NE(html.find("photosensitive epilepsy"), std::string::npos);
+  Report calm = report;
+  calm.summary.details.erase("flash");
+  for (auto& v : calm.find_series("flash")->values) v = 0;
+  EXPECT_EQ(render_clip_page(calm, assets, options).find("photosensitive epilepsy"), std::string::npos);
+}
+
+TEST_F(PageFixture, TenSecondPageStaysSmall) {
+  // 10 s at 30 fps with five panel sets: well under the 5 MB budget.
+  EXPECT_LT(html.size(), 1'500'000u) << html.size();
+  std::ofstream("html_page_fixture.html") << html;  // for a look by hand
+}
+
+TEST_F(PageFixture, DriftPanelShowsTheObjectsFirstAndCurrentLook) {
+  const auto it = std::find_if(assets.panels.begin(), assets.panels.end(),
+                               [](const PanelImages& p) { return p.frame_index == 290; });
+  ASSERT_NE(it, assets.panels.end());
+  ASSERT_EQ(it->objects.size(), 1u);
+  EXPECT_FALSE(it->objects[0].first_look.empty());
+  EXPECT_FALSE(it->objects[0].current_look.empty());
+  EXPECT_FALSE(it->current_with_boxes.empty());
+  EXPECT_NE(html.find("Object #1: first look (frame\u00a00)"), std::string::npos);
+  EXPECT_NE(html.find("&lt;ball&gt; &amp; &quot;co&quot;"), std::string::npos);  // detail strings escaped
+}
+
+TEST_F(PageFixture, PageWithoutPicturesOrSegmentsStillRenders) {
+  HtmlAssets none;
+  none.notes.push_back("Pictures are missing: clip: gone.");
+  const std::string bare = render_clip_page(report, none, options);
+  EXPECT_NE(bare.find("No frame pictures in this page: Pictures are missing"), std::string::npos);
+  Report empty;
+  empty.clip.path = "empty.mp4";
+  const std::string minimal = render_clip_page(empty, {}, {});
+  EXPECT_NE(minimal.find("No incoherent segments were found."), std::string::npos);
+  EXPECT_NE(minimal.find("</html>"), std::string::npos);
+}
+
+TEST(PanelFrames, WorstFirstWithoutRepeatsAndCapped) {
+  Report r;
+  auto seg = [&](int64_t peak, Severity s, int64_t len) { r.segments.push_back({"m", peak, peak + len, 0, 0, 1, peak, s}); };
+  seg(10, Severity::info, 50);
+  seg(20, Severity::review, 2);
+  seg(30, Severity::reject, 1);
+  seg(40, Severity::review, 9);
+  seg(30, Severity::review, 3);  // same peak frame as the reject one
+  HtmlOptions o;
+  EXPECT_EQ(panel_frames(r, o), (std::vector<int64_t>{30, 40, 20, 10}));
+  o.max_panel_sets = 2;
+  EXPECT_EQ(panel_frames(r, o), (std::vector<int64_t>{30, 40}));
+}
+
+TEST(ThumbnailCollector, KeepsABoundedEvenlySpacedStrip) {
+  ThumbnailCollector thumbs(16, 32);
+  const cv::Mat pixels(18, 32, CV_8UC3, cv::Scalar(10, 20, 30));
+  for (int i = 0; i < 1000; ++i) thumbs.add({i, i / 25.0, pixels});
+  const auto& kept = thumbs.thumbnails();
+  EXPECT_LE(kept.size(), 16u);
+  EXPECT_GE(kept.size(), 8u);
+  for (size_t k = 0; k < kept.size(); ++k) EXPECT_EQ(kept[k].frame_index, int64_t(k) * thumbs.interval_frames());
+  EXPECT_EQ(kept[0].image.mime, "image/jpeg");
+}
+
+TEST(ObjectBoxes, ToleratesMalformedDetail) {
+  TrackedObject o;
+  o.first_frame = 2;
+  o.last_frame = 9;
+  o.detail = {{"boxes", {{2, 1, 2, 3, 4}, "junk", {3, 1}, {5, 10, 20, 30, 40}, {6, 0, 0, -1, 4}}}};
+  ASSERT_EQ(object_boxes(o).size(), 2u);
+  EXPECT_EQ(object_box_at(o, 4), cv::Rect(1, 2, 3, 4));
+  EXPECT_EQ(object_box_at(o, 7), cv::Rect(10, 20, 30, 40));
+  EXPECT_FALSE(object_box_at(o, 1).has_value());
+  EXPECT_FALSE(object_box_at(o, 10).has_value());
+  o.detail = {{"boxes", "not a list"}};
+  EXPECT_TRUE(object_boxes(o).empty());
+}
