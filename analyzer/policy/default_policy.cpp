@@ -120,12 +120,15 @@ std::vector<MetricBlock> metric_blocks() {
 
       // ---- cut -------------------------------------------------------------
       // 0-1 score of a hard discontinuity. Generated clips are meant to be one
-      // shot, so a confident cut (>= 0.5) reviews; several cuts in one clip
-      // are a chain of jumps and reject. Absolute only (baseline off): a
+      // shot, so a cut reviews; several cuts in one clip are a chain of jumps
+      // and reject. Measured 2026-12-01 at 512 px: the four hard cuts of
+      // opencv-doc Megamind.avi (the ones FFmpeg's scdet finds) score
+      // 0.50-0.71; no frame of vtest.avi, tree.avi or Megamind's continuous
+      // shots exceeds 0.29. 0.4 sits between. Absolute only (baseline off): a
       // clip's own level must not excuse a jump.
       {"cut",
-       SegmentRule{.enter = 0.5, .leave = 0.3, .min_frames = 1, .merge_gap_frames = 0,
-                   .baseline_k = 0, .review_peak = 0.5, .reject_peak = kNever},
+       SegmentRule{.enter = 0.4, .leave = 0.3, .min_frames = 1, .merge_gap_frames = 0,
+                   .baseline_k = 0, .review_peak = 0.4, .reject_peak = kNever},
        {{"segment_count", kOff, 3}}},
 
       // ---- drift -----------------------------------------------------------
