@@ -6,11 +6,15 @@
 // flicker_t = |L_t - median(L over a centred 1 s window)|: slow lighting
 // changes (a sunset, an exposure ramp) follow the median and score ~0,
 // pulses shorter than half a second stand out. Units: relative luminance.
+// At a cut the track starts again from the new shot's own level and the
+// median window stays inside one shot, so a cut is not flicker (`cut`
+// reports it); the cut frame's flicker is undefined.
 // Also writes `luminance`, the frame's plain mean relative luminance.
 #include <cmath>
 
 #include "analyzer/metrics/image_error.h"
 #include "analyzer/metrics/metric.h"
+#include "analyzer/metrics/shot_boundaries.h"
 #include "analyzer/metrics/series_math.h"
 
 namespace framelint {
@@ -38,17 +42,31 @@ class FlickerMetric final : public Metric {
     if (!luminance || !flicker || flicker->values.empty()) return;
     std::vector<double>& v = flicker->values;
     const size_t n = v.size();
+    const std::vector<bool> boundary = shot_boundaries(report);
+    auto starts_shot = [&](size_t t) { return t < boundary.size() && boundary[t]; };
     std::vector<double> track(n);
     track[0] = luminance->values[0];
     for (size_t t = 1; t < n; ++t) {
-      // No consistent pixel at all (e.g. a cut): fall back to the plain change.
+      if (starts_shot(t)) {
+        track[t] = luminance->values[t];
+        continue;
+      }
+      // No consistent pixel at all: fall back to the plain change.
       const double step = std::isnan(v[t]) ? luminance->values[t] - luminance->values[t - 1] : v[t];
       track[t] = track[t - 1] + step;
     }
     const double dt = median_frame_interval_s(report.frame_times_s);
     const int half = std::max(2, dt > 0 ? static_cast<int>(std::lround(kMedianWindow_s / 2 / dt)) : 2);
-    const std::vector<double> median = running_median(track, half);
-    for (size_t t = 0; t < n; ++t) v[t] = std::fabs(track[t] - median[t]);
+    // High-pass each shot on its own.
+    for (size_t begin = 0; begin < n;) {
+      size_t end = begin + 1;
+      while (end < n && !starts_shot(end)) ++end;
+      const std::span<const double> shot(track.data() + begin, end - begin);
+      const std::vector<double> median = running_median(shot, half);
+      for (size_t t = begin; t < end; ++t) v[t] = std::fabs(track[t] - median[t - begin]);
+      begin = end;
+    }
+    clear_across_boundaries(v, boundary);
   }
 };
 

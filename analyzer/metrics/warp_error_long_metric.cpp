@@ -9,6 +9,7 @@
 
 #include "analyzer/metrics/image_error.h"
 #include "analyzer/metrics/metric.h"
+#include "analyzer/metrics/shot_boundaries.h"
 
 namespace framelint {
 namespace {
@@ -58,6 +59,13 @@ class WarpErrorLongMetric final : public Metric {
     }
     cv::remap(frames_.front(), warped_, map_, cv::noArray(), cv::INTER_LINEAR, cv::BORDER_REPLICATE);
     out[0] = masked_squared_rgb_error(pair.cur->bgr, warped_, chained_valid_);
+  }
+
+  // A chain that crosses a cut compares two shots: undefined for the k
+  // frames after each cut.
+  void finish(Report& report) override {
+    if (MetricSeries* s = report.find_series("warp_error_long"))
+      clear_across_boundaries(s->values, shot_boundaries(report), k_);
   }
 
  private:

@@ -5,6 +5,7 @@
 // over its three channels. occluded_pct is 100 * |not M| / |all pixels|.
 #include "analyzer/metrics/image_error.h"
 #include "analyzer/metrics/metric.h"
+#include "analyzer/metrics/shot_boundaries.h"
 
 namespace framelint {
 namespace {
@@ -16,6 +17,11 @@ class WarpErrorMetric final : public Metric {
   void measure_pair(const FramePair& pair, std::span<double> out) const override {
     out[0] = masked_squared_rgb_error(pair.cur->bgr, pair.warped_prev_bgr, pair.valid);
     out[1] = 100.0 * (1.0 - pair.valid_fraction);
+  }
+
+  // Across a cut there is no motion to compensate: `cut` reports that frame.
+  void finish(Report& report) override {
+    if (MetricSeries* s = report.find_series("warp_error")) clear_across_boundaries(s->values, shot_boundaries(report));
   }
 };
 

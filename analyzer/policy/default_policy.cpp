@@ -12,6 +12,7 @@
 #include <limits>
 #include <optional>
 
+#include "analyzer/metrics/shot_boundaries.h"
 #include "framelint/policy.h"
 
 namespace framelint {
@@ -127,8 +128,8 @@ std::vector<MetricBlock> metric_blocks() {
       // shots exceeds 0.29. 0.4 sits between. Absolute only (baseline off): a
       // clip's own level must not excuse a jump.
       {"cut",
-       SegmentRule{.enter = 0.4, .leave = 0.3, .min_frames = 1, .merge_gap_frames = 0,
-                   .baseline_k = 0, .review_peak = 0.4, .reject_peak = kNever},
+       SegmentRule{.enter = kShotBoundaryCut, .leave = 0.3, .min_frames = 1, .merge_gap_frames = 0,
+                   .baseline_k = 0, .review_peak = kShotBoundaryCut, .reject_peak = kNever},
        {{"segment_count", kOff, 3}}},
 
       // ---- drift -----------------------------------------------------------

@@ -23,6 +23,7 @@ Policy test_policy() {
   p.segments["flicker"] = {.enter = 0.02, .leave = 0.01, .review_peak = 0.02, .reject_peak = 0.05};
   p.segments["freeze"] = {.enter = 0.5, .leave = 0.5, .review_peak = 0.5};
   p.segments["cut"] = {.enter = 0.5, .leave = 0.4, .review_peak = 0.5};
+  p.segments["warp_error"] = {.enter = 0.02, .leave = 0.01, .review_peak = 0.02};
   return p;
 }
 
@@ -102,6 +103,12 @@ TEST(Pipeline, JumpToAnotherSceneIsACut) {
   ASSERT_EQ(cuts.size(), 1u);
   EXPECT_EQ(cuts[0].start_frame, 15);
   EXPECT_EQ(cuts[0].end_frame, 15);
+  // Across the cut, frame-to-frame measures are undefined (the cut is
+  // reported once, as a cut) and flicker restarts with the new shot.
+  EXPECT_TRUE(std::isnan(r.find_series("warp_error")->values[15]));
+  EXPECT_TRUE(std::isnan(r.find_series("flicker")->values[15]));
+  EXPECT_TRUE(segments_of(r, "flicker").empty());
+  EXPECT_TRUE(segments_of(r, "warp_error").empty());
 }
 
 TEST(Pipeline, ResultsDoNotDependOnTheThreadCount) {
