@@ -1,64 +1,91 @@
 // warp_error_long: the warping error between frame t and frame t-k, with the
 // backward flows of the k pairs in between chained (x -> x + b_t(x) -> ...),
-// and a pixel kept only if it passes the forward-backward check at every
+// and a point kept only if it passes the forward-backward check at every
 // step. It catches slow changes that each single-frame step hides (textures
 // that crawl, colours that creep). Same units as warp_error.
-#include <deque>
-
+//
+// The chain is followed for points on a 2-pixel grid (a quarter of the
+// pixels, bilinear sampling at every step): the mean over ~37k points at
+// 512x288 has a sampling error far below the differences that matter, at a
+// quarter of the cost of chaining whole flow fields.
 #include <opencv2/imgproc.hpp>
 
-#include "analyzer/metrics/image_error.h"
 #include "analyzer/metrics/metric.h"
 #include "analyzer/metrics/shot_boundaries.h"
 
 namespace framelint {
 namespace {
 
+constexpr int kGridStep = 2;
+
+inline cv::Vec2f sample_flow(const cv::Mat& flow, float x, float y) {
+  const int x0 = static_cast<int>(x), y0 = static_cast<int>(y);
+  const int x1 = std::min(x0 + 1, flow.cols - 1), y1 = std::min(y0 + 1, flow.rows - 1);
+  const float fx = x - x0, fy = y - y0;
+  const cv::Vec2f* r0 = flow.ptr<cv::Vec2f>(y0);
+  const cv::Vec2f* r1 = flow.ptr<cv::Vec2f>(y1);
+  return (r0[x0] * (1 - fx) + r0[x1] * fx) * (1 - fy) + (r1[x0] * (1 - fx) + r1[x1] * fx) * fy;
+}
+
+inline cv::Vec3f sample_bgr(const cv::Mat& img, float x, float y) {
+  const int x0 = static_cast<int>(x), y0 = static_cast<int>(y);
+  const int x1 = std::min(x0 + 1, img.cols - 1), y1 = std::min(y0 + 1, img.rows - 1);
+  const float fx = x - x0, fy = y - y0;
+  const cv::Vec3b* r0 = img.ptr<cv::Vec3b>(y0);
+  const cv::Vec3b* r1 = img.ptr<cv::Vec3b>(y1);
+  cv::Vec3f out;
+  for (int c = 0; c < 3; ++c)
+    out[c] = (r0[x0][c] * (1 - fx) + r0[x1][c] * fx) * (1 - fy) + (r1[x0][c] * (1 - fx) + r1[x1][c] * fx) * fy;
+  return out;
+}
+
 class WarpErrorLongMetric final : public Metric {
  public:
-  explicit WarpErrorLongMetric(int k) : k_(std::max(2, k)) {}
+  explicit WarpErrorLongMetric(int k) : k_(std::max(2, k)), steps_(k_), frames_(k_ + 1) {}
 
   std::vector<std::string> columns() const override { return {"warp_error_long"}; }
   bool needs_in_order() const override { return true; }
-  void measure_first(const FramePlanes& frame, std::span<double>) const override { (void)frame; }
   void measure_pair(const FramePair&, std::span<double>) const override {}
 
   void observe_in_order(const FramePair& pair, std::span<double> out) override {
-    if (frames_.empty()) frames_.push_back(pair.prev->bgr.clone());
-    steps_.push_back({pair.flow_backward.clone(), pair.valid.clone()});
-    frames_.push_back(pair.cur->bgr.clone());
-    if (static_cast<int>(steps_.size()) > k_) steps_.pop_front();
-    if (static_cast<int>(frames_.size()) > k_ + 1) frames_.pop_front();
-    if (static_cast<int>(steps_.size()) < k_) return;  // stays undefined
+    // Rings of the last k pairs' flows and the last k+1 frames; buffers are
+    // reused, nothing is allocated once they are filled.
+    if (seen_ == 0) pair.prev->bgr.copyTo(frames_[0]);
+    ++seen_;
+    Step& step = steps_[(seen_ - 1) % k_];
+    pair.flow_backward.copyTo(step.flow);
+    pair.valid.copyTo(step.valid);
+    pair.cur->bgr.copyTo(frames_[seen_ % (k_ + 1)]);
+    if (seen_ < k_) return;  // stays undefined for the first k frames
 
-    // Walk back from frame t: steps_.back() is the pair (t-1, t).
-    const Step& last = steps_.back();
-    map_.create(last.flow.size(), CV_32FC2);
-    for (int y = 0; y < map_.rows; ++y) {
-      const cv::Vec2f* b = last.flow.ptr<cv::Vec2f>(y);
-      cv::Vec2f* m = map_.ptr<cv::Vec2f>(y);
-      for (int x = 0; x < map_.cols; ++x) m[x] = cv::Vec2f(x + b[x][0], y + b[x][1]);
-    }
-    last.valid.copyTo(chained_valid_);
-    for (int j = k_ - 2; j >= 0; --j) {
-      const Step& step = steps_[j];
-      cv::remap(step.flow, sampled_flow_, map_, cv::noArray(), cv::INTER_LINEAR, cv::BORDER_REPLICATE);
-      cv::remap(step.valid, sampled_valid_, map_, cv::noArray(), cv::INTER_NEAREST, cv::BORDER_CONSTANT, 0);
-      const int w = map_.cols, h = map_.rows;
-      for (int y = 0; y < h; ++y) {
-        cv::Vec2f* m = map_.ptr<cv::Vec2f>(y);
-        const cv::Vec2f* f = sampled_flow_.ptr<cv::Vec2f>(y);
-        const uint8_t* sv = sampled_valid_.ptr<uint8_t>(y);
-        uint8_t* cv = chained_valid_.ptr<uint8_t>(y);
-        for (int x = 0; x < w; ++x) {
-          m[x] += f[x];
-          const bool inside = m[x][0] >= 0 && m[x][1] >= 0 && m[x][0] <= w - 1 && m[x][1] <= h - 1;
-          cv[x] = (cv[x] && sv[x] && inside) ? 255 : 0;
+    const cv::Mat& cur = pair.cur->bgr;
+    const cv::Mat& oldest = frames_[(seen_ - k_) % (k_ + 1)];
+    const float max_x = static_cast<float>(cur.cols - 1), max_y = static_cast<float>(cur.rows - 1);
+    double sum = 0;
+    uint64_t count = 0;
+    for (int y = 0; y < cur.rows; y += kGridStep) {
+      for (int x = 0; x < cur.cols; x += kGridStep) {
+        float px = static_cast<float>(x), py = static_cast<float>(y);
+        bool ok = true;
+        // Walk back: the newest step first, (seen_-1) % k_, then older ones.
+        for (int j = 0; j < k_ && ok; ++j) {
+          const Step& s = steps_[(seen_ - 1 - j) % k_];
+          const int ix = static_cast<int>(px + 0.5f), iy = static_cast<int>(py + 0.5f);
+          ok = s.valid.ptr<uint8_t>(iy)[ix] != 0;
+          const cv::Vec2f f = j == 0 ? s.flow.ptr<cv::Vec2f>(y)[x] : sample_flow(s.flow, px, py);
+          px += f[0];
+          py += f[1];
+          ok = ok && px >= 0 && py >= 0 && px <= max_x && py <= max_y;
         }
+        if (!ok) continue;
+        const cv::Vec3b c = cur.ptr<cv::Vec3b>(y)[x];
+        const cv::Vec3f o = sample_bgr(oldest, px, py);
+        const float d0 = c[0] - o[0], d1 = c[1] - o[1], d2 = c[2] - o[2];
+        sum += d0 * d0 + d1 * d1 + d2 * d2;
+        ++count;
       }
     }
-    cv::remap(frames_.front(), warped_, map_, cv::noArray(), cv::INTER_LINEAR, cv::BORDER_REPLICATE);
-    out[0] = masked_squared_rgb_error(pair.cur->bgr, warped_, chained_valid_);
+    if (count > 0) out[0] = sum / (255.0 * 255.0) / static_cast<double>(count);
   }
 
   // A chain that crosses a cut compares two shots: undefined for the k
@@ -74,9 +101,9 @@ class WarpErrorLongMetric final : public Metric {
     cv::Mat valid;  // its forward-backward mask
   };
   int k_;
-  std::deque<Step> steps_;
-  std::deque<cv::Mat> frames_;
-  cv::Mat map_, chained_valid_, sampled_flow_, sampled_valid_, warped_;
+  int64_t seen_ = 0;            // pairs observed
+  std::vector<Step> steps_;     // ring of k
+  std::vector<cv::Mat> frames_; // ring of k+1
 };
 
 }  // namespace

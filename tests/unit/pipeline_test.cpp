@@ -119,3 +119,28 @@ TEST(Pipeline, ResultsDoNotDependOnTheThreadCount) {
   EXPECT_EQ(a, report_to_json(run(two, 2)));
   EXPECT_EQ(a, report_to_json(run(three, 3)));
 }
+
+TEST(Pipeline, LongRangeWarpErrorGrowsWithTheSpanOfASlowChange) {
+  // In a still scene a patch brightens by 2 levels per frame. One step sees a
+  // 2-level change, the k=5 chain a 10-level one: by the warping error's
+  // definition (squared differences) the long-range error is k^2 = 25 times
+  // the single-step error, and both equal 3 (d/255)^2 times the patch's share
+  // of the frame.
+  const cv::Mat texture = smooth_texture({400, 200}, 13);
+  SyntheticSource source(30, 24, [&](int64_t i) {
+    cv::Mat f = view(texture, 0, 0, kFrame);
+    f(cv::Rect(60, 30, 60, 40)) += cv::Scalar::all(2.0 * i);
+    return f;
+  });
+  const Report r = run(source);
+  const auto& one = r.find_series("warp_error")->values;
+  const auto& five = r.find_series("warp_error_long")->values;
+  for (int t = 0; t < 5; ++t) EXPECT_TRUE(std::isnan(five[t])) << t;
+  double ratio_sum = 0;
+  int n = 0;
+  for (int t = 10; t < 30; ++t, ++n) ratio_sum += five[t] / one[t];
+  EXPECT_NEAR(ratio_sum / n, 25.0, 2.5);
+  const double share = 60.0 * 40.0 / (kFrame.width * kFrame.height);
+  EXPECT_NEAR(one[20], 3 * std::pow(2 / 255.0, 2) * share, 0.2 * 3 * std::pow(2 / 255.0, 2) * share);
+  EXPECT_NEAR(five[20], 3 * std::pow(10 / 255.0, 2) * share, 0.2 * 3 * std::pow(10 / 255.0, 2) * share);
+}
