@@ -8,6 +8,7 @@ namespace framelint::cli {
 
 // Each command lives in its own file; one line here registers it.
 int run_analyze(const std::vector<std::string>& args);
+int run_compare(const std::vector<std::string>& args);
 int run_probe(const std::vector<std::string>& args);
 int run_gate(const std::vector<std::string>& args);
 int run_merge(const std::vector<std::string>& args);
@@ -20,6 +21,7 @@ const std::vector<Command>& commands() {
       {"gate", "judge a batch of clips into a review queue (queue.jsonl, index.html)", run_gate},
       {"merge", "join the outputs of gate shards into one queue", run_merge},
       {"inspect", "write PNG panels (flow, warp, error, occlusion) for one frame", run_inspect},
+      {"compare", "compare two model versions on the same prompts, with paired statistics", run_compare},
   };
   return table;
 }

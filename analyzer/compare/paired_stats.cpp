@@ -127,9 +127,15 @@ void exact_p_value(WilcoxonResult& r, Alternative alternative) {
   const double p_le = static_cast<double>(at_most) / total;
   const double p_ge = static_cast<double>(at_least) / total;
   switch (alternative) {
-    case Alternative::two_sided: r.p_value = std::min(1.0, 2.0 * std::min(p_le, p_ge)); break;
-    case Alternative::less: r.p_value = p_le; break;
-    case Alternative::greater: r.p_value = p_ge; break;
+    case Alternative::two_sided:
+      r.p_value = std::min(1.0, 2.0 * std::min(p_le, p_ge));
+      break;
+    case Alternative::less:
+      r.p_value = p_le;
+      break;
+    case Alternative::greater:
+      r.p_value = p_ge;
+      break;
   }
   r.method_used = TestMethod::exact;
 }
@@ -162,16 +168,21 @@ void normal_p_value(WilcoxonResult& r, const WilcoxonOptions& o, double tie_sum)
       r.p_value = std::min(1.0, 2.0 * normal_sf(std::fabs(z)));
       r.z = r.r_plus >= r.r_minus ? std::fabs(z) : -std::fabs(z);
       break;
-    case Alternative::less: r.p_value = normal_cdf(z); r.z = z; break;
-    case Alternative::greater: r.p_value = normal_sf(z); r.z = z; break;
+    case Alternative::less:
+      r.p_value = normal_cdf(z);
+      r.z = z;
+      break;
+    case Alternative::greater:
+      r.p_value = normal_sf(z);
+      r.z = z;
+      break;
   }
   r.method_used = TestMethod::normal;
 }
 
 }  // namespace
 
-WilcoxonResult wilcoxon_signed_rank(std::span<const double> differences,
-                                    const WilcoxonOptions& o) {
+WilcoxonResult wilcoxon_signed_rank(std::span<const double> differences, const WilcoxonOptions& o) {
   WilcoxonResult r;
   r.n = static_cast<int>(differences.size());
   std::vector<double> ranked;  // the differences that receive ranks
@@ -269,8 +280,8 @@ ConfidenceInterval bca_interval_of_mean(std::span<const double> values,
   std::sort(sorted.begin(), sorted.end());
   const auto below = std::lower_bound(sorted.begin(), sorted.end(), theta_hat) - sorted.begin();
   const auto at_most = std::upper_bound(sorted.begin(), sorted.end(), theta_hat) - sorted.begin();
-  ci.bias_correction_z0 =
-      normal_quantile(static_cast<double>(below + at_most) / (2.0 * static_cast<double>(sorted.size())));
+  ci.bias_correction_z0 = normal_quantile(static_cast<double>(below + at_most) /
+                                          (2.0 * static_cast<double>(sorted.size())));
 
   // Acceleration from the jackknife means (Efron & Tibshirani 14.15).
   const double sum = std::accumulate(values.begin(), values.end(), 0.0);

@@ -65,11 +65,11 @@ struct WilcoxonResult {
   double r_minus = 0;    // sum of the ranks of negative differences
   double statistic = 0;  // min(r_plus, r_minus) two-sided, r_plus one-sided
   double p_value = 1;
-  double z = 0;              // normal approximation only (signed like r_plus - mean)
-  int n = 0;                 // all differences given
-  int n_zero = 0;            // differences exactly zero
-  int n_ranked = 0;          // ranks in the null distribution
-  bool ties = false;         // ties among the ranked |d|
+  double z = 0;       // normal approximation only (signed like r_plus - mean)
+  int n = 0;          // all differences given
+  int n_zero = 0;     // differences exactly zero
+  int n_ranked = 0;   // ranks in the null distribution
+  bool ties = false;  // ties among the ranked |d|
   TestMethod method_used = TestMethod::none;
 };
 

@@ -116,7 +116,8 @@ TEST(BootstrapAgainstScipy, IndependentResamplesAgreeWithinMonteCarloError) {
   samples.push_back(symmetric);
 
   nlohmann::json input = nlohmann::json::array();
-  for (const auto& d : samples) input.push_back({{"d", d}, {"seeds", kSeeds}, {"resamples", kResamples}});
+  for (const auto& d : samples)
+    input.push_back({{"d", d}, {"seeds", kSeeds}, {"resamples", kResamples}});
   std::string error;
   const auto reference = framelint::test::run_python_json(kBootstrapScript, input, error);
   ASSERT_FALSE(reference.is_discarded()) << error;
@@ -132,14 +133,15 @@ TEST(BootstrapAgainstScipy, IndependentResamplesAgreeWithinMonteCarloError) {
     }
     const double width = mean(scipy_high) - mean(scipy_low);
     ASSERT_GT(width, 0);
-    auto check = [&](const char* which, const std::vector<double>& a, const std::vector<double>& b) {
+    auto check = [&](const char* which, const std::vector<double>& a,
+                     const std::vector<double>& b) {
       const double se = std::sqrt((stddev(a) * stddev(a) + stddev(b) * stddev(b)) / kSeeds);
       const double tolerance = std::max(5 * se, 0.002 * width);
       EXPECT_NEAR(mean(a), mean(b), tolerance)
           << which << " bound, n=" << samples[i].size() << " (standard error " << se << ")";
       std::printf("bca n=%zu %s: ours %.5f scipy %.5f, diff %.2f%% of width, tolerance %.2f%%\n",
-                  samples[i].size(), which, mean(a), mean(b), 100 * std::fabs(mean(a) - mean(b)) / width,
-                  100 * tolerance / width);
+                  samples[i].size(), which, mean(a), mean(b),
+                  100 * std::fabs(mean(a) - mean(b)) / width, 100 * tolerance / width);
     };
     check("low", our_low, scipy_low);
     check("high", our_high, scipy_high);

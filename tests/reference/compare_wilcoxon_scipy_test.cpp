@@ -73,13 +73,14 @@ std::vector<WilcoxonCase> make_cases() {
   std::mt19937_64 rng(20240607);
   std::vector<WilcoxonCase> cases;
   const int sizes[] = {5, 6, 9, 12, 17, 25, 33, 50, 51, 64, 90, 130, 200};
-  const Alternative alternatives[] = {Alternative::two_sided, Alternative::less, Alternative::greater};
+  const Alternative alternatives[] = {Alternative::two_sided, Alternative::less,
+                                      Alternative::greater};
   for (int n : sizes) {
     std::vector<double> continuous(n), tied(n), zeros_and_ties(n), zeros_untied(n);
     for (int i = 0; i < n; ++i) {
       continuous[i] = uniform(rng) - 0.35;
       tied[i] = std::floor(uniform(rng) * 9) - 4.5 + (i % 3 == 0 ? 1.0 : 0.0);  // +-0.5 .. +-4.5
-      zeros_and_ties[i] = std::floor(uniform(rng) * 7) - 2;                      // -2 .. 4
+      zeros_and_ties[i] = std::floor(uniform(rng) * 7) - 2;                     // -2 .. 4
       zeros_untied[i] = i % 4 == 1 ? 0.0 : uniform(rng) - 0.45;
     }
     zeros_and_ties[0] = 1;  // at least one non-zero difference, as scipy requires
@@ -148,8 +149,9 @@ TEST(WilcoxonAgainstScipy, StatisticAndPValueAgree) {
       ++normal_cases;
     }
   }
-  std::printf("wilcoxon vs scipy: %d exact cases, worst |dp| %.3g; %d normal cases, worst |dp| %.3g\n",
-              exact_cases, worst_exact, normal_cases, worst_normal);
+  std::printf(
+      "wilcoxon vs scipy: %d exact cases, worst |dp| %.3g; %d normal cases, worst |dp| %.3g\n",
+      exact_cases, worst_exact, normal_cases, worst_normal);
   EXPECT_GT(exact_cases, 40);
   EXPECT_GT(normal_cases, 100);
 }

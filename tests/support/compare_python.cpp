@@ -23,7 +23,8 @@ std::string read_pipe(FILE* pipe) {
 }  // namespace
 
 TempFolder::TempFolder(const std::string& label) {
-  std::string pattern = (std::filesystem::temp_directory_path() / ("framelint-" + label + "-XXXXXX")).string();
+  std::string pattern =
+      (std::filesystem::temp_directory_path() / ("framelint-" + label + "-XXXXXX")).string();
   if (::mkdtemp(pattern.data()) == nullptr) std::abort();
   path_ = pattern;
 }
@@ -39,7 +40,8 @@ std::optional<std::string> scipy_unavailable_reason() {
       return std::string(kPython) + " is not installed (Debian package python3)";
     const std::string cmd = std::string(kPython) + " -c 'import scipy.stats, numpy' 2>/dev/null";
     if (std::system(cmd.c_str()) != 0)
-      return std::string("scipy is not importable by ") + kPython + " (Debian package python3-scipy)";
+      return std::string("scipy is not importable by ") + kPython +
+             " (Debian package python3-scipy)";
     return std::nullopt;
   }();
   return reason;

@@ -1,0 +1,161 @@
+// framelint compare A B --out DIR: two model versions on the same prompts.
+#include <algorithm>
+#include <charconv>
+#include <cstdio>
+
+#include "analyzer/cli/args.h"
+#include "analyzer/cli/command.h"
+#include "framelint/compare.h"
+
+namespace framelint::cli {
+namespace {
+
+const char* kDescription =
+    "Compares two folders of per-clip reports (framelint analyze output, or gate output folders\n"
+    "with queue.jsonl) clip by clip and writes DIR/compare.json and DIR/compare.html.\n"
+    "Clips are paired by --pair-by (default: prompt_id when every queue line has one, else the\n"
+    "report name); several clips per key on one side (seeds) are averaged per key first.\n"
+    "Compared: the coherence score, the chosen summary statistics of each per-frame metric\n"
+    "(default p95) and segment counts, each with a two-sided Wilcoxon signed-rank test,\n"
+    "Holm-adjusted across all of them, and a BCa bootstrap interval of the mean difference B - A.\n"
+    "METRIC for --fail-if-worse is a metric (flicker: any of its statistics) or metric.statistic\n"
+    "(flicker.p95, coherence.score, drift.segment_count).\n"
+    "Exit status: 0 done, 1 B is significantly worse on a --fail-if-worse metric, 2 bad usage\n"
+    "(also: no clip pairs up, or METRIC was not compared), 3 an input could not be read\n"
+    "(outranks 1).";
+
+std::vector<OptionSpec> compare_specs() {
+  return {
+      {"out", true, "output folder for compare.json and compare.html (required)"},
+      {"pair-by", true, "id, prompt_id or name (default: prompt_id if known, else name)"},
+      {"stat", true, "summary statistic per metric: mean, p50, p95, max (default p95; repeatable)",
+       "", true},
+      {"fail-if-worse", true, "exit 1 when B is significantly worse on METRIC (repeatable)", "",
+       true},
+      {"zero-rule", true, "zero differences: wilcox (drop, default), pratt or zsplit"},
+      {"resamples", true, "bootstrap resamples (default 10000)"},
+      {"seed", true, "bootstrap seed (default 20240607)"},
+      {"quiet", false, "print nothing but errors"},
+  };
+}
+
+Expected<CompareOptions> options_from_args(const ParsedArgs& args) {
+  CompareOptions o;
+  if (auto p = args.get("pair-by")) {
+    auto by = pair_by_from_string(*p);
+    if (!by) return usage_error("--pair-by", "expects id, prompt_id or name, got '" + *p + "'");
+    o.pair_by = *by;
+  }
+  if (args.has("stat")) {
+    o.statistics.clear();
+    for (const auto& s : args.get_all("stat"))
+      if (std::find(o.statistics.begin(), o.statistics.end(), s) == o.statistics.end())
+        o.statistics.push_back(s);
+  }
+  if (auto z = args.get("zero-rule")) {
+    auto rule = zero_rule_from_string(*z);
+    if (!rule)
+      return usage_error("--zero-rule", "expects wilcox, pratt or zsplit, got '" + *z + "'");
+    o.zero_rule = *rule;
+  }
+  auto resamples = args.get_int("resamples", 100, 1000000);
+  if (!resamples) return resamples.error();
+  if (*resamples) o.bootstrap_resamples = **resamples;
+  if (auto s = args.get("seed")) {
+    auto [end, ec] = std::from_chars(s->data(), s->data() + s->size(), o.bootstrap_seed);
+    if (ec != std::errc() || end != s->data() + s->size())
+      return usage_error("--seed", "expects a whole number from 0 to 2^64-1, got '" + *s + "'");
+  }
+  return o;
+}
+
+bool names_statistic(const std::string& name, const MetricComparison& m) {
+  return name == m.what.metric || name == m.what.key();
+}
+
+void print_summary(const Comparison& c, const std::string& out_dir) {
+  std::printf("compare: %zu keys paired by %s (A %d clips, B %d clips)%s\n", c.pairs.size(),
+              to_string(c.pair_by), c.a_clip_count, c.b_clip_count,
+              c.averaged ? "; clips sharing a key were averaged per key" : "");
+  for (const auto& m : c.metrics) {
+    if (m.better == "neither") continue;
+    std::printf("  B %s on %s %s: mean B-A %+.4g, p %.3g, Holm %.3g (%s)\n",
+                m.better == "b" ? "better" : "worse", m.what.metric.c_str(),
+                m.what.statistic.c_str(), m.mean_diff, m.p_value, m.p_holm,
+                m.what.direction.c_str());
+  }
+  const auto worse = c.worse_in_b().size();
+  size_t better = 0;
+  for (const auto& m : c.metrics) better += m.better == "b";
+  std::printf("  %zu of %zu statistics differ significantly (B better on %zu, worse on %zu)\n",
+              better + worse, c.metrics.size(), better, worse);
+  if (!c.unpaired.empty())
+    std::printf("  %zu unpaired key(s), listed in compare.json\n", c.unpaired.size());
+  std::printf("  wrote %s/compare.json and %s/compare.html\n", out_dir.c_str(), out_dir.c_str());
+}
+
+}  // namespace
+
+int run_compare(const std::vector<std::string>& args) {
+  const auto specs = compare_specs();
+  if (wants_help(args)) {
+    std::fputs(format_help("compare", "A B --out DIR [options]", kDescription, specs).c_str(),
+               stdout);
+    return kExitOk;
+  }
+  auto parsed = parse_args(args, specs);
+  if (!parsed) {
+    print_error(parsed.error().message());
+    return kExitUsage;
+  }
+  if (parsed->positionals.size() != 2) {
+    print_error("compare takes two folders, A and B (see framelint compare --help)");
+    return kExitUsage;
+  }
+  const auto out_dir = parsed->get("out");
+  if (!out_dir) {
+    print_error("compare needs --out DIR (see framelint compare --help)");
+    return kExitUsage;
+  }
+  auto options = options_from_args(*parsed);
+  if (!options) {
+    print_error(options.error().message());
+    return kExitUsage;
+  }
+  auto comparison =
+      compare_report_folders(parsed->positionals[0], parsed->positionals[1], *options);
+  if (!comparison) {
+    print_error(comparison.error().message());
+    return comparison.error().kind == ErrorKind::usage ? kExitUsage : kExitInputError;
+  }
+  const Comparison& c = *comparison;
+  for (const auto& f : c.failed)
+    print_error((f.side == "a" ? "A: " : "B: ") + f.path + ": " + f.error);
+
+  int status = kExitOk;
+  for (const auto& name : parsed->get_all("fail-if-worse")) {
+    const bool known =
+        std::any_of(c.metrics.begin(), c.metrics.end(),
+                    [&](const MetricComparison& m) { return names_statistic(name, m); });
+    if (!known && !c.pairs.empty()) {
+      print_error("--fail-if-worse: '" + name + "' was not compared (see compare.json metrics)");
+      return kExitUsage;
+    }
+    for (const MetricComparison* m : c.worse_in_b())
+      if (names_statistic(name, *m)) status = kExitGateFailed;
+  }
+  if (auto written = write_comparison(c, *out_dir); !written) {
+    print_error(written.error().message());
+    return kExitInputError;
+  }
+  if (!parsed->has("quiet")) print_summary(c, *out_dir);
+  if (c.any_unreadable()) return kExitInputError;
+  if (c.pairs.empty()) {
+    print_error(std::string("no clip of A pairs with a clip of B by ") + to_string(c.pair_by) +
+                " (try --pair-by)");
+    return kExitUsage;
+  }
+  return status;
+}
+
+}  // namespace framelint::cli

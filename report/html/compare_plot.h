@@ -1,0 +1,17 @@
+// The paired dot plot of one compared statistic: each key's A value on the
+// left axis joined to its B value on the right, the joining line coloured by
+// whether B got better or worse in the metric's own direction. Inline SVG.
+#pragma once
+
+#include <string>
+
+#include "framelint/compare.h"
+
+namespace framelint::html_detail {
+
+std::string paired_dot_plot(const Comparison& comparison, size_t column);
+
+// Short numbers for pages and plots: 4 significant digits, "–" when undefined.
+std::string format_number(double v);
+
+}  // namespace framelint::html_detail
