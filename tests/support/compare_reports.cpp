@@ -1,6 +1,7 @@
 #include "support/compare_reports.h"
 
 #include <algorithm>
+#include <cstdio>
 #include <cstdlib>
 
 #include "framelint/report_io.h"
@@ -99,7 +100,14 @@ SyntheticClip scenario_clip(std::mt19937_64& rng, const PromptLevels& levels,
 }
 
 void write_synthetic_report(const SyntheticClip& clip, const std::string& path) {
-  if (!write_json_report(synthetic_report(clip), path)) std::abort();
+  // The invented reports must still be valid framelint.report/1 documents.
+  const Report report = synthetic_report(clip);
+  const auto valid = validate_report_json(report_to_json(report), path);
+  if (!valid) {
+    std::fprintf(stderr, "synthetic report is not valid: %s\n", valid.error().message().c_str());
+    std::abort();
+  }
+  if (!write_json_report(report, path)) std::abort();
 }
 
 }  // namespace framelint::test
