@@ -4,6 +4,7 @@
 #include <limits>
 #include <map>
 
+#include "analyzer/compare/metric_direction.h"
 #include "analyzer/compare/paired_stats.h"
 #include "analyzer/compare/report_folder.h"
 #include "framelint/compare.h"
@@ -88,7 +89,9 @@ double averaged(const std::vector<ClipEntry>& clips, const std::string& key) {
 }
 
 ComparedStatistic describe(const std::string& metric, const std::string& statistic) {
-  ComparedStatistic s{metric, statistic, metric == "coherence", ""};
+  ComparedStatistic s{
+      metric, statistic,
+      compare_detail::direction_of(metric) == compare_detail::Direction::higher_is_better, ""};
   if (s.higher_is_better)
     s.direction = "higher " + metric + " is better";
   else if (statistic == "segment_count")
@@ -99,7 +102,8 @@ ComparedStatistic describe(const std::string& metric, const std::string& statist
 }
 
 // Coherence first, then each metric's chosen summary statistics, then the
-// segment counts; only statistics that both sides have.
+// segment counts; only statistics that both sides have, and no descriptive
+// column (see metric_direction.h).
 std::vector<ComparedStatistic> compared_statistics(const std::vector<PairedKey>& pairs,
                                                    const CompareOptions& options) {
   std::vector<std::string> metrics;
@@ -109,6 +113,8 @@ std::vector<ComparedStatistic> compared_statistics(const std::vector<PairedKey>&
       for (const auto& [key, v] : c.values) {
         sides[key] |= bit;
         const std::string metric = key.substr(0, key.rfind('.'));
+        if (compare_detail::direction_of(metric) == compare_detail::Direction::descriptive)
+          continue;
         if (metric != "coherence" &&
             std::find(metrics.begin(), metrics.end(), metric) == metrics.end())
           metrics.push_back(metric);

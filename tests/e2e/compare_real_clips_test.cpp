@@ -1,0 +1,70 @@
+// `framelint compare` on reports of real footage: the first 15 s of
+// OpenCV's vtest.avi (opencv-doc; static-camera street) cut by FFmpeg into
+// ten 1.5 s clips for A, and the same ten clips for B with flicker injected
+// by FFmpeg's eq filter (brightness +0.12 on every other frame). Both sides
+// are analysed by the built `framelint analyze`; compare must find B worse
+// on flicker and see no difference where nothing changed (freeze).
+#include <gtest/gtest.h>
+#include <sys/wait.h>
+#include <unistd.h>
+
+#include <cstdlib>
+#include <filesystem>
+
+#include "support/compare_cli.h"
+#include "support/compare_python.h"
+
+namespace {
+
+using framelint::test::shell_quoted;
+using nlohmann::json;
+
+constexpr const char* kFootage = "/usr/share/doc/opencv-doc/examples/data/vtest.avi";
+
+bool shell_ok(const std::string& command) {
+  const int status = std::system((command + " >/dev/null 2>&1").c_str());
+  return WIFEXITED(status) && WEXITSTATUS(status) == 0;
+}
+
+// Ten 1.5 s clips at 320 px wide, each starting on a key frame.
+bool cut_clips(const std::string& folder, const std::string& extra_filter) {
+  std::filesystem::create_directories(folder);
+  return shell_ok("ffmpeg -v error -i " + shell_quoted(kFootage) + " -t 15 -vf " +
+                  shell_quoted("scale=320:-2" + extra_filter) +
+                  " -c:v libx264 -crf 18 -pix_fmt yuv420p -force_key_frames "
+                  "'expr:gte(t,n_forced*1.5)' -f segment -segment_time 1.5 -reset_timestamps 1 " +
+                  shell_quoted(folder + "/p%02d.mp4"));
+}
+
+}  // namespace
+
+TEST(CompareRealClips, InjectedFlickerOnStreetFootage) {
+  if (::access(kFootage, R_OK) != 0)
+    GTEST_SKIP() << kFootage << " is missing (Debian package opencv-doc)";
+  if (!shell_ok("ffmpeg -version"))
+    GTEST_SKIP() << "ffmpeg is not installed (Debian package ffmpeg)";
+  framelint::test::TempFolder root("compare-real");
+  ASSERT_TRUE(cut_clips(root.file("clips_a"), ""));
+  ASSERT_TRUE(cut_clips(root.file("clips_b"), ",eq=brightness=0.12*mod(n\\,2):eval=frame"));
+  const std::string binary = FRAMELINT_BINARY;
+  for (const char* side : {"a", "b"})
+    ASSERT_TRUE(shell_ok(binary + " analyze " + root.path() + "/clips_" + side + "/*.mp4 --out " +
+                         shell_quoted(root.file(side)) + " --width 320 --quiet"))
+        << "analyze failed for side " << side;
+
+  const std::string args = shell_quoted(root.file("a")) + " " + shell_quoted(root.file("b")) +
+                           " --out " + shell_quoted(root.file("out")) + " --quiet";
+  EXPECT_EQ(framelint::test::run_compare(args + " --fail-if-worse flicker"), 1);
+  ASSERT_EQ(framelint::test::run_compare(args), 0);
+  const json c = framelint::test::read_json_file(root.file("out") + "/compare.json");
+  ASSERT_FALSE(c.is_discarded());
+  EXPECT_EQ(c["pairs"].size(), 10u);
+  const json* flicker = framelint::test::find_compared(c, "flicker", "p95");
+  ASSERT_NE(flicker, nullptr);
+  EXPECT_EQ((*flicker)["better"], "a");
+  EXPECT_LT((*flicker)["p_holm"].get<double>(), 0.05);
+  EXPECT_EQ((*flicker)["wins_a"], 10);
+  const json* freeze = framelint::test::find_compared(c, "freeze", "p95");
+  if (freeze) EXPECT_EQ((*freeze)["better"], "neither");
+  EXPECT_EQ(framelint::test::find_compared(c, "luminance", "p95"), nullptr);  // descriptive
+}
