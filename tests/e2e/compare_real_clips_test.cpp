@@ -2,7 +2,7 @@
 // OpenCV's vtest.avi (opencv-doc; static-camera street) cut by FFmpeg into
 // ten 1.5 s clips for A, and the same ten clips for B with flicker injected
 // by FFmpeg's eq filter (brightness +0.12 on every other frame). Both sides
-// are analysed by the built `framelint analyze`; compare must find B worse
+// are judged by the built `framelint gate`; compare must find B worse
 // on flicker and see no difference where nothing changed (freeze).
 #include <gtest/gtest.h>
 #include <sys/wait.h>
@@ -10,6 +10,7 @@
 
 #include <cstdlib>
 #include <filesystem>
+#include <fstream>
 
 #include "support/compare_cli.h"
 #include "support/compare_python.h"
@@ -48,12 +49,28 @@ TEST(CompareRealClips, InjectedFlickerOnStreetFootage) {
   ASSERT_TRUE(cut_clips(root.file("clips_a"), ""));
   ASSERT_TRUE(cut_clips(root.file("clips_b"), ",eq=brightness=0.12*mod(n\\,2):eval=frame"));
   const std::string binary = FRAMELINT_BINARY;
-  // analyze exits 1 when the policy rejects a clip, as it may for B's.
+  // Each side goes through `framelint gate` with a manifest naming the
+  // prompt of each clip, so compare reads the gate's real queue.jsonl and
+  // pairs by prompt_id. The gate exits 1 when its policy rejects a clip, as
+  // it may for B's.
   for (const char* side : {"a", "b"}) {
-    const int analyzed =
-        exit_status(binary + " analyze " + root.path() + "/clips_" + side + "/*.mp4 --out " +
-                    shell_quoted(root.file(side)) + " --width 320 --no-html --quiet");
-    ASSERT_TRUE(analyzed == 0 || analyzed == 1) << "analyze exited " << analyzed << " for " << side;
+    const std::string manifest = root.file(std::string("manifest_") + side + ".jsonl");
+    {
+      std::ofstream out(manifest);
+      for (int i = 0; i < 10; ++i) {
+        char clip[32];
+        std::snprintf(clip, sizeof clip, "/clips_%s/p%02d.mp4", side, i);
+        out << json{{"path", root.path() + clip},
+                    {"id", std::string(side) + std::to_string(i)},
+                    {"prompt_id", "street-" + std::to_string(i)},
+                    {"model", std::string("ckpt-") + side}}
+                   .dump()
+            << "\n";
+      }
+    }
+    const int gated = exit_status(binary + " gate " + shell_quoted(manifest) + " --out " +
+                                  shell_quoted(root.file(side)) + " --width 320 --quiet");
+    ASSERT_TRUE(gated == 0 || gated == 1) << "gate exited " << gated << " for " << side;
   }
 
   const std::string args = shell_quoted(root.file("a")) + " " + shell_quoted(root.file("b")) +
@@ -63,6 +80,7 @@ TEST(CompareRealClips, InjectedFlickerOnStreetFootage) {
   const json c = framelint::test::read_json_file(root.file("out") + "/compare.json");
   ASSERT_FALSE(c.is_discarded());
   EXPECT_EQ(c["pairs"].size(), 10u);
+  EXPECT_EQ(c["pair_by"], "prompt_id");
   const json* flicker = framelint::test::find_compared(c, "flicker", "p95");
   ASSERT_NE(flicker, nullptr);
   EXPECT_EQ((*flicker)["better"], "a");
