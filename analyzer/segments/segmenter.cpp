@@ -12,7 +12,10 @@ SegmentLevels segment_levels(std::span<const double> values, const SegmentRule& 
   if (rule.baseline_k <= 0) return levels;
   const std::vector<double> defined = defined_values(values);
   if (defined.size() < 8) return levels;  // too short for a baseline
-  const double baseline = quantile(defined, 0.5) + rule.baseline_k * 1.4826 * median_absolute_deviation(defined);
+  double baseline = quantile(defined, 0.5) + rule.baseline_k * 1.4826 * median_absolute_deviation(defined);
+  // A clip may excuse its own busy level, but never beyond the reject level:
+  // a clip that is past reject all the time is incoherent all the time.
+  if (rule.reject_peak > 0) baseline = std::min(baseline, rule.reject_peak);
   if (baseline > levels.enter) {
     // Keep the policy's leave/enter ratio so hysteresis scales with it.
     const double ratio = rule.enter > 0 ? rule.leave / rule.enter : 1.0;

@@ -20,7 +20,8 @@ namespace framelint {
 // below `leave` (hysteresis). The effective enter level is raised to the
 // clip's own baseline, median + baseline_k * 1.4826 * MAD, when that is
 // higher, so a busy clip is judged against itself (baseline_k = 0 turns the
-// baseline off). Segments shorter than min_frames are dropped; segments
+// baseline off); the baseline never lifts enter above reject_peak, so a clip
+// that stays past the reject level is flagged throughout. Segments shorter than min_frames are dropped; segments
 // separated by at most merge_gap_frames are joined. Severity comes from the
 // peak: >= reject_peak is reject, >= review_peak is review, else info. An
 // infinite peak level means that severity is never given from the peak

@@ -103,3 +103,17 @@ TEST(Summary, StatisticsSkipUndefinedFrames) {
   EXPECT_DOUBLE_EQ(s[0].p95, 3.85);
   EXPECT_DOUBLE_EQ(s[0].max, 4);
 }
+
+TEST(Segmenter, BaselineNeverExcusesAClipPastTheRejectLevel) {
+  // Every frame around 2.0, reject at 1.5: the baseline (about 2.4) would
+  // swallow everything; capped at reject_peak, the whole clip is one reject
+  // segment.
+  std::vector<double> v;
+  for (int i = 0; i < 40; ++i) v.push_back(i % 2 ? 2.1 : 1.9);
+  SegmentRule rule{.enter = 1.0, .leave = 0.8, .baseline_k = 3, .review_peak = 1.0, .reject_peak = 1.5};
+  EXPECT_DOUBLE_EQ(segment_levels(v, rule).enter, 1.5);
+  auto segs = find_segments("m", v, times(v.size()), rule);
+  ASSERT_EQ(segs.size(), 1u);
+  EXPECT_EQ(segs[0].end_frame - segs[0].start_frame + 1, 40);
+  EXPECT_EQ(segs[0].severity, Severity::reject);
+}
