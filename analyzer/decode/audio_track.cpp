@@ -1,5 +1,6 @@
 #include "analyzer/decode/audio_track.h"
 
+#include <algorithm>
 #include <cmath>
 
 extern "C" {
@@ -119,7 +120,12 @@ AudioInfo AudioTrack::finish() {
   result_.duration_s = container_duration_s_;
   if (tail_) {
     tail_->finish();
-    result_.duration_s = tail_->duration_s();
+    // Decoders hand out the codec's padding at the end too (AAC: up to one
+    // 1024-sample frame); the container's own duration excludes it, so the
+    // shorter of the two is the sound's length. A stream cut short decodes
+    // to less than its container says, and then the decoded length wins.
+    const double decoded_s = tail_->duration_s();
+    result_.duration_s = container_duration_s_ ? std::min(decoded_s, *container_duration_s_) : decoded_s;
     result_.silent_from_s = tail_->silent_from_s();
   }
   return result_;
