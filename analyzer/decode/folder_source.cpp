@@ -69,6 +69,7 @@ Status ImageDecoder::decode(const std::string& path, AVFrame* frame) {
   if (!packet_) return Error{ErrorKind::internal, path, "out of memory"};
   packet_->data = bytes_.data();
   packet_->size = static_cast<int>(*size);
+  packet_->flags = AV_PKT_FLAG_KEY;  // every picture stands alone
   clear_av_log_message();
   int rc = avcodec_send_packet(*decoder, packet_.get());
   if (rc >= 0) rc = avcodec_receive_frame(*decoder, frame);

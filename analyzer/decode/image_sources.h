@@ -29,7 +29,8 @@ Expected<std::unique_ptr<ClipSource>> open_folder_source(const std::string& fold
 Expected<std::pair<ClipInfo, StreamFacts>> probe_folder(const std::string& folder,
                                                         const SourceOptions& options);
 
-// True when the file starts like a WebP file ("RIFF" size "WEBP").
+// True when `path` is a regular file that starts like a WebP file ("RIFF"
+// size "WEBP"). Never opens anything else (a named pipe would block).
 bool looks_like_webp(const std::string& path);
 Expected<std::unique_ptr<ClipSource>> open_webp_source(const std::string& path,
                                                       const SourceOptions& options);

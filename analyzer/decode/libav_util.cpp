@@ -80,9 +80,10 @@ void clear_av_log_message() { t_last_av_error.clear(); }
 
 Expected<size_t> read_file_bytes(const std::string& path, std::vector<uint8_t>& bytes,
                                  size_t zero_padding) {
+  std::error_code ec;
+  if (!std::filesystem::is_regular_file(path, ec)) return input_error(path, "not a regular file");
   std::FILE* file = std::fopen(path.c_str(), "rb");
   if (!file) return input_error(path, std::string("cannot read the file (") + std::strerror(errno) + ")");
-  std::error_code ec;
   const auto size = std::filesystem::file_size(path, ec);
   size_t got = 0;
   if (!ec) {

@@ -2,6 +2,7 @@
 // cannot decode animated WebP. Still WebP files come out as one frame.
 #include <cstdio>
 #include <cstring>
+#include <filesystem>
 
 #include <opencv2/imgproc.hpp>
 #include <webp/demux.h>
@@ -127,6 +128,8 @@ class WebpSource final : public ClipSource {
 }  // namespace
 
 bool looks_like_webp(const std::string& path) {
+  std::error_code ec;
+  if (!std::filesystem::is_regular_file(path, ec)) return false;
   std::FILE* f = std::fopen(path.c_str(), "rb");
   if (!f) return false;
   char head[12] = {};

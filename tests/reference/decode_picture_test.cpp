@@ -179,3 +179,40 @@ TEST(DecodePicture, RotationMetadataIsApplied) {
   read_clip(clip, small, [&](const DecodedFrame& f) { seen = f.bgr.size(); });
   EXPECT_EQ(seen, cv::Size(48, 64));
 }
+
+// Scaling to the working size against OpenCV's INTER_AREA (pixel-area
+// resampling) of the same frames decoded at native size. Averaging in YUV
+// (our scaler) and in RGB (OpenCV) differ by rounding and by the siting of
+// the subsampled chroma: about 1 level on average for moderate colours,
+// with no bias. A chroma or colour-matrix mistake would show as a bias of
+// several levels in one channel.
+TEST(DecodePicture, WorkingSizeMatchesOpencvAreaResize) {
+  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  TempDir dir;
+  const std::string clip = dir.file("moderate.mp4");
+  ASSERT_EQ(make_lavfi_clip(clip, "testsrc2=size=320x240:rate=12:duration=1",
+                            {"-vf", "hue=s=0.4", "-c:v", "libx264", "-pix_fmt", "yuv420p"}),
+            "");
+  std::vector<cv::Mat> native, small;
+  SourceOptions options;
+  options.working_long_side = 0;
+  read_clip(clip, options, [&](const DecodedFrame& f) { native.push_back(f.bgr.clone()); });
+  for (int long_side : {160, 211}) {  // exactly half, and an odd size (211x158)
+    small.clear();
+    options.working_long_side = long_side;
+    const ReadClip got = read_clip(clip, options, [&](const DecodedFrame& f) { small.push_back(f.bgr.clone()); });
+    ASSERT_FALSE(got.error);
+    ASSERT_EQ(small.size(), native.size());
+    for (size_t i = 0; i < small.size(); ++i) {
+      cv::Mat reference, diff, signed_diff;
+      cv::resize(native[i], reference, small[i].size(), 0, 0, cv::INTER_AREA);
+      cv::absdiff(small[i], reference, diff);
+      cv::subtract(small[i], reference, signed_diff, cv::noArray(), CV_32F);
+      const cv::Scalar mean_abs = cv::mean(diff), bias = cv::mean(signed_diff);
+      for (int c = 0; c < 3; ++c) {
+        EXPECT_LT(mean_abs[c], 1.5) << "long side " << long_side << " frame " << i << " channel " << c;
+        EXPECT_LT(std::abs(bias[c]), 0.3) << "long side " << long_side << " frame " << i << " channel " << c;
+      }
+    }
+  }
+}
