@@ -34,14 +34,17 @@ cv::Size working_size(int width, int height, int long_side_px) {
   if (width <= 0 || height <= 0) return {0, 0};
   if (long_side_px <= 0) return {width, height};
   const double scale = static_cast<double>(long_side_px) / std::max(width, height);
-  const int w = width >= height ? long_side_px : std::max(1, static_cast<int>(std::lround(width * scale)));
-  const int h = height > width ? long_side_px : std::max(1, static_cast<int>(std::lround(height * scale)));
+  const int w =
+      width >= height ? long_side_px : std::max(1, static_cast<int>(std::lround(width * scale)));
+  const int h =
+      height > width ? long_side_px : std::max(1, static_cast<int>(std::lround(height * scale)));
   return {w, h};
 }
 
 int display_width(int stored_width, int sar_num, int sar_den) {
   if (sar_num <= 0 || sar_den <= 0 || sar_num == sar_den) return stored_width;
-  return std::max(1, static_cast<int>(std::lround(static_cast<double>(stored_width) * sar_num / sar_den)));
+  return std::max(
+      1, static_cast<int>(std::lround(static_cast<double>(stored_width) * sar_num / sar_den)));
 }
 
 void prepare_bgr(cv::Mat& mat, int rows, int cols) {
@@ -114,8 +117,8 @@ bool FrameScaler::ensure_context(const AVFrame& frame) {
 Status FrameScaler::convert(const AVFrame& frame, cv::Mat& bgr, const std::string& path) {
   if (!ensure_context(frame)) {
     const char* name = av_get_pix_fmt_name(static_cast<AVPixelFormat>(frame.format));
-    return input_error(path, std::string("cannot convert pixel format ") +
-                                 (name ? name : "unknown") + " to BGR");
+    return input_error(
+        path, std::string("cannot convert pixel format ") + (name ? name : "unknown") + " to BGR");
   }
   const bool quarter_turn = rotation_cw_ == 90 || rotation_cw_ == 270;
   const int out_w = quarter_turn ? output_.height : output_.width;

@@ -125,7 +125,8 @@ Expected<std::string> sha256_file(const std::string& path) {
   decode::Sha256 hash;
   std::vector<uint8_t> chunk(1 << 20);  // 1 MiB at a time: memory independent of file size
   size_t got;
-  while ((got = std::fread(chunk.data(), 1, chunk.size(), file)) > 0) hash.update(chunk.data(), got);
+  while ((got = std::fread(chunk.data(), 1, chunk.size(), file)) > 0)
+    hash.update(chunk.data(), got);
   const bool failed = std::ferror(file) != 0;
   std::fclose(file);
   if (failed) return input_error(path, "read error while hashing the file");

@@ -15,15 +15,17 @@ TEST(ProbeCli, PrintsClipFactsAsJson) {
   FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   const std::string clip = dir.file("harbour.mp4");
-  ASSERT_EQ(make_lavfi_clip(clip, "testsrc2=size=160x120:rate=24:duration=1", {"-c:v", "libx264"}), "");
+  ASSERT_EQ(make_lavfi_clip(clip, "testsrc2=size=160x120:rate=24:duration=1", {"-c:v", "libx264"}),
+            "");
   const CommandResult r = run_command({FRAMELINT_BINARY, "probe", clip});
   ASSERT_EQ(r.exit_code, 0) << r.err;
   const auto json = nlohmann::json::parse(r.out);
-  for (const char* key : {"path", "sha256", "container", "codec", "width", "height", "fps", "frame_count",
-                          "duration_s", "pix_fmt", "bit_depth", "rotation", "audio", "stream"})
+  for (const char* key :
+       {"path", "sha256", "container", "codec", "width", "height", "fps", "frame_count",
+        "duration_s", "pix_fmt", "bit_depth", "rotation", "audio", "stream"})
     EXPECT_TRUE(json.contains(key)) << key;
-  for (const char* key : {"video_duration_s", "audio_duration_s", "mismatch_s", "vfr", "dropped_frames",
-                          "duplicate_timestamps"})
+  for (const char* key : {"video_duration_s", "audio_duration_s", "mismatch_s", "vfr",
+                          "dropped_frames", "duplicate_timestamps"})
     EXPECT_TRUE(json["stream"].contains(key)) << key;
   EXPECT_EQ(json["frame_count"], 24);
   EXPECT_EQ(json["width"], 160);

@@ -31,7 +31,8 @@ std::string read_bytes(const std::string& path) {
 std::string cut_copy(const TempDir& dir, const std::string& whole, double fraction) {
   const std::string bytes = read_bytes(whole);
   const std::string cut = dir.file("cut_" + std::filesystem::path(whole).filename().string());
-  write_bytes(cut, bytes.substr(0, static_cast<size_t>(static_cast<double>(bytes.size()) * fraction)));
+  write_bytes(cut,
+              bytes.substr(0, static_cast<size_t>(static_cast<double>(bytes.size()) * fraction)));
   return cut;
 }
 
@@ -134,7 +135,8 @@ TEST(DecodeBadInput, HugeDeclaredFrameSize) {
   TempDir dir;
   // A YUV4MPEG2 header declaring 12000x12000 frames (144 Mpx), then noise.
   const std::string y4m = dir.file("huge.y4m");
-  write_bytes(y4m, "YUV4MPEG2 W12000 H12000 F24:1 Ip A1:1 C420jpeg\nFRAME\n" + random_bytes(5000, 4));
+  write_bytes(y4m,
+              "YUV4MPEG2 W12000 H12000 F24:1 Ip A1:1 C420jpeg\nFRAME\n" + random_bytes(5000, 4));
   expect_input_error(y4m, "beyond the supported limit");
 }
 
@@ -150,7 +152,8 @@ TEST(DecodeBadInput, EmptyFolderAndFolderWithoutFrames) {
 TEST(DecodeBadInput, CorruptPacketMidStreamIsSkipped) {
   FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
-  const std::string whole = make(dir, "whole.mp4", {"-c:v", "libx264", "-g", "24", "-movflags", "+faststart"});
+  const std::string whole =
+      make(dir, "whole.mp4", {"-c:v", "libx264", "-g", "24", "-movflags", "+faststart"});
   std::string bytes = read_bytes(whole);
   // Overwrite 300 bytes in the middle of the picture data (after the index).
   const size_t mdat = bytes.find("mdat");

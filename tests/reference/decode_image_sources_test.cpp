@@ -93,7 +93,7 @@ TEST(DecodeImageSources, JpegFolderAtWorkingSize) {
     expected.push_back(image);
   }
   SourceOptions options;
-  options.working_long_side = 80;  // default folder rate: 24 fps
+  options.working_long_side = 80;                // default folder rate: 24 fps
   std::vector<std::vector<double>> differences;  // ours[k] against every expected frame
   const ReadClip got = read_clip(folder, options, [&](const DecodedFrame& f) {
     differences.emplace_back();
@@ -132,9 +132,10 @@ TEST(DecodeImageSources, LosslessAnimatedWebpEqualsSourceFrames) {
   FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   const std::string webp = dir.file("anim.webp");
-  ASSERT_EQ(make_lavfi_clip(webp, "testsrc2=size=160x120:rate=10:duration=1.5",
-                            {"-c:v", "libwebp_anim", "-lossless", "1", "-pix_fmt", "bgra", "-loop", "0"}),
-            "");
+  ASSERT_EQ(
+      make_lavfi_clip(webp, "testsrc2=size=160x120:rate=10:duration=1.5",
+                      {"-c:v", "libwebp_anim", "-lossless", "1", "-pix_fmt", "bgra", "-loop", "0"}),
+      "");
   const std::string folder = write_frames(dir, "source", "s%d.png", 15, {}, 10);
   SourceOptions options;
   options.working_long_side = 0;

@@ -33,7 +33,8 @@ TEST(DecodeSha256sum, OpencvClipMatchesCoreutils) {
 TEST(DecodeSha256sum, SmallFilesAndFipsMessagesMatchCoreutils) {
   FRAMELINT_SKIP_WITHOUT_TOOL("sha256sum");
   TempDir dir;
-  std::vector<std::string> contents = {"", "abc", "abcdbcdecdefdefgefghfghighijhijkijkljklmklmnlmnomnopnopq",
+  std::vector<std::string> contents = {"", "abc",
+                                       "abcdbcdecdefdefgefghfghighijhijkijkljklmklmnlmnomnopnopq",
                                        std::string(1000000, 'a')};
   for (size_t n : {55u, 56u, 63u, 64u, 65u, 1048575u, 1048576u, 1048577u}) {
     std::string bytes(n, '\0');

@@ -31,7 +31,8 @@ std::optional<double> ffmpeg_silence_start(const std::string& clip) {
                                        "silencedetect=n=-50dB:d=1", "-f", "null", "-"});
   std::optional<double> start;
   const std::regex pattern("silence_start: ([0-9.]+)");
-  for (auto it = std::sregex_iterator(r.err.begin(), r.err.end(), pattern); it != std::sregex_iterator(); ++it)
+  for (auto it = std::sregex_iterator(r.err.begin(), r.err.end(), pattern);
+       it != std::sregex_iterator(); ++it)
     start = std::stod((*it)[1]);
   return start;
 }
@@ -65,11 +66,12 @@ double duration_or(const std::string& text, double fallback) {
 std::string make_clip_with_long_audio(const TempDir& dir, const std::string& name,
                                       const std::string& audio_codec) {
   const std::string clip = dir.file(name);
-  const std::string failed = make_lavfi_clip(
-      clip, "testsrc2=size=160x120:rate=24:duration=2",
-      {"-f", "lavfi", "-i", "sine=frequency=440:sample_rate=48000:duration=2.5", "-f", "lavfi", "-i",
-       "anullsrc=r=48000:cl=mono", "-filter_complex", "[2:a]atrim=duration=2.5[z];[1:a][z]concat=n=2:v=0:a=1[a]",
-       "-map", "0:v", "-map", "[a]", "-c:v", "libx264", "-c:a", audio_codec});
+  const std::string failed =
+      make_lavfi_clip(clip, "testsrc2=size=160x120:rate=24:duration=2",
+                      {"-f", "lavfi", "-i", "sine=frequency=440:sample_rate=48000:duration=2.5",
+                       "-f", "lavfi", "-i", "anullsrc=r=48000:cl=mono", "-filter_complex",
+                       "[2:a]atrim=duration=2.5[z];[1:a][z]concat=n=2:v=0:a=1[a]", "-map", "0:v",
+                       "-map", "[a]", "-c:v", "libx264", "-c:a", audio_codec});
   EXPECT_EQ(failed, "");
   return clip;
 }
@@ -78,12 +80,14 @@ void expect_long_audio_facts(const std::string& clip) {
   const ReadClip got = read_clip(clip, small_frames());
   ASSERT_FALSE(got.error) << got.error->message();
   ASSERT_TRUE(got.info.audio.present);
-  EXPECT_EQ(got.info.audio.codec, ffprobe_value(clip, "stream=codec_name", {"-select_streams", "a:0"}));
+  EXPECT_EQ(got.info.audio.codec,
+            ffprobe_value(clip, "stream=codec_name", {"-select_streams", "a:0"}));
   // Durations: within one AAC frame (1024 samples at 48 kHz = 21.3 ms) of
   // ffprobe's stream durations, and of the 5 s / 2 s of the construction.
   // Matroska keeps no per-stream duration (ffprobe: N/A): then the
   // construction's 5 s and 2 s are the reference.
-  const double audio_s = duration_or(ffprobe_value(clip, "stream=duration", {"-select_streams", "a:0"}), 5.0);
+  const double audio_s =
+      duration_or(ffprobe_value(clip, "stream=duration", {"-select_streams", "a:0"}), 5.0);
   const double video_s = duration_or(ffprobe_value(clip, "stream=duration"), 2.0);
   constexpr double kFrameTolerance_s = 1024.0 / 48000 + 1e-3;
   ASSERT_TRUE(got.info.audio.duration_s);
@@ -104,7 +108,8 @@ void expect_long_audio_facts(const std::string& clip) {
   // probe decodes the same audio from packets: the same answers.
   auto probed = probe_clip(clip, {});
   ASSERT_TRUE(probed.ok()) << probed.error().message();
-  EXPECT_NEAR((*probed)["audio"]["silent_from_s"].get<double>(), *got.info.audio.silent_from_s, 1e-9);
+  EXPECT_NEAR((*probed)["audio"]["silent_from_s"].get<double>(), *got.info.audio.silent_from_s,
+              1e-9);
   EXPECT_NEAR((*probed)["stream"]["mismatch_s"].get<double>(), *got.facts.mismatch_s, 1e-9);
 }
 
@@ -127,8 +132,8 @@ TEST(DecodeStreamFacts, AudibleToTheEndHasNoSilentTail) {
   TempDir dir;
   const std::string clip = dir.file("tone.mp4");
   ASSERT_EQ(make_lavfi_clip(clip, "testsrc2=size=160x120:rate=24:duration=2",
-                            {"-f", "lavfi", "-i", "sine=frequency=300:sample_rate=44100:duration=2", "-c:v",
-                             "libx264", "-c:a", "aac"}),
+                            {"-f", "lavfi", "-i", "sine=frequency=300:sample_rate=44100:duration=2",
+                             "-c:v", "libx264", "-c:a", "aac"}),
             "");
   const ReadClip got = read_clip(clip, small_frames());
   ASSERT_FALSE(got.error) << got.error->message();
@@ -145,8 +150,8 @@ TEST(DecodeStreamFacts, EveryTenthFrameDropped) {
   // 72 frames at 24 fps; frames 9, 19, ..., 69 removed, the others keep
   // their times (passthrough): 7 gaps of two intervals.
   ASSERT_EQ(make_lavfi_clip(clip, "testsrc2=size=160x120:rate=24:duration=3",
-                            {"-vf", "select='not(eq(mod(n\\,10)\\,9))'", "-vsync", "passthrough", "-c:v",
-                             "libx264"}),
+                            {"-vf", "select='not(eq(mod(n\\,10)\\,9))'", "-vsync", "passthrough",
+                             "-c:v", "libx264"}),
             "");
   const std::vector<double> times = ffprobe_frame_times(clip);
   const Gaps expected = gaps_in(times, 1.0 / 24);
@@ -166,11 +171,13 @@ TEST(DecodeStreamFacts, RepeatedTimestamp) {
   FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   const std::string clean = dir.file("clean.mkv"), repeated = dir.file("repeated.mkv");
-  ASSERT_EQ(make_lavfi_clip(clean, "testsrc2=size=160x120:rate=10:duration=2", {"-c:v", "mjpeg"}), "");
+  ASSERT_EQ(make_lavfi_clip(clean, "testsrc2=size=160x120:rate=10:duration=2", {"-c:v", "mjpeg"}),
+            "");
   // Stream copy with the setts bitstream filter: frame 4 takes frame 3's
   // time (Matroska accepts equal timestamps); frame 4's own slot is empty.
-  const CommandResult r = run_command({"ffmpeg", "-nostdin", "-v", "error", "-y", "-i", clean, "-c", "copy",
-                                       "-bsf:v", "setts=ts='if(eq(N,4),PREV_INPTS,PTS)'", repeated});
+  const CommandResult r =
+      run_command({"ffmpeg", "-nostdin", "-v", "error", "-y", "-i", clean, "-c", "copy", "-bsf:v",
+                   "setts=ts='if(eq(N,4),PREV_INPTS,PTS)'", repeated});
   ASSERT_EQ(r.exit_code, 0) << r.err;
   const Gaps expected = gaps_in(ffprobe_frame_times(repeated), 0.1);
   EXPECT_EQ(expected.repeats, 1);
