@@ -7,6 +7,7 @@
 #include <cmath>
 #include <cstdarg>
 #include <cstdio>
+#include <cstdlib>
 #include <cstring>
 #include <filesystem>
 #include <mutex>
@@ -20,8 +21,15 @@ namespace framelint::decode {
 namespace {
 
 thread_local std::string t_last_av_error;
+bool g_forward_av_log = false;  // FRAMELINT_AV_LOG=1: also print libav's log (for debugging)
 
-void quiet_log_callback(void*, int level, const char* format, va_list args) {
+void quiet_log_callback(void* context, int level, const char* format, va_list args) {
+  if (g_forward_av_log) {
+    va_list copy;
+    va_copy(copy, args);
+    av_log_default_callback(context, level, format, copy);
+    va_end(copy);
+  }
   if (level > AV_LOG_ERROR) return;
   char line[512];
   std::vsnprintf(line, sizeof line, format, args);
@@ -72,7 +80,11 @@ std::string av_error_text(int code) {
 
 void install_quiet_av_log() {
   static std::once_flag once;
-  std::call_once(once, [] { av_log_set_callback(quiet_log_callback); });
+  std::call_once(once, [] {
+    const char* forward = std::getenv("FRAMELINT_AV_LOG");
+    g_forward_av_log = forward && std::string(forward) == "1";
+    av_log_set_callback(quiet_log_callback);
+  });
 }
 
 std::string last_av_log_message() { return t_last_av_error; }
