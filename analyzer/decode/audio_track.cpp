@@ -1,5 +1,6 @@
 #include "analyzer/decode/audio_track.h"
 
+#include <algorithm>
 #include <cmath>
 
 extern "C" {
@@ -90,8 +91,8 @@ void AudioTrack::resample(const AVFrame* frame) {
     else
       av_channel_layout_copy(&in_layout, &frame->ch_layout);
     // Same rate, mono float: swr's default downmix averages the channels.
-    const int rc = swr_alloc_set_opts2(&raw, &mono, AV_SAMPLE_FMT_FLT, frame->sample_rate, &in_layout,
-                                       static_cast<AVSampleFormat>(frame->format),
+    const int rc = swr_alloc_set_opts2(&raw, &mono, AV_SAMPLE_FMT_FLT, frame->sample_rate,
+                                       &in_layout, static_cast<AVSampleFormat>(frame->format),
                                        frame->sample_rate, 0, nullptr);
     av_channel_layout_uninit(&in_layout);
     if (rc < 0 || swr_init(raw) < 0) {
@@ -105,8 +106,9 @@ void AudioTrack::resample(const AVFrame* frame) {
   const int capacity = frame->nb_samples + 256;
   if (static_cast<int>(mono_.size()) < capacity) mono_.resize(capacity);
   uint8_t* out[1] = {reinterpret_cast<uint8_t*>(mono_.data())};
-  const int converted = swr_convert(resampler_.get(), out, capacity,
-                                    const_cast<const uint8_t**>(frame->extended_data), frame->nb_samples);
+  const int converted =
+      swr_convert(resampler_.get(), out, capacity,
+                  const_cast<const uint8_t**>(frame->extended_data), frame->nb_samples);
   if (converted > 0) tail_->add(mono_.data(), converted);
 }
 
@@ -119,7 +121,13 @@ AudioInfo AudioTrack::finish() {
   result_.duration_s = container_duration_s_;
   if (tail_) {
     tail_->finish();
-    result_.duration_s = tail_->duration_s();
+    // Decoders hand out the codec's padding at the end too (AAC: up to one
+    // 1024-sample frame); the container's own duration excludes it, so the
+    // shorter of the two is the sound's length. A stream cut short decodes
+    // to less than its container says, and then the decoded length wins.
+    const double decoded_s = tail_->duration_s();
+    result_.duration_s =
+        container_duration_s_ ? std::min(decoded_s, *container_duration_s_) : decoded_s;
     result_.silent_from_s = tail_->silent_from_s();
   }
   return result_;

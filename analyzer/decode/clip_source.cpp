@@ -20,8 +20,8 @@ Expected<std::unique_ptr<ClipSource>> ClipSource::open(const std::string& path,
 Expected<nlohmann::json> probe_clip(const std::string& path, const SourceOptions& options) {
   std::error_code ec;
   auto facts = std::filesystem::is_directory(path, ec) ? decode::probe_folder(path, options)
-               : decode::looks_like_webp(path)        ? decode::probe_webp(path)
-                                                      : decode::probe_libav(path);
+               : decode::looks_like_webp(path)         ? decode::probe_webp(path)
+                                                       : decode::probe_libav(path);
   if (!facts) return facts.error();
   if (!std::filesystem::is_directory(path, ec)) {
     auto sha256 = sha256_file(path);

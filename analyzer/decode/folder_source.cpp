@@ -62,27 +62,31 @@ Status ImageDecoder::decode(const std::string& path, AVFrame* frame) {
   AVCodecID id = AV_CODEC_ID_NONE;
   static const uint8_t kPng[4] = {0x89, 'P', 'N', 'G'};
   if (*size >= 8 && std::equal(kPng, kPng + 4, bytes_.begin())) id = AV_CODEC_ID_PNG;
-  if (*size >= 3 && bytes_[0] == 0xFF && bytes_[1] == 0xD8 && bytes_[2] == 0xFF) id = AV_CODEC_ID_MJPEG;
+  if (*size >= 3 && bytes_[0] == 0xFF && bytes_[1] == 0xD8 && bytes_[2] == 0xFF)
+    id = AV_CODEC_ID_MJPEG;
   if (id == AV_CODEC_ID_NONE) return input_error(path, "not a PNG or JPEG image");
   auto decoder = decoder_for(id, path);
   if (!decoder) return decoder.error();
   if (!packet_) return Error{ErrorKind::internal, path, "out of memory"};
   packet_->data = bytes_.data();
   packet_->size = static_cast<int>(*size);
+  packet_->flags = AV_PKT_FLAG_KEY;  // every picture stands alone
   clear_av_log_message();
   int rc = avcodec_send_packet(*decoder, packet_.get());
   if (rc >= 0) rc = avcodec_receive_frame(*decoder, frame);
   if (rc < 0) {
     avcodec_flush_buffers(*decoder);
     std::string reason = last_av_log_message();
-    return input_error(path, "cannot decode the image (" + (reason.empty() ? av_error_text(rc) : reason) + ")");
+    return input_error(
+        path, "cannot decode the image (" + (reason.empty() ? av_error_text(rc) : reason) + ")");
   }
   return Ok{};
 }
 
 class FolderSource final : public ClipSource {
  public:
-  FolderSource(std::vector<std::string> files, double fps, FramePtr first, ClipInfo info, cv::Size output)
+  FolderSource(std::vector<std::string> files, double fps, FramePtr first, ClipInfo info,
+               cv::Size output)
       : files_(std::move(files)),
         frame_(std::move(first)),
         scaler_(output, 0),
@@ -102,9 +106,10 @@ class FolderSource final : public ClipSource {
       av_frame_unref(frame_.get());
       if (auto decoded = decoder_.decode(file, frame_.get()); !decoded) return decoded.error();
       if (frame_->width != first_width() || frame_->height != first_height())
-        return input_error(file, "frame size " + std::to_string(frame_->width) + "x" +
-                                     std::to_string(frame_->height) + " differs from the first frame's " +
-                                     std::to_string(first_width()) + "x" + std::to_string(first_height()));
+        return input_error(
+            file, "frame size " + std::to_string(frame_->width) + "x" +
+                      std::to_string(frame_->height) + " differs from the first frame's " +
+                      std::to_string(first_width()) + "x" + std::to_string(first_height()));
     }
     out.index = static_cast<int64_t>(next_);
     out.t_s = timing_.add(static_cast<int64_t>(next_));
@@ -129,7 +134,8 @@ class FolderSource final : public ClipSource {
 };
 
 // Lists the folder, decodes its first picture and describes the clip.
-Expected<std::unique_ptr<FolderSource>> open_folder(const std::string& folder, const SourceOptions& options) {
+Expected<std::unique_ptr<FolderSource>> open_folder(const std::string& folder,
+                                                    const SourceOptions& options) {
   install_quiet_av_log();
   std::vector<std::string> files = list_frame_files(folder);
   if (files.empty()) return input_error(folder, "folder holds no PNG or JPEG frames");
@@ -142,7 +148,8 @@ Expected<std::unique_ptr<FolderSource>> open_folder(const std::string& folder, c
   ClipInfo info;
   info.path = folder;
   info.container = "image_folder";
-  info.codec = lower(std::filesystem::path(files.front()).extension().string()) == ".png" ? "png" : "mjpeg";
+  info.codec =
+      lower(std::filesystem::path(files.front()).extension().string()) == ".png" ? "png" : "mjpeg";
   const auto* pixel = av_pix_fmt_desc_get(static_cast<AVPixelFormat>(first->format));
   info.pix_fmt = pixel ? pixel->name : "";
   info.bit_depth = pixel ? pixel->comp[0].depth : 8;
@@ -152,7 +159,8 @@ Expected<std::unique_ptr<FolderSource>> open_folder(const std::string& folder, c
   info.frame_count = static_cast<int64_t>(files.size());
   info.duration_s = static_cast<double>(files.size()) / fps;
   const cv::Size output = working_size(info.width, info.height, options.working_long_side);
-  return std::make_unique<FolderSource>(std::move(files), fps, std::move(first), std::move(info), output);
+  return std::make_unique<FolderSource>(std::move(files), fps, std::move(first), std::move(info),
+                                        output);
 }
 
 }  // namespace
@@ -187,14 +195,15 @@ std::vector<std::string> list_frame_files(const std::string& folder) {
   std::vector<std::string> names;
   std::error_code ec;
   for (const auto& entry : std::filesystem::directory_iterator(folder, ec))
-    if (entry.is_regular_file(ec) && is_frame_file(entry.path())) names.push_back(entry.path().filename().string());
+    if (entry.is_regular_file(ec) && is_frame_file(entry.path()))
+      names.push_back(entry.path().filename().string());
   std::sort(names.begin(), names.end(), natural_less);
   for (auto& name : names) name = (std::filesystem::path(folder) / name).string();
   return names;
 }
 
 Expected<std::unique_ptr<ClipSource>> open_folder_source(const std::string& folder,
-                                                        const SourceOptions& options) {
+                                                         const SourceOptions& options) {
   auto source = open_folder(folder, options);
   if (!source) return source.error();
   return std::unique_ptr<ClipSource>(std::move(*source));

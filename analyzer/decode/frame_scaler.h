@@ -2,6 +2,8 @@
 // colour, to BGR 8-bit at the working size, then the display rotation.
 #pragma once
 
+#include <vector>
+
 #include <opencv2/core.hpp>
 
 #include "analyzer/decode/libav_util.h"
@@ -20,10 +22,11 @@ cv::Size working_size(int width, int height, int long_side_px);
 int display_width(int stored_width, int sar_num, int sar_den);
 
 // Converts AVFrames of any pixel format (8/10/12-bit YUV, RGB, palette,
-// grey) to BGR24 at a fixed output size, reusing its libswscale context
+// grey) to BGR24 at a fixed output size, reusing its libswscale contexts
 // and buffers from frame to frame. Filter: area averaging when shrinking
 // (each output pixel is the mean of the input pixels it covers), bicubic
-// otherwise.
+// otherwise. Subsampled YUV goes through 4:4:4 at the output size first
+// (see frame_scaler.cpp for why).
 // Makes `mat` a rows x cols CV_8UC3 matrix that no other Mat shares,
 // reusing its buffer when possible.
 void prepare_bgr(cv::Mat& mat, int rows, int cols);
@@ -43,7 +46,10 @@ class FrameScaler {
 
   cv::Size output_;
   int rotation_cw_;
-  SwsPtr sws_;
+  SwsPtr to_444_;  // subsampled YUV only: to 4:4:4 at the output size
+  SwsPtr to_bgr_;  // to BGR24 (from the source, or from the 4:4:4 planes)
+  std::vector<uint8_t> planes_444_;
+  int plane_stride_ = 0;
   int src_width_ = 0, src_height_ = 0, src_format_ = -1, src_colorspace_ = -1, src_range_ = -1;
   cv::Mat unrotated_;  // scaling target when a rotation follows
 };

@@ -24,15 +24,16 @@ bool natural_less(const std::string& a, const std::string& b);
 std::vector<std::string> list_frame_files(const std::string& folder);
 
 Expected<std::unique_ptr<ClipSource>> open_folder_source(const std::string& folder,
-                                                        const SourceOptions& options);
+                                                         const SourceOptions& options);
 // probe: the folder's facts from its file list and first frame.
 Expected<std::pair<ClipInfo, StreamFacts>> probe_folder(const std::string& folder,
                                                         const SourceOptions& options);
 
-// True when the file starts like a WebP file ("RIFF" size "WEBP").
+// True when `path` is a regular file that starts like a WebP file ("RIFF"
+// size "WEBP"). Never opens anything else (a named pipe would block).
 bool looks_like_webp(const std::string& path);
 Expected<std::unique_ptr<ClipSource>> open_webp_source(const std::string& path,
-                                                      const SourceOptions& options);
+                                                       const SourceOptions& options);
 // probe: frame count and timing from the WebP container, no decoding.
 Expected<std::pair<ClipInfo, StreamFacts>> probe_webp(const std::string& path);
 

@@ -171,21 +171,24 @@ Status LibavSource::feed_decoder() {
 Status LibavSource::note_failure(int code) {
   if (++failures_in_a_row_ < kMaxFailuresInARow) return Ok{};
   finished_ = true;
-  end_error_ = input_error(path_, with_reason("cannot decode past frame " + std::to_string(frames_), code));
+  end_error_ =
+      input_error(path_, with_reason("cannot decode past frame " + std::to_string(frames_), code));
   return *end_error_;
 }
 
 Expected<bool> LibavSource::finish() {
   finished_ = true;
   facts_ = timing_.facts();
-  settle(info_, facts_, frames_, audio_ ? std::optional<AudioInfo>(audio_->finish()) : std::nullopt);
+  settle(info_, facts_, frames_,
+         audio_ ? std::optional<AudioInfo>(audio_->finish()) : std::nullopt);
   if (truncation_) {
-    end_error_ = input_error(path_, "truncated after frame " + std::to_string(frames_) + " (" +
-                                        *truncation_ + ")");
+    end_error_ = input_error(
+        path_, "truncated after frame " + std::to_string(frames_) + " (" + *truncation_ + ")");
   } else if (read_error_ != 0) {
-    std::string reason = read_error_reason_.empty() ? av_error_text(read_error_) : read_error_reason_;
-    end_error_ = input_error(path_, "truncated or unreadable after frame " + std::to_string(frames_) +
-                                        " (" + reason + ")");
+    std::string reason =
+        read_error_reason_.empty() ? av_error_text(read_error_) : read_error_reason_;
+    end_error_ = input_error(path_, "truncated or unreadable after frame " +
+                                        std::to_string(frames_) + " (" + reason + ")");
   } else if (frames_ == 0) {
     end_error_ = input_error(path_, "no frame could be decoded");
   }
@@ -200,7 +203,8 @@ double stated_frame_interval_s(const AVStream* stream) {
   return 0;
 }
 
-ClipInfo describe_container(const AVFormatContext* format, int video_index, const std::string& path) {
+ClipInfo describe_container(const AVFormatContext* format, int video_index,
+                            const std::string& path) {
   const AVStream* stream = format->streams[video_index];
   const AVCodecParameters* par = stream->codecpar;
   ClipInfo info;
@@ -224,10 +228,11 @@ ClipInfo describe_container(const AVFormatContext* format, int video_index, cons
     info.duration_s = static_cast<double>(stream->duration) * av_q2d(stream->time_base);
   else if (format->duration > 0)
     info.duration_s = static_cast<double>(format->duration) / AV_TIME_BASE;
-  info.frame_count = stream->nb_frames > 0 ? stream->nb_frames : std::llround(info.duration_s * info.fps);
+  info.frame_count =
+      stream->nb_frames > 0 ? stream->nb_frames : std::llround(info.duration_s * info.fps);
 
-  const int audio_index = av_find_best_stream(const_cast<AVFormatContext*>(format), AVMEDIA_TYPE_AUDIO,
-                                              -1, video_index, nullptr, 0);
+  const int audio_index = av_find_best_stream(const_cast<AVFormatContext*>(format),
+                                              AVMEDIA_TYPE_AUDIO, -1, video_index, nullptr, 0);
   if (audio_index >= 0) {
     const AVStream* audio = format->streams[audio_index];
     info.audio.present = true;
@@ -239,7 +244,7 @@ ClipInfo describe_container(const AVFormatContext* format, int video_index, cons
 }
 
 Expected<std::unique_ptr<ClipSource>> open_libav_source(const std::string& path,
-                                                       const SourceOptions& options) {
+                                                        const SourceOptions& options) {
   auto format = open_input(path);
   if (!format) return format.error();
   auto video_index = find_video_stream(format->get(), path);
@@ -279,22 +284,26 @@ Expected<std::pair<ClipInfo, StreamFacts>> probe_libav(const std::string& path) 
   clear_av_log_message();
   while ((rc = av_read_frame(fmt, packet.get())) >= 0) {
     if (packet->stream_index == *video_index && !(packet->flags & AV_PKT_FLAG_DISCARD))
-      stamps.push_back({known(packet->pts != AV_NOPTS_VALUE ? packet->pts : packet->dts),
-                        packet->duration});
+      stamps.push_back(
+          {known(packet->pts != AV_NOPTS_VALUE ? packet->pts : packet->dts), packet->duration});
     else if (audio && packet->stream_index == audio_index)
       audio->add_packet(*packet);
     av_packet_unref(packet.get());
     clear_av_log_message();
   }
   if (rc != AVERROR_EOF)
-    return input_error(path, with_reason("truncated or unreadable after packet " +
-                                             std::to_string(stamps.size()), rc));
+    return input_error(
+        path,
+        with_reason("truncated or unreadable after packet " + std::to_string(stamps.size()), rc));
   if (auto cut = find_truncation(path))
-    return input_error(path, "truncated after frame " + std::to_string(stamps.size()) + " (" + *cut + ")");
+    return input_error(
+        path, "truncated after frame " + std::to_string(stamps.size()) + " (" + *cut + ")");
   if (stamps.empty()) return input_error(path, "the video stream holds no frames");
-  const bool all_stamped = std::all_of(stamps.begin(), stamps.end(), [](const Stamp& s) { return s.ts; });
+  const bool all_stamped =
+      std::all_of(stamps.begin(), stamps.end(), [](const Stamp& s) { return s.ts; });
   if (all_stamped)  // decode order -> presentation order
-    std::stable_sort(stamps.begin(), stamps.end(), [](const Stamp& a, const Stamp& b) { return *a.ts < *b.ts; });
+    std::stable_sort(stamps.begin(), stamps.end(),
+                     [](const Stamp& a, const Stamp& b) { return *a.ts < *b.ts; });
   StreamTiming timing(av_q2d(video->time_base), stated_frame_interval_s(video));
   for (const Stamp& s : stamps) timing.add(s.ts, s.duration);
   StreamFacts facts = timing.facts();

@@ -13,14 +13,15 @@ namespace framelint::decode {
 // What the container says about the clip before decoding: format, codec,
 // pixel format, displayed size and rotation, estimated frame count,
 // duration and average rate, and whether there is sound.
-ClipInfo describe_container(const AVFormatContext* format, int video_index, const std::string& path);
+ClipInfo describe_container(const AVFormatContext* format, int video_index,
+                            const std::string& path);
 
 // The seconds per frame the container states (1 / average or guessed rate;
 // 0 when it states none).
 double stated_frame_interval_s(const AVStream* stream);
 
 Expected<std::unique_ptr<ClipSource>> open_libav_source(const std::string& path,
-                                                       const SourceOptions& options);
+                                                        const SourceOptions& options);
 
 // probe: frame count and timing facts from the video packets' timestamps
 // (no video decoding), audio facts from decoding the audio packets.

@@ -6,8 +6,9 @@
 #include <cerrno>
 #include <cmath>
 #include <cstdarg>
-#include <cstring>
 #include <cstdio>
+#include <cstdlib>
+#include <cstring>
 #include <filesystem>
 #include <mutex>
 #include <vector>
@@ -20,8 +21,15 @@ namespace framelint::decode {
 namespace {
 
 thread_local std::string t_last_av_error;
+bool g_forward_av_log = false;  // FRAMELINT_AV_LOG=1: also print libav's log (for debugging)
 
-void quiet_log_callback(void*, int level, const char* format, va_list args) {
+void quiet_log_callback(void* context, int level, const char* format, va_list args) {
+  if (g_forward_av_log) {
+    va_list copy;
+    va_copy(copy, args);
+    av_log_default_callback(context, level, format, copy);
+    va_end(copy);
+  }
   if (level > AV_LOG_ERROR) return;
   char line[512];
   std::vsnprintf(line, sizeof line, format, args);
@@ -72,7 +80,11 @@ std::string av_error_text(int code) {
 
 void install_quiet_av_log() {
   static std::once_flag once;
-  std::call_once(once, [] { av_log_set_callback(quiet_log_callback); });
+  std::call_once(once, [] {
+    const char* forward = std::getenv("FRAMELINT_AV_LOG");
+    g_forward_av_log = forward && std::string(forward) == "1";
+    av_log_set_callback(quiet_log_callback);
+  });
 }
 
 std::string last_av_log_message() { return t_last_av_error; }
@@ -80,9 +92,11 @@ void clear_av_log_message() { t_last_av_error.clear(); }
 
 Expected<size_t> read_file_bytes(const std::string& path, std::vector<uint8_t>& bytes,
                                  size_t zero_padding) {
-  std::FILE* file = std::fopen(path.c_str(), "rb");
-  if (!file) return input_error(path, std::string("cannot read the file (") + std::strerror(errno) + ")");
   std::error_code ec;
+  if (!std::filesystem::is_regular_file(path, ec)) return input_error(path, "not a regular file");
+  std::FILE* file = std::fopen(path.c_str(), "rb");
+  if (!file)
+    return input_error(path, std::string("cannot read the file (") + std::strerror(errno) + ")");
   const auto size = std::filesystem::file_size(path, ec);
   size_t got = 0;
   if (!ec) {
@@ -113,7 +127,8 @@ Expected<FormatPtr> open_input(const std::string& path) {
       return input_error(path, "cannot read the file (" + av_error_text(rc) + ")");
     if (rc == AVERROR_INVALIDDATA || rc == AVERROR_EOF) {
       if (auto cut = find_truncation(path)) return input_error(path, "truncated: " + *cut);
-      return input_error(path, with_reason("not a video file FFmpeg can read", last_av_log_message()));
+      return input_error(path,
+                         with_reason("not a video file FFmpeg can read", last_av_log_message()));
     }
     const std::string reason = last_av_log_message();
     return input_error(path, "cannot open: " + (reason.empty() ? av_error_text(rc) : reason));
@@ -133,7 +148,8 @@ Expected<FormatPtr> open_input(const std::string& path) {
   rc = avformat_find_stream_info(format.get(), stream_options.data());
   for (auto& options : stream_options) av_dict_free(&options);
   if (rc < 0)
-    return input_error(path, with_reason("not a video file FFmpeg can read", last_av_log_message()));
+    return input_error(path,
+                       with_reason("not a video file FFmpeg can read", last_av_log_message()));
   return format;
 }
 
@@ -144,8 +160,8 @@ Expected<int> find_video_stream(AVFormatContext* format, const std::string& path
     if (is_real_video(stream)) {
       const AVCodecParameters* par = stream->codecpar;
       if (par->width <= 0 || par->height <= 0)  // the first frame did not decode while probing
-        return input_error(path, with_reason("the first video frame does not decode",
-                                             last_av_log_message()));
+        return input_error(
+            path, with_reason("the first video frame does not decode", last_av_log_message()));
       if (!frame_size_allowed(par->width, par->height))
         return input_error(path, frame_size_cause(par->width, par->height));
       return static_cast<int>(i);
@@ -166,8 +182,8 @@ Expected<int> find_video_stream(AVFormatContext* format, const std::string& path
 Expected<CodecPtr> open_decoder(const AVStream* stream, int threads, const std::string& path) {
   const AVCodec* codec = avcodec_find_decoder(stream->codecpar->codec_id);
   if (!codec)
-    return input_error(path, std::string("no decoder for codec ") +
-                                 avcodec_get_name(stream->codecpar->codec_id));
+    return input_error(
+        path, std::string("no decoder for codec ") + avcodec_get_name(stream->codecpar->codec_id));
   CodecPtr context(avcodec_alloc_context3(codec));
   if (!context) return Error{ErrorKind::internal, path, "out of memory opening the decoder"};
   int rc = avcodec_parameters_to_context(context.get(), stream->codecpar);

@@ -56,8 +56,10 @@ std::string frame_size_cause(int width, int height);
 std::string av_error_text(int code);
 
 // Routes libav's log through a filter: nothing is printed (the CLI's output
-// stays one clear line per problem); the last error-level message of the
-// calling thread is kept so errors can quote libav's own reason.
+// stays one clear line per problem; FRAMELINT_AV_LOG=1 prints it too, for
+// debugging); the last error-level message of the calling thread is kept so
+// errors can quote libav's own reason. Note: libav's log callback is
+// process-wide, so a host program's own libav logging is silenced too.
 void install_quiet_av_log();
 // The last libav error message logged on this thread ("" if none), and
 // clearing it before a call whose reason we may want to quote.

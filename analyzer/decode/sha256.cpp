@@ -1,6 +1,7 @@
 #include "analyzer/decode/sha256.h"
 
 #include <cstdio>
+#include <filesystem>
 #include <vector>
 
 #include "framelint/clip_source.h"
@@ -116,12 +117,16 @@ std::string Sha256::hex_digest() {
 namespace framelint {
 
 Expected<std::string> sha256_file(const std::string& path) {
+  std::error_code ec;
+  if (!std::filesystem::is_regular_file(path, ec))  // a pipe or device could block or never end
+    return input_error(path, "not a regular file, cannot hash it");
   std::FILE* file = std::fopen(path.c_str(), "rb");
   if (!file) return input_error(path, "cannot read the file to hash it");
   decode::Sha256 hash;
   std::vector<uint8_t> chunk(1 << 20);  // 1 MiB at a time: memory independent of file size
   size_t got;
-  while ((got = std::fread(chunk.data(), 1, chunk.size(), file)) > 0) hash.update(chunk.data(), got);
+  while ((got = std::fread(chunk.data(), 1, chunk.size(), file)) > 0)
+    hash.update(chunk.data(), got);
   const bool failed = std::ferror(file) != 0;
   std::fclose(file);
   if (failed) return input_error(path, "read error while hashing the file");

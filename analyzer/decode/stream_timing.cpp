@@ -53,7 +53,8 @@ StreamFacts StreamTiming::facts() const {
       }
       if (std::abs(static_cast<double>(d) - nominal) > tolerance) facts.vfr = true;
       if (static_cast<double>(d) >= 1.5 * nominal)
-        facts.dropped_frames += static_cast<int>(std::llround(static_cast<double>(d) / nominal)) - 1;
+        facts.dropped_frames +=
+            static_cast<int>(std::llround(static_cast<double>(d) / nominal)) - 1;
     }
   } else {
     for (int64_t d : intervals_) facts.duplicate_timestamps += d <= 0;

@@ -24,7 +24,9 @@ class StreamTiming {
   // previous frame by one nominal interval. duration_ticks <= 0 = unknown.
   double add(std::optional<int64_t> timestamp_ticks, int64_t duration_ticks = 0);
 
-  int64_t frame_count() const { return static_cast<int64_t>(intervals_.size()) + (started_ ? 1 : 0); }
+  int64_t frame_count() const {
+    return static_cast<int64_t>(intervals_.size()) + (started_ ? 1 : 0);
+  }
 
   // Facts over the frames so far (audio fields left empty):
   //  - nominal interval = median of the positive inter-frame intervals;

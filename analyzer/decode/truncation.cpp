@@ -39,8 +39,8 @@ uint64_t little_endian32(const uint8_t* p) {
 }
 
 std::string ends_early(uint64_t file_size, const std::string& what, uint64_t declared_end) {
-  return "the file ends at byte " + std::to_string(file_size) + " but its " + what + " runs to byte " +
-         std::to_string(declared_end);
+  return "the file ends at byte " + std::to_string(file_size) + " but its " + what +
+         " runs to byte " + std::to_string(declared_end);
 }
 
 // ISO/IEC 14496-12 section 4.2: size (32-bit; 1 = a 64-bit size follows,

@@ -2,9 +2,10 @@
 // cannot decode animated WebP. Still WebP files come out as one frame.
 #include <cstdio>
 #include <cstring>
+#include <filesystem>
 
-#include <opencv2/imgproc.hpp>
 #include <webp/demux.h>
+#include <opencv2/imgproc.hpp>
 
 #include "analyzer/decode/frame_scaler.h"
 #include "analyzer/decode/image_sources.h"
@@ -41,7 +42,8 @@ Expected<std::unique_ptr<WebpFile>> open_webp(const std::string& path) {
   if (!frame_size_allowed(width, height)) return input_error(path, frame_size_cause(width, height));
 
   WebPAnimDecoderOptions options;
-  if (!WebPAnimDecoderOptionsInit(&options)) return Error{ErrorKind::internal, path, "libwebp version mismatch"};
+  if (!WebPAnimDecoderOptionsInit(&options))
+    return Error{ErrorKind::internal, path, "libwebp version mismatch"};
   options.color_mode = MODE_BGRA;
   options.use_threads = 1;
   file->decoder.reset(WebPAnimDecoderNew(&data, &options));
@@ -127,16 +129,19 @@ class WebpSource final : public ClipSource {
 }  // namespace
 
 bool looks_like_webp(const std::string& path) {
+  std::error_code ec;
+  if (!std::filesystem::is_regular_file(path, ec)) return false;
   std::FILE* f = std::fopen(path.c_str(), "rb");
   if (!f) return false;
   char head[12] = {};
   const size_t got = std::fread(head, 1, sizeof head, f);
   std::fclose(f);
-  return got == sizeof head && std::memcmp(head, "RIFF", 4) == 0 && std::memcmp(head + 8, "WEBP", 4) == 0;
+  return got == sizeof head && std::memcmp(head, "RIFF", 4) == 0 &&
+         std::memcmp(head + 8, "WEBP", 4) == 0;
 }
 
 Expected<std::unique_ptr<ClipSource>> open_webp_source(const std::string& path,
-                                                      const SourceOptions& options) {
+                                                       const SourceOptions& options) {
   auto file = open_webp(path);
   if (!file) return file.error();
   ClipInfo info = describe_webp(**file, path);

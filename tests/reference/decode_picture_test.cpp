@@ -29,12 +29,14 @@ double mean_bt601_luma(const cv::Mat& bgr) {
 // Per-frame |our luma - YAVG| stays within `tolerance` (8-bit levels).
 // yavg_scale converts YAVG to 8-bit levels (1/4 for 10-bit sources).
 void expect_luma_matches_signalstats(const std::string& clip, double yavg_scale, double tolerance) {
-  const std::vector<double> yavg = ffmpeg_frame_metadata(clip, "signalstats", "lavfi.signalstats.YAVG");
+  const std::vector<double> yavg =
+      ffmpeg_frame_metadata(clip, "signalstats", "lavfi.signalstats.YAVG");
   ASSERT_FALSE(yavg.empty()) << "ffmpeg signalstats gave nothing for " << clip;
   std::vector<double> ours;
   SourceOptions native;
   native.working_long_side = 0;  // native size: no resampling between us and the Y plane
-  const ReadClip got = read_clip(clip, native, [&](const DecodedFrame& f) { ours.push_back(mean_bt601_luma(f.bgr)); });
+  const ReadClip got = read_clip(
+      clip, native, [&](const DecodedFrame& f) { ours.push_back(mean_bt601_luma(f.bgr)); });
   ASSERT_FALSE(got.error) << got.error->message();
   ASSERT_EQ(ours.size(), yavg.size());
   double worst = 0;
@@ -60,7 +62,8 @@ TEST(DecodePicture, MeanLumaMatchesSignalstatsH264) {
   const std::string clip = dir.file("m.mp4");
   // testsrc2's colour bars and moving parts at 40 % saturation, faded in from black.
   ASSERT_EQ(make_lavfi_clip(clip, kFadingSource,
-                            {"-vf", "hue=s=0.4,fade=t=in:st=0:d=1.5", "-c:v", "libx264", "-pix_fmt", "yuv420p"}),
+                            {"-vf", "hue=s=0.4,fade=t=in:st=0:d=1.5", "-c:v", "libx264", "-pix_fmt",
+                             "yuv420p"}),
             "");
   expect_luma_matches_signalstats(clip, 1.0, 0.1);
 }
@@ -73,9 +76,10 @@ TEST(DecodePicture, MeanLumaMatchesSignalstatsSaturatedColours) {
   FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   const std::string clip = dir.file("s.mp4");
-  ASSERT_EQ(make_lavfi_clip(clip, kFadingSource,
-                            {"-vf", "fade=t=in:st=0:d=1.5", "-c:v", "libx264", "-pix_fmt", "yuv420p"}),
-            "");
+  ASSERT_EQ(
+      make_lavfi_clip(clip, kFadingSource,
+                      {"-vf", "fade=t=in:st=0:d=1.5", "-c:v", "libx264", "-pix_fmt", "yuv420p"}),
+      "");
   expect_luma_matches_signalstats(clip, 1.0, 1.0);
 }
 
@@ -115,7 +119,8 @@ bool mark_rotated_90(const std::string& path, int height) {
   const int32_t matrix[9] = {0, 0x10000, 0, -0x10000, 0, 0, height << 16, 0, 0x40000000};
   std::string packed;
   for (int32_t v : matrix)
-    for (int s = 24; s >= 0; s -= 8) packed.push_back(static_cast<char>((static_cast<uint32_t>(v) >> s) & 0xFF));
+    for (int s = 24; s >= 0; s -= 8)
+      packed.push_back(static_cast<char>((static_cast<uint32_t>(v) >> s) & 0xFF));
   file.seekp(static_cast<std::streamoff>(tkhd + 4 + 40));
   file.write(packed.data(), static_cast<std::streamsize>(packed.size()));
   return static_cast<bool>(file);
@@ -124,8 +129,9 @@ bool mark_rotated_90(const std::string& path, int height) {
 // The first frame as ffmpeg shows it (autorotation on), BGR.
 cv::Mat ffmpeg_first_frame(const std::string& clip, int width, int height, const TempDir& dir) {
   const std::string raw = dir.file("first.bgr");
-  const CommandResult r = run_command({"ffmpeg", "-nostdin", "-v", "error", "-y", "-i", clip, "-frames:v", "1",
-                                       "-f", "rawvideo", "-pix_fmt", "bgr24", raw});
+  const CommandResult r =
+      run_command({"ffmpeg", "-nostdin", "-v", "error", "-y", "-i", clip, "-frames:v", "1", "-f",
+                   "rawvideo", "-pix_fmt", "bgr24", raw});
   if (r.exit_code != 0) return {};
   std::ifstream in(raw, std::ios::binary);
   cv::Mat frame(height, width, CV_8UC3);
@@ -141,7 +147,8 @@ TEST(DecodePicture, RotationMetadataIsApplied) {
   const std::string clip = dir.file("portrait.mp4");
   // A white box in the top-left corner of a dark 160x120 picture.
   ASSERT_EQ(make_lavfi_clip(clip, "color=c=0x202020:size=160x120:rate=10:duration=1",
-                            {"-vf", "drawbox=x=0:y=0:w=40:h=30:color=white:t=fill", "-c:v", "libx264", "-pix_fmt", "yuv420p"}),
+                            {"-vf", "drawbox=x=0:y=0:w=40:h=30:color=white:t=fill", "-c:v",
+                             "libx264", "-pix_fmt", "yuv420p"}),
             "");
   ASSERT_TRUE(mark_rotated_90(clip, 120));
   // ffprobe reads the matrix as a display rotation of -90 degrees
@@ -178,4 +185,65 @@ TEST(DecodePicture, RotationMetadataIsApplied) {
   cv::Size seen;
   read_clip(clip, small, [&](const DecodedFrame& f) { seen = f.bgr.size(); });
   EXPECT_EQ(seen, cv::Size(48, 64));
+}
+
+// Scaling to the working size against OpenCV's INTER_AREA (pixel-area
+// resampling) of the same frames decoded at native size. Averaging in YUV
+// (our scaler) and in RGB (OpenCV) differ by rounding and by the siting of
+// the subsampled chroma: about 1 level on average for moderate colours,
+// with no bias. A chroma or colour-matrix mistake would show as a bias of
+// several levels in one channel.
+TEST(DecodePicture, WorkingSizeMatchesOpencvAreaResize) {
+  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  TempDir dir;
+  const std::string clip = dir.file("moderate.mp4");
+  ASSERT_EQ(make_lavfi_clip(clip, "testsrc2=size=320x240:rate=12:duration=1",
+                            {"-vf", "hue=s=0.4", "-c:v", "libx264", "-pix_fmt", "yuv420p"}),
+            "");
+  std::vector<cv::Mat> native, small;
+  SourceOptions options;
+  options.working_long_side = 0;
+  read_clip(clip, options, [&](const DecodedFrame& f) { native.push_back(f.bgr.clone()); });
+  for (int long_side : {160, 211}) {  // exactly half, and an odd size (211x158)
+    small.clear();
+    options.working_long_side = long_side;
+    const ReadClip got =
+        read_clip(clip, options, [&](const DecodedFrame& f) { small.push_back(f.bgr.clone()); });
+    ASSERT_FALSE(got.error);
+    ASSERT_EQ(small.size(), native.size());
+    for (size_t i = 0; i < small.size(); ++i) {
+      cv::Mat reference, diff, signed_diff;
+      cv::resize(native[i], reference, small[i].size(), 0, 0, cv::INTER_AREA);
+      cv::absdiff(small[i], reference, diff);
+      cv::subtract(small[i], reference, signed_diff, cv::noArray(), CV_32F);
+      const cv::Scalar mean_abs = cv::mean(diff), bias = cv::mean(signed_diff);
+      for (int c = 0; c < 3; ++c) {
+        EXPECT_LT(mean_abs[c], 1.5)
+            << "long side " << long_side << " frame " << i << " channel " << c;
+        EXPECT_LT(std::abs(bias[c]), 0.3)
+            << "long side " << long_side << " frame " << i << " channel " << c;
+      }
+    }
+  }
+}
+
+// Non-square pixels: the displayed width is the stored width times the
+// sample aspect ratio, as ffprobe's display_aspect_ratio states.
+TEST(DecodePicture, PixelAspectRatioWidensTheFrame) {
+  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  TempDir dir;
+  const std::string clip = dir.file("anamorphic.mp4");
+  ASSERT_EQ(make_lavfi_clip(clip, "testsrc2=size=160x120:rate=10:duration=1",
+                            {"-vf", "setsar=2", "-c:v", "libx264"}),
+            "");
+  EXPECT_EQ(ffprobe_value(clip, "stream=display_aspect_ratio"), "8:3");
+  SourceOptions options;
+  options.working_long_side = 64;
+  cv::Size seen;
+  const ReadClip got =
+      read_clip(clip, options, [&](const DecodedFrame& f) { seen = f.bgr.size(); });
+  ASSERT_FALSE(got.error);
+  EXPECT_EQ(got.info.width, 320);
+  EXPECT_EQ(got.info.height, 120);
+  EXPECT_EQ(seen, cv::Size(64, 24));  // 8:3
 }

@@ -44,8 +44,7 @@ void expect_frames_match_ffprobe(const std::string& clip) {
   EXPECT_EQ(got.info.frame_count, static_cast<int64_t>(expected.size()));
   auto probed = probe_clip(clip, {});
   ASSERT_TRUE(probed.ok()) << probed.error().message();
-  EXPECT_EQ((*probed)["frame_count"].get<int64_t>(), static_cast<int64_t>(expected.size()))
-      << clip;
+  EXPECT_EQ((*probed)["frame_count"].get<int64_t>(), static_cast<int64_t>(expected.size())) << clip;
   // The container description is FFmpeg's own naming.
   EXPECT_EQ(got.info.codec, ffprobe_value(clip, "stream=codec_name"));
   EXPECT_EQ(got.info.container, ffprobe_value(clip, "format=format_name"));
@@ -87,8 +86,8 @@ TEST(DecodeTimestamps, OpencvMegamindAvi) {
 TEST(DecodeTimestamps, H264Mp4WithBFrames) {
   FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
-  const auto clip = make_clip(dir, "a.mp4", kSmallSource,
-                              {"-c:v", "libx264", "-bf", "3", "-pix_fmt", "yuv420p"});
+  const auto clip =
+      make_clip(dir, "a.mp4", kSmallSource, {"-c:v", "libx264", "-bf", "3", "-pix_fmt", "yuv420p"});
   expect_frames_match_ffprobe(clip);
   const ReadClip got = read_clip(clip, small_frames());
   EXPECT_FALSE(got.facts.vfr);
@@ -100,9 +99,9 @@ TEST(DecodeTimestamps, H264Mp4WithBFrames) {
 TEST(DecodeTimestamps, Vp9Webm) {
   FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
-  const auto clip = make_clip(dir, "a.webm", kSmallSource,
-                              {"-c:v", "libvpx-vp9", "-deadline", "realtime", "-cpu-used", "8",
-                               "-b:v", "200k"});
+  const auto clip =
+      make_clip(dir, "a.webm", kSmallSource,
+                {"-c:v", "libvpx-vp9", "-deadline", "realtime", "-cpu-used", "8", "-b:v", "200k"});
   expect_frames_match_ffprobe(clip);
   // 24 fps in Matroska's 1 ms ticks: intervals of 41 and 42 ms, not VFR.
   EXPECT_FALSE(read_clip(clip, small_frames()).facts.vfr);
@@ -134,8 +133,8 @@ TEST(DecodeTimestamps, VariableFrameRate) {
   // filter and 1 ms ticks in the encoder and in Matroska keep the variation.
   const auto clip =
       make_clip(dir, "vfr.mkv", "testsrc2=size=160x120:rate=24:duration=3",
-                {"-vf", "settb=1/1000000,setpts='(N+0.3*sin(N))/(24*TB)'", "-vsync",
-                 "passthrough", "-enc_time_base:v", "1:1000", "-c:v", "libx264", "-bf", "0"});
+                {"-vf", "settb=1/1000000,setpts='(N+0.3*sin(N))/(24*TB)'", "-vsync", "passthrough",
+                 "-enc_time_base:v", "1:1000", "-c:v", "libx264", "-bf", "0"});
   expect_frames_match_ffprobe(clip);
   const ReadClip got = read_clip(clip, small_frames());
   EXPECT_TRUE(got.facts.vfr);

@@ -56,8 +56,10 @@ CommandResult run_command(const std::vector<std::string>& argv) {
   posix_spawn_file_actions_t actions;
   posix_spawn_file_actions_init(&actions);
   posix_spawn_file_actions_addopen(&actions, 0, "/dev/null", O_RDONLY, 0);
-  posix_spawn_file_actions_addopen(&actions, 1, out_path.c_str(), O_WRONLY | O_CREAT | O_TRUNC, 0644);
-  posix_spawn_file_actions_addopen(&actions, 2, err_path.c_str(), O_WRONLY | O_CREAT | O_TRUNC, 0644);
+  posix_spawn_file_actions_addopen(&actions, 1, out_path.c_str(), O_WRONLY | O_CREAT | O_TRUNC,
+                                   0644);
+  posix_spawn_file_actions_addopen(&actions, 2, err_path.c_str(), O_WRONLY | O_CREAT | O_TRUNC,
+                                   0644);
   std::vector<char*> args;
   for (const auto& a : argv) args.push_back(const_cast<char*>(a.c_str()));
   args.push_back(nullptr);
@@ -82,7 +84,8 @@ bool have_tool(const std::string& name) {
   std::stringstream dirs(path ? path : "/usr/bin:/bin");
   std::string dir;
   while (std::getline(dirs, dir, ':'))
-    if (!dir.empty() && ::access((std::filesystem::path(dir) / name).c_str(), X_OK) == 0) return true;
+    if (!dir.empty() && ::access((std::filesystem::path(dir) / name).c_str(), X_OK) == 0)
+      return true;
   return false;
 }
 
@@ -143,7 +146,8 @@ std::vector<double> ffmpeg_frame_metadata(const std::string& clip, const std::st
 }
 
 std::optional<std::string> opencv_data(const std::string& name) {
-  const std::filesystem::path p = std::filesystem::path("/usr/share/doc/opencv-doc/examples/data") / name;
+  const std::filesystem::path p =
+      std::filesystem::path("/usr/share/doc/opencv-doc/examples/data") / name;
   if (std::filesystem::exists(p)) return p.string();
   return std::nullopt;
 }

@@ -49,8 +49,8 @@ CommandResult run_command(const std::vector<std::string>& argv);
 bool have_tool(const std::string& name);
 
 // Skips the current test with a clear message when a tool is missing.
-#define FRAMELINT_SKIP_WITHOUT_TOOL(name)                                      \
-  do {                                                                       \
+#define FRAMELINT_SKIP_WITHOUT_TOOL(name)                                                   \
+  do {                                                                                      \
     if (!::framelint::test::have_tool(name)) GTEST_SKIP() << (name) << " is not installed"; \
   } while (0)
 
@@ -89,8 +89,8 @@ std::vector<double> ffmpeg_frame_metadata(const std::string& clip, const std::st
 // installed. Use with FRAMELINT_SKIP_WITHOUT_DATA.
 std::optional<std::string> opencv_data(const std::string& name);
 
-#define FRAMELINT_SKIP_WITHOUT_DATA(var, name)                                    \
-  const std::optional<std::string> var##_found = ::framelint::test::opencv_data(name); \
+#define FRAMELINT_SKIP_WITHOUT_DATA(var, name)                                             \
+  const std::optional<std::string> var##_found = ::framelint::test::opencv_data(name);     \
   if (!var##_found) GTEST_SKIP() << "opencv-doc sample " << (name) << " is not installed"; \
   const std::string var = *var##_found
 

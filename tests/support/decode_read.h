@@ -11,10 +11,10 @@
 namespace framelint::test {
 
 struct ReadClip {
-  std::optional<Error> error;     // from open() or from a read()
-  std::vector<double> times_s;    // t_s of every frame handed out
-  ClipInfo info;                  // info() after the last read
-  StreamFacts facts;              // stream_facts() after the last read
+  std::optional<Error> error;   // from open() or from a read()
+  std::vector<double> times_s;  // t_s of every frame handed out
+  ClipInfo info;                // info() after the last read
+  StreamFacts facts;            // stream_facts() after the last read
 };
 
 // Opens `path` and reads every frame; `on_frame` sees each one.

@@ -50,7 +50,8 @@ namespace {
 std::vector<float> tone_then_silence(int rate, double tone_s, double silence_s, float amplitude) {
   std::vector<float> samples;
   const int tone = static_cast<int>(tone_s * rate), quiet = static_cast<int>(silence_s * rate);
-  for (int i = 0; i < tone; ++i) samples.push_back(amplitude * static_cast<float>(std::sin(2 * M_PI * 440.0 * i / rate)));
+  for (int i = 0; i < tone; ++i)
+    samples.push_back(amplitude * static_cast<float>(std::sin(2 * M_PI * 440.0 * i / rate)));
   samples.insert(samples.end(), quiet, 0.0f);
   return samples;
 }
@@ -94,7 +95,8 @@ struct MemoryFile final : FileBytes {
   std::vector<uint8_t> read_at(uint64_t offset, size_t count) const override {
     if (offset >= bytes.size()) return {};
     const size_t n = std::min<size_t>(count, bytes.size() - offset);
-    return {bytes.begin() + static_cast<std::ptrdiff_t>(offset), bytes.begin() + static_cast<std::ptrdiff_t>(offset + n)};
+    return {bytes.begin() + static_cast<std::ptrdiff_t>(offset),
+            bytes.begin() + static_cast<std::ptrdiff_t>(offset + n)};
   }
 };
 void put_be32(std::vector<uint8_t>& b, uint32_t v) {
@@ -136,7 +138,8 @@ TEST(Truncation, RiffChunkMustFitInTheFile) {
 
 TEST(Truncation, MatroskaSegmentMustFitUnlessSizeIsUnknown) {
   // EBML header of 4 payload bytes, then a Segment of declared size 200.
-  std::vector<uint8_t> b = {0x1A, 0x45, 0xDF, 0xA3, 0x84, 0, 0, 0, 0, 0x18, 0x53, 0x80, 0x67, 0x40, 200};
+  std::vector<uint8_t> b = {0x1A, 0x45, 0xDF, 0xA3, 0x84, 0,    0,  0,
+                            0,    0x18, 0x53, 0x80, 0x67, 0x40, 200};
   b.resize(b.size() + 200, 0);
   EXPECT_FALSE(find_truncation(MemoryFile(b)));
   b.resize(150);
