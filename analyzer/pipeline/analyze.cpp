@@ -154,11 +154,13 @@ Expected<Report> analyze_source(ClipSource& source, const std::string& path, con
     if (hooks.timings) hooks.timings->decode_ms += stream.busy_ms();
   }
   MetricTable& table = analysis.finish();
-  if (table.frame_count() == 0)
-    return input_error(path, stopped ? stopped->cause : "no video frames could be decoded");
+  // A clip that cannot be read to its end is an input error (exit 3), like
+  // one that cannot be opened: a verdict on part of a clip would mislead.
+  if (stopped) return *stopped;
+  if (table.frame_count() == 0) return input_error(path, "no video frames could be decoded");
 
   const auto finishing = Clock::now();
-  ReportInputs inputs{path, settings, policy, source, stopped};
+  ReportInputs inputs{path, settings, policy, source};
   Report report = assemble_report(inputs, table, analysis.metrics());
   if (PipelineTimings* t = hooks.timings) {
     analysis.add_times(*t);

@@ -18,18 +18,10 @@ Report assemble_report(const ReportInputs& in, MetricTable& table,
   report.settings = settings_to_json(in.settings);
   table.move_into(report);
 
-  // Frame facts come from what was decoded, not from the container's guess.
-  const auto& t = report.frame_times_s;
-  report.clip.frame_count = static_cast<int64_t>(t.size());
+  // After the last read the source's facts are exact (frame count, the last
+  // frame's real duration, average fps); the count is what was analysed.
+  report.clip.frame_count = static_cast<int64_t>(report.frame_times_s.size());
   report.summary.stream = in.source.stream_facts();
-  if (t.size() >= 2) {
-    const double interval = (t.back() - t.front()) / static_cast<double>(t.size() - 1);
-    report.clip.fps = interval > 0 ? 1.0 / interval : report.clip.fps;
-    report.clip.duration_s = t.back() - t.front() + (interval > 0 ? interval : 0);
-  }
-  if (in.stopped)
-    report.notes.push_back("decoding stopped early after frame " + std::to_string(t.size() - 1) + ": " +
-                           in.stopped->cause);
 
   for (auto& m : metrics) m->finish(report);  // may add details, objects, segments
 

@@ -18,7 +18,6 @@ struct ReportInputs {
   const AnalysisSettings& settings;
   const Policy& policy;
   const ClipSource& source;
-  const std::optional<Error>& stopped;  // decoding ended early on corrupt data
 };
 
 Report assemble_report(const ReportInputs& in, MetricTable& table,

@@ -76,12 +76,10 @@ TEST(AnalyzeCli, BadInputsFailCleanlyAndGoodClipsAreStillReported) {
   EXPECT_EQ(result.exit_code, 3) << result.err;
   EXPECT_TRUE(std::filesystem::exists(dir.file("out/good.json")));
   EXPECT_TRUE(std::filesystem::exists(dir.file("out/good-2.json")));
-  // One line per unreadable input, each naming it. (A truncated mp4 whose
-  // index is gone cannot be opened at all; a truncated stream that still
-  // opens is analysed up to where it ends, with a note in the report.)
+  // One line per unreadable input, each naming it.
   size_t named = 0;
   for (const auto& path : bad) named += result.err.find(path) != std::string::npos;
-  EXPECT_GE(named, bad.size() - 1) << result.err;
+  EXPECT_EQ(named, bad.size()) << result.err;
   EXPECT_LE(count_lines(result.err), bad.size()) << result.err;
   EXPECT_EQ(result.err.find("Assertion"), std::string::npos);
 }
