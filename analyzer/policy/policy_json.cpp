@@ -6,6 +6,7 @@
 // every key must be known, every value of the right type, every threshold
 // possible. policy_to_json writes a removal (null) for each default rule the
 // policy lacks, so any policy printed and read back is the same policy.
+#include <algorithm>
 #include <cmath>
 #include <fstream>
 #include <set>
@@ -181,6 +182,12 @@ Policy read_policy(const json& doc, const std::set<std::string>& known_metrics) 
 ordered_json optional_json(const std::optional<double>& v) { return v ? ordered_json(*v) : ordered_json(nullptr); }
 ordered_json peak_json(double v) { return std::isfinite(v) ? ordered_json(v) : ordered_json(nullptr); }
 
+std::pair<size_t, std::string> statistic_rank(const std::string& statistic) {
+  const auto& known = policy_statistics();
+  const auto it = std::find(known.begin(), known.end(), statistic);
+  return {static_cast<size_t>(it - known.begin()), statistic};
+}
+
 ordered_json metrics_json(const Policy& p) {
   ordered_json metrics = ordered_json::object();
   std::set<std::string> names;
@@ -198,10 +205,17 @@ ordered_json metrics_json(const Policy& p) {
                           {"review_peak", peak_json(r.review_peak)},
                           {"reject_peak", peak_json(r.reject_peak)}};
     }
+    // Statistics in a fixed order (policy_statistics(), then details keys by
+    // name) so printing does not depend on the order rules were added in.
+    std::vector<const SummaryRule*> rules;
     for (const auto& rule : p.rules)
-      if (rule.metric == metric)
-        entry["thresholds"][rule.statistic] = {{"review", optional_json(rule.review)},
-                                               {"reject", optional_json(rule.reject)}};
+      if (rule.metric == metric) rules.push_back(&rule);
+    std::stable_sort(rules.begin(), rules.end(), [](const SummaryRule* a, const SummaryRule* b) {
+      return statistic_rank(a->statistic) < statistic_rank(b->statistic);
+    });
+    for (const SummaryRule* rule : rules)
+      entry["thresholds"][rule->statistic] = {{"review", optional_json(rule->review)},
+                                              {"reject", optional_json(rule->reject)}};
     metrics[metric] = std::move(entry);
   }
   return metrics;
