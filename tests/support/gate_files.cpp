@@ -1,30 +1,20 @@
 #include "support/gate_files.h"
 
+#include "support/clips.h"
+
 #include <fcntl.h>
 #include <spawn.h>
 #include <sys/wait.h>
 #include <unistd.h>
 
+#include <cerrno>
 #include <fstream>
-#include <random>
 #include <sstream>
 
 extern char** environ;
 
-namespace framelint::testing {
+namespace framelint::test {
 namespace fs = std::filesystem;
-
-TempDir::TempDir(const std::string& label) {
-  std::random_device rd;
-  path = fs::temp_directory_path() / ("framelint-" + label + "-" + std::to_string(getpid()) + "-" +
-                                      std::to_string(rd()));
-  fs::create_directories(path);
-}
-
-TempDir::~TempDir() {
-  std::error_code ec;
-  fs::remove_all(path, ec);
-}
 
 void write_text(const fs::path& path, const std::string& text) {
   if (path.has_parent_path()) fs::create_directories(path.parent_path());
@@ -46,13 +36,14 @@ std::vector<std::string> read_lines(const fs::path& path) {
   return lines;
 }
 
-namespace {
-
-int spawn(const std::vector<std::string>& argv, const std::string& out_path, const std::string& err_path) {
+int start_program(const std::vector<std::string>& argv, const fs::path& log_dir) {
+  fs::create_directories(log_dir);
+  const std::string out = (log_dir / "stdout").string(), err = (log_dir / "stderr").string();
   posix_spawn_file_actions_t actions;
   posix_spawn_file_actions_init(&actions);
-  posix_spawn_file_actions_addopen(&actions, 1, out_path.c_str(), O_WRONLY | O_CREAT | O_TRUNC, 0644);
-  posix_spawn_file_actions_addopen(&actions, 2, err_path.c_str(), O_WRONLY | O_CREAT | O_TRUNC, 0644);
+  posix_spawn_file_actions_addopen(&actions, 0, "/dev/null", O_RDONLY, 0);
+  posix_spawn_file_actions_addopen(&actions, 1, out.c_str(), O_WRONLY | O_CREAT | O_TRUNC, 0644);
+  posix_spawn_file_actions_addopen(&actions, 2, err.c_str(), O_WRONLY | O_CREAT | O_TRUNC, 0644);
   std::vector<char*> args;
   for (const auto& a : argv) args.push_back(const_cast<char*>(a.c_str()));
   args.push_back(nullptr);
@@ -62,31 +53,22 @@ int spawn(const std::vector<std::string>& argv, const std::string& out_path, con
   return pid;
 }
 
-}  // namespace
+int wait_program(int pid) {
+  int status = 0;
+  while (waitpid(pid, &status, 0) < 0)
+    if (errno != EINTR) return -1;
+  return WIFEXITED(status) ? WEXITSTATUS(status) : -1;
+}
 
-RunResult run_program(const std::vector<std::string>& argv) {
-  TempDir logs("run");
-  const std::string out = (logs.path / "out").string(), err = (logs.path / "err").string();
-  RunResult r;
-  const int pid = spawn(argv, out, err);
-  if (pid > 0) {
-    int status = 0;
-    while (waitpid(pid, &status, 0) < 0 && errno == EINTR) {
-    }
-    if (WIFEXITED(status)) r.exit_status = WEXITSTATUS(status);
+std::string make_varied_clips(const fs::path& dir, int n, const std::string& stem) {
+  fs::create_directories(dir);
+  for (int i = 0; i < n; ++i) {
+    const std::string out = (dir / (stem + "_" + std::to_string(i) + ".mp4")).string();
+    std::string err = make_lavfi_clip(out, "testsrc2=size=160x120:rate=12:duration=1",
+                                      {"-vf", "hue=h=" + std::to_string(i * 37 % 360), "-pix_fmt", "yuv420p"});
+    if (!err.empty()) return err;
   }
-  r.out = read_text(out);
-  r.err = read_text(err);
-  return r;
+  return "";
 }
 
-int start_program(const std::vector<std::string>& argv, const fs::path& log_dir) {
-  fs::create_directories(log_dir);
-  return spawn(argv, (log_dir / "stdout").string(), (log_dir / "stderr").string());
-}
-
-bool have_tool(const std::string& tool) {
-  return run_program({"sh", "-c", "command -v " + tool + " >/dev/null 2>&1"}).exit_status == 0;
-}
-
-}  // namespace framelint::testing
+}  // namespace framelint::test

@@ -1,41 +1,30 @@
-// Files for the gate's tests: a temporary folder removed at the end, small
-// text files, and running the framelint binary as a child process.
+// What the gate's tests need beyond support/clips.h: small text files and a
+// framelint child started in the background (to be killed mid-batch).
 #pragma once
 
 #include <filesystem>
 #include <string>
 #include <vector>
 
-namespace framelint::testing {
-
-struct TempDir {
-  explicit TempDir(const std::string& label);
-  ~TempDir();
-  TempDir(const TempDir&) = delete;
-  TempDir& operator=(const TempDir&) = delete;
-  std::filesystem::path path;
-};
+namespace framelint::test {
 
 // Writes `text` to `path`, creating parent folders.
 void write_text(const std::filesystem::path& path, const std::string& text);
 std::string read_text(const std::filesystem::path& path);
-// Lines of a text file, without the newline.
+// Non-empty lines of a text file, without the newline.
 std::vector<std::string> read_lines(const std::filesystem::path& path);
 
-struct RunResult {
-  int exit_status = -1;  // -1 when the child did not exit normally
-  std::string out;       // stdout
-  std::string err;       // stderr
-};
-
-// Runs the program with arguments (no shell), waiting for it.
-RunResult run_program(const std::vector<std::string>& argv);
-
-// Starts the program in the background; stdout/stderr go to files in
-// `log_dir`. Returns the child's pid.
+// Starts a program (no shell) without waiting; its stdout and stderr go to
+// `log_dir`/stdout and `log_dir`/stderr. Returns the child's pid, or -1.
 int start_program(const std::vector<std::string>& argv, const std::filesystem::path& log_dir);
 
-// True if `tool` is on PATH.
-bool have_tool(const std::string& tool);
+// Waits for a child started by start_program; its exit status, or -1 when
+// it did not exit normally (e.g. killed by a signal).
+int wait_program(int pid);
 
-}  // namespace framelint::testing
+// Makes `n` small different clips (FFmpeg's testsrc2 at 160x120, 12 fps,
+// 1 s, each with its own hue) named <stem>_<i>.mp4 in `dir`. Returns "" on
+// success, else ffmpeg's complaint.
+std::string make_varied_clips(const std::filesystem::path& dir, int n, const std::string& stem = "clip");
+
+}  // namespace framelint::test

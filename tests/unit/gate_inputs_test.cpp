@@ -12,31 +12,31 @@
 #include <set>
 
 #include "framelint/gate.h"
+#include "support/clips.h"
 #include "support/gate_files.h"
 
 using namespace framelint;
+using namespace framelint::test;
 namespace fs = std::filesystem;
-using framelint::testing::TempDir;
-using framelint::testing::write_text;
 
 TEST(GateInputs, ManifestFieldsAndRelativePaths) {
-  TempDir dir("manifest");
-  write_text(dir.path / "m.jsonl",
+  TempDir dir;
+  write_text(dir.path() / "m.jsonl",
              "{\"path\": \"a.mp4\", \"id\": \"clip-a\", \"prompt_id\": \"p1\", \"model\": \"ckpt-7\", \"seed\": 42, "
              "\"cfg\": 6.5, \"tags\": [\"x\"]}\n"
              "\n"
              "{\"path\": \"/abs/b.mp4\", \"prompt_id\": 17}\r\n");
-  auto got = collect_inputs({(dir.path / "m.jsonl").string()});
+  auto got = collect_inputs({(dir.path() / "m.jsonl").string()});
   ASSERT_TRUE(got.ok()) << got.error().message();
   ASSERT_EQ(got->inputs.size(), 2u);
   const GateInput& a = got->inputs[0];
-  EXPECT_EQ(a.path, (dir.path / "a.mp4").string());
+  EXPECT_EQ(a.path, (dir.path() / "a.mp4").string());
   EXPECT_EQ(a.id, "clip-a");
   EXPECT_EQ(a.prompt_id, "p1");
   EXPECT_EQ(a.model, "ckpt-7");
   EXPECT_EQ(a.seed, 42);
   EXPECT_EQ(a.metadata, (nlohmann::json{{"cfg", 6.5}, {"tags", {"x"}}}));
-  EXPECT_EQ(a.origin, (dir.path / "m.jsonl").string() + ":1");
+  EXPECT_EQ(a.origin, (dir.path() / "m.jsonl").string() + ":1");
   const GateInput& b = got->inputs[1];
   EXPECT_EQ(b.path, "/abs/b.mp4");
   EXPECT_EQ(b.id, "/abs/b.mp4");  // no id: the path is the id
@@ -46,8 +46,8 @@ TEST(GateInputs, ManifestFieldsAndRelativePaths) {
 }
 
 TEST(GateInputs, ManifestErrorsNameFileAndLine) {
-  TempDir dir("manifest-errors");
-  const std::string m = (dir.path / "m.jsonl").string();
+  TempDir dir;
+  const std::string m = (dir.path() / "m.jsonl").string();
   auto error_of = [&](const std::string& text) {
     write_text(m, text);
     auto got = collect_inputs({m});
@@ -69,14 +69,14 @@ TEST(GateInputs, ManifestErrorsNameFileAndLine) {
   e = error_of("{\"path\": \"a.mp4\", \"id\": \"x\"}\n{\"path\": \"b.mp4\", \"id\": \"x\"}\n");
   EXPECT_NE(e.find(m + ":2"), std::string::npos) << e;
   EXPECT_NE(e.find(m + ":1"), std::string::npos) << e;  // names where the id was first used
-  auto missing = collect_inputs({(dir.path / "none.jsonl").string()});
+  auto missing = collect_inputs({(dir.path() / "none.jsonl").string()});
   ASSERT_FALSE(missing.ok());
   EXPECT_EQ(missing.error().kind, ErrorKind::usage);
 }
 
 TEST(GateInputs, FoldersAreSearchedForVideosAndFrameFolders) {
-  TempDir dir("folders");
-  const fs::path root = dir.path / "batch";
+  TempDir dir;
+  const fs::path root = dir.path() / "batch";
   write_text(root / "b.mp4", "x");
   write_text(root / "a.MOV", "x");
   write_text(root / "notes.txt", "x");
@@ -100,12 +100,12 @@ TEST(GateInputs, FoldersAreSearchedForVideosAndFrameFolders) {
 }
 
 TEST(GateInputs, SpacesAndUnicodeInPaths) {
-  TempDir dir("unicode");
-  const fs::path folder = dir.path / "prises de vue ü";
+  TempDir dir;
+  const fs::path folder = dir.path() / "prises de vue ü";
   write_text(folder / "plan 1 — été.mp4", "x");
   write_text(folder / "镜头 2.webm", "x");
-  write_text(dir.path / "list.jsonl", "{\"path\": \"prises de vue ü/plan 1 — été.mp4\", \"id\": \"été 1\"}\n");
-  auto got = collect_inputs({folder.string(), (dir.path / "list.jsonl").string()});
+  write_text(dir.path() / "list.jsonl", "{\"path\": \"prises de vue ü/plan 1 — été.mp4\", \"id\": \"été 1\"}\n");
+  auto got = collect_inputs({folder.string(), (dir.path() / "list.jsonl").string()});
   ASSERT_TRUE(got.ok()) << got.error().message();
   ASSERT_EQ(got->inputs.size(), 3u);
   EXPECT_EQ(got->inputs[0].path, (folder / "plan 1 — été.mp4").string());

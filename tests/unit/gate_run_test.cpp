@@ -14,15 +14,13 @@
 #include "framelint/gate.h"
 #include "framelint/policy.h"
 #include "framelint/store.h"
+#include "support/clips.h"
 #include "support/gate_files.h"
 #include "support/gate_fixtures.h"
 
 using namespace framelint;
+using namespace framelint::test;
 namespace fs = std::filesystem;
-using framelint::testing::read_lines;
-using framelint::testing::read_text;
-using framelint::testing::TempDir;
-using framelint::testing::write_text;
 
 namespace {
 
@@ -85,24 +83,24 @@ std::vector<nlohmann::json> queue_of(const fs::path& out) {
 }  // namespace
 
 TEST(GateRun, QueueInInputOrderWithErrorsRecorded) {
-  TempDir dir("gate-run");
+  TempDir dir;
   FakeAnalysis fake;
-  auto inputs = make_clips(dir.path / "clips", 5, {"pass", "reject", "broken", "review", "pass"});
+  auto inputs = make_clips(dir.path() / "clips", 5, {"pass", "reject", "broken", "review", "pass"});
   GateInput missing;
   missing.index = 5;
-  missing.path = (dir.path / "clips" / "gone.mp4").string();
+  missing.path = (dir.path() / "clips" / "gone.mp4").string();
   missing.id = missing.path;
   missing.output_name = "gone";
   inputs.push_back(missing);
 
-  auto run = run_gate(inputs, options_for(dir.path / "out", fake, 3));
+  auto run = run_gate(inputs, options_for(dir.path() / "out", fake, 3));
   ASSERT_TRUE(run.ok()) << run.error().message();
   EXPECT_EQ(run->counts.total, 6);
   EXPECT_EQ(run->counts.pass, 2);
   EXPECT_EQ(run->counts.review, 1);
   EXPECT_EQ(run->counts.reject, 1);
   EXPECT_EQ(run->counts.error, 2);
-  const auto queue = queue_of(dir.path / "out");
+  const auto queue = queue_of(dir.path() / "out");
   ASSERT_EQ(queue.size(), 6u);
   const std::vector<std::string> expected = {"pass", "reject", "error", "review", "pass", "error"};
   for (size_t i = 0; i < queue.size(); ++i) {
@@ -113,123 +111,123 @@ TEST(GateRun, QueueInInputOrderWithErrorsRecorded) {
   EXPECT_EQ(queue[1]["report"], "clip_1.json");
   EXPECT_EQ(queue[1]["reasons"][0], "flicker p95 0.04 >= reject 0.03 (frame 3, 0.12 s)");
   EXPECT_EQ(queue[1]["model"], "ckpt-b");
-  EXPECT_TRUE(fs::exists(dir.path / "out" / "clip_1.json"));
+  EXPECT_TRUE(fs::exists(dir.path() / "out" / "clip_1.json"));
   EXPECT_NE(queue[2]["error"].get<std::string>().find("no video stream"), std::string::npos);
   EXPECT_TRUE(queue[2]["report"].is_null());
   EXPECT_NE(queue[5]["error"].get<std::string>().find("gone.mp4"), std::string::npos);
-  EXPECT_TRUE(fs::exists(dir.path / "out" / "index.html"));
-  EXPECT_EQ(store_rows(dir.path / "out" / "framelint.db"), 4u);  // errors are not stored
+  EXPECT_TRUE(fs::exists(dir.path() / "out" / "index.html"));
+  EXPECT_EQ(store_rows(dir.path() / "out" / "framelint.db"), 4u);  // errors are not stored
   EXPECT_EQ(cli::gate_exit_status(run->counts, Verdict::reject), cli::kExitInputError);  // 3 outranks 1
 }
 
 TEST(GateRun, RerunTakesJudgedClipsFromTheStore) {
-  TempDir dir("gate-rerun");
+  TempDir dir;
   FakeAnalysis fake;
-  const auto inputs = make_clips(dir.path / "clips", 6, {"pass", "reject", "review", "broken", "pass", "broken"});
-  ASSERT_TRUE(run_gate(inputs, options_for(dir.path / "out", fake)).ok());
+  const auto inputs = make_clips(dir.path() / "clips", 6, {"pass", "reject", "review", "broken", "pass", "broken"});
+  ASSERT_TRUE(run_gate(inputs, options_for(dir.path() / "out", fake)).ok());
   EXPECT_EQ(fake.calls, 6);
   fake.calls = 0;
-  auto again = run_gate(inputs, options_for(dir.path / "out", fake));
+  auto again = run_gate(inputs, options_for(dir.path() / "out", fake));
   ASSERT_TRUE(again.ok());
   EXPECT_EQ(fake.calls, 2);  // only the two broken clips are tried again
   EXPECT_EQ(again->counts.from_store, 4);
-  EXPECT_EQ(store_rows(dir.path / "out" / "framelint.db"), 4u);
-  for (const auto& line : queue_of(dir.path / "out"))
+  EXPECT_EQ(store_rows(dir.path() / "out" / "framelint.db"), 4u);
+  for (const auto& line : queue_of(dir.path() / "out"))
     EXPECT_EQ(line["from_store"], line["verdict"] != "error") << line.dump();
 
   // A stored report that no longer exists is recomputed (and stored again).
-  fs::remove(dir.path / "out" / "clip_1.json");
+  fs::remove(dir.path() / "out" / "clip_1.json");
   fake.calls = 0;
-  auto third = run_gate(inputs, options_for(dir.path / "out", fake));
+  auto third = run_gate(inputs, options_for(dir.path() / "out", fake));
   ASSERT_TRUE(third.ok());
   EXPECT_EQ(fake.calls, 3);
   EXPECT_FALSE(third->results[1].from_store);
-  EXPECT_TRUE(fs::exists(dir.path / "out" / "clip_1.json"));
-  EXPECT_EQ(store_rows(dir.path / "out" / "framelint.db"), 5u);
+  EXPECT_TRUE(fs::exists(dir.path() / "out" / "clip_1.json"));
+  EXPECT_EQ(store_rows(dir.path() / "out" / "framelint.db"), 5u);
 
   // Another policy is another settings hash: everything is recomputed.
   fake.calls = 0;
-  GateOptions strict = options_for(dir.path / "out", fake);
+  GateOptions strict = options_for(dir.path() / "out", fake);
   strict.policy.coherence_review_below = 99;
   ASSERT_TRUE(run_gate(inputs, strict).ok());
   EXPECT_EQ(fake.calls, 6);
 }
 
 TEST(GateRun, SharedStoreServesAnotherOutputFolder) {
-  TempDir dir("gate-shared");
+  TempDir dir;
   FakeAnalysis fake;
-  const auto inputs = make_clips(dir.path / "clips", 3, {"pass", "reject"});
-  GateOptions first = options_for(dir.path / "out1", fake);
-  first.db_path = (dir.path / "shared.db").string();
+  const auto inputs = make_clips(dir.path() / "clips", 3, {"pass", "reject"});
+  GateOptions first = options_for(dir.path() / "out1", fake);
+  first.db_path = (dir.path() / "shared.db").string();
   ASSERT_TRUE(run_gate(inputs, first).ok());
   GateOptions second = first;
-  second.out_dir = (dir.path / "out2").string();
+  second.out_dir = (dir.path() / "out2").string();
   auto run = run_gate(inputs, second);
   ASSERT_TRUE(run.ok());
   EXPECT_EQ(run->counts.from_store, 3);
   EXPECT_EQ(fake.calls, 3);
-  for (int i = 0; i < 3; ++i) EXPECT_TRUE(fs::exists(dir.path / "out2" / ("clip_" + std::to_string(i) + ".json")));
-  EXPECT_FALSE(fs::exists(dir.path / "out2" / "framelint.db"));
+  for (int i = 0; i < 3; ++i) EXPECT_TRUE(fs::exists(dir.path() / "out2" / ("clip_" + std::to_string(i) + ".json")));
+  EXPECT_FALSE(fs::exists(dir.path() / "out2" / "framelint.db"));
 }
 
 TEST(GateRun, ParallelJobsJudgeEveryClipOnce) {
-  TempDir dir("gate-parallel");
+  TempDir dir;
   FakeAnalysis fake;
-  const auto inputs = make_clips(dir.path / "clips", 40, {"pass", "reject", "review"});
+  const auto inputs = make_clips(dir.path() / "clips", 40, {"pass", "reject", "review"});
   int callbacks = 0;
   GateObserver observer;
   observer.on_clip_done = [&](const ClipResult&, const GateCounts& counts) { EXPECT_EQ(counts.total, ++callbacks); };
-  auto run = run_gate(inputs, options_for(dir.path / "out", fake, 8), observer);
+  auto run = run_gate(inputs, options_for(dir.path() / "out", fake, 8), observer);
   ASSERT_TRUE(run.ok());
   EXPECT_EQ(fake.calls, 40);
   EXPECT_EQ(callbacks, 40);
   std::set<std::string> ids;
-  for (const auto& line : queue_of(dir.path / "out")) ids.insert(line["id"].get<std::string>());
+  for (const auto& line : queue_of(dir.path() / "out")) ids.insert(line["id"].get<std::string>());
   EXPECT_EQ(ids.size(), 40u);
-  EXPECT_EQ(store_rows(dir.path / "out" / "framelint.db"), 40u);
+  EXPECT_EQ(store_rows(dir.path() / "out" / "framelint.db"), 40u);
 }
 
 TEST(GateRun, UnionOfShardsEqualsOneRun) {
-  TempDir dir("gate-shards");
+  TempDir dir;
   FakeAnalysis fake;
-  const auto inputs = make_clips(dir.path / "clips", 30, {"pass", "reject", "review", "broken", "pass"});
-  ASSERT_TRUE(run_gate(inputs, options_for(dir.path / "single", fake)).ok());
+  const auto inputs = make_clips(dir.path() / "clips", 30, {"pass", "reject", "review", "broken", "pass"});
+  ASSERT_TRUE(run_gate(inputs, options_for(dir.path() / "single", fake)).ok());
   std::vector<std::string> shard_dirs;
   for (int i = 0; i < 3; ++i) {
-    const fs::path out = dir.path / ("shard" + std::to_string(i));
+    const fs::path out = dir.path() / ("shard" + std::to_string(i));
     ASSERT_TRUE(run_gate(select_shard(inputs, {i, 3}), options_for(out, fake)).ok());
     shard_dirs.push_back(out.string());
   }
-  auto merged = merge_gate_outputs(shard_dirs, (dir.path / "merged").string());
+  auto merged = merge_gate_outputs(shard_dirs, (dir.path() / "merged").string());
   ASSERT_TRUE(merged.ok()) << merged.error().message();
   EXPECT_TRUE(merged->warnings.empty());
 
-  const auto single = queue_of(dir.path / "single");
-  const auto joined = queue_of(dir.path / "merged");
+  const auto single = queue_of(dir.path() / "single");
+  const auto joined = queue_of(dir.path() / "merged");
   ASSERT_EQ(joined.size(), single.size());
   for (size_t i = 0; i < single.size(); ++i) {
     nlohmann::json a = single[i], b = joined[i];
     a.erase("from_store");
     b.erase("from_store");
     EXPECT_EQ(a, b) << "clip " << i;
-    if (!b["report"].is_null()) EXPECT_TRUE(fs::exists(dir.path / "merged" / b["report"].get<std::string>()));
+    if (!b["report"].is_null()) EXPECT_TRUE(fs::exists(dir.path() / "merged" / b["report"].get<std::string>()));
   }
-  EXPECT_EQ(store_rows(dir.path / "merged" / "framelint.db"), store_rows(dir.path / "single" / "framelint.db"));
-  auto store = ResultStore::open((dir.path / "merged" / "framelint.db").string());
+  EXPECT_EQ(store_rows(dir.path() / "merged" / "framelint.db"), store_rows(dir.path() / "single" / "framelint.db"));
+  auto store = ResultStore::open((dir.path() / "merged" / "framelint.db").string());
   ASSERT_TRUE(store.ok());
   const auto rows = (*store)->all();
   ASSERT_TRUE(rows.ok());
   for (const auto& row : *rows)  // rows point at the merged copies
-    EXPECT_EQ(fs::path(row.report_path).parent_path(), fs::weakly_canonical(dir.path / "merged"));
-  EXPECT_TRUE(fs::exists(dir.path / "merged" / "index.html"));
+    EXPECT_EQ(fs::path(row.report_path).parent_path(), fs::weakly_canonical(dir.path() / "merged"));
+  EXPECT_TRUE(fs::exists(dir.path() / "merged" / "index.html"));
 
   // The same shard twice: kept once, said so, no row copied twice.
   shard_dirs.push_back(shard_dirs[0]);
-  auto twice = merge_gate_outputs(shard_dirs, (dir.path / "merged2").string());
+  auto twice = merge_gate_outputs(shard_dirs, (dir.path() / "merged2").string());
   ASSERT_TRUE(twice.ok());
   EXPECT_EQ(twice->results.size(), single.size());
   EXPECT_FALSE(twice->warnings.empty());
-  EXPECT_EQ(store_rows(dir.path / "merged2" / "framelint.db"), store_rows(dir.path / "single" / "framelint.db"));
+  EXPECT_EQ(store_rows(dir.path() / "merged2" / "framelint.db"), store_rows(dir.path() / "single" / "framelint.db"));
   // Merging into one of the inputs is refused.
   EXPECT_FALSE(merge_gate_outputs({shard_dirs[0]}, shard_dirs[0]).ok());
 }
@@ -261,13 +259,13 @@ TEST(GateRun, QueueLinesReadBack) {
 }
 
 TEST(GateRun, IndexPageEscapesInputsAndListsWorstFirst) {
-  TempDir dir("gate-page");
+  TempDir dir;
   FakeAnalysis fake;
-  auto inputs = make_clips(dir.path / "clips", 4, {"pass", "review", "reject", "broken"});
+  auto inputs = make_clips(dir.path() / "clips", 4, {"pass", "review", "reject", "broken"});
   inputs[0].id = "<script>alert('x')</script>";
   inputs[1].model = "\"><img src=x onerror=alert(1)>";
-  ASSERT_TRUE(run_gate(inputs, options_for(dir.path / "out", fake)).ok());
-  const std::string page = read_text(dir.path / "out" / "index.html");
+  ASSERT_TRUE(run_gate(inputs, options_for(dir.path() / "out", fake)).ok());
+  const std::string page = read_text(dir.path() / "out" / "index.html");
   EXPECT_EQ(page.find("<script"), std::string::npos);
   EXPECT_EQ(page.find("<img"), std::string::npos);
   EXPECT_NE(page.find("&lt;script&gt;alert(&#39;x&#39;)&lt;/script&gt;"), std::string::npos);

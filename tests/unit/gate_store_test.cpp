@@ -10,12 +10,12 @@
 #include <thread>
 
 #include "framelint/store.h"
+#include "support/clips.h"
 #include "support/gate_files.h"
 
 using namespace framelint;
+using namespace framelint::test;
 namespace fs = std::filesystem;
-using framelint::testing::TempDir;
-using framelint::testing::write_text;
 
 namespace {
 
@@ -46,20 +46,20 @@ TEST(GateStore, Sha256CheckValues) {
 }
 
 TEST(GateStore, ContentHashOfFilesAndFrameFolders) {
-  TempDir dir("hash");
-  write_text(dir.path / "abc.bin", "abc");
-  EXPECT_EQ(*content_sha256((dir.path / "abc.bin").string()),
+  TempDir dir;
+  write_text(dir.path() / "abc.bin", "abc");
+  EXPECT_EQ(*content_sha256((dir.path() / "abc.bin").string()),
             "ba7816bf8f01cfea414140de5dae2223b00361a396177a9cb410ff61f20015ad");
-  write_text(dir.path / "frames" / "f_002.png", "two");
-  write_text(dir.path / "frames" / "f_001.png", "one");
-  const std::string folder = (dir.path / "frames").string();
+  write_text(dir.path() / "frames" / "f_002.png", "two");
+  write_text(dir.path() / "frames" / "f_001.png", "one");
+  const std::string folder = (dir.path() / "frames").string();
   auto first = content_sha256(folder);
   ASSERT_TRUE(first.ok());
   // Defined from the sorted listing, independent of creation order.
   EXPECT_EQ(*first, sha256_hex("f_001.png " + sha256_hex("one") + "\nf_002.png " + sha256_hex("two") + "\n"));
-  write_text(dir.path / "frames" / "f_002.png", "changed");
+  write_text(dir.path() / "frames" / "f_002.png", "changed");
   EXPECT_NE(*content_sha256(folder), *first);
-  auto missing = content_sha256((dir.path / "nope.mp4").string());
+  auto missing = content_sha256((dir.path() / "nope.mp4").string());
   ASSERT_FALSE(missing.ok());
   EXPECT_EQ(missing.error().kind, ErrorKind::input);
 }
@@ -78,8 +78,8 @@ TEST(GateStore, SettingsHashIgnoresThreadsButNotResults) {
 }
 
 TEST(GateStore, InsertFindAndReopen) {
-  TempDir dir("store");
-  const std::string db = (dir.path / "results.db").string();
+  TempDir dir;
+  const std::string db = (dir.path() / "results.db").string();
   {
     auto store = ResultStore::open(db);
     ASSERT_TRUE(store.ok()) << store.error().message();
@@ -121,8 +121,8 @@ TEST(GateStore, InsertFindAndReopen) {
 TEST(GateStore, ConcurrentWritersLoseNothing) {
   // Four threads on one connection and two more connections on the same file
   // (as separate processes would be), all inserting at once.
-  TempDir dir("store-threads");
-  const std::string db = (dir.path / "results.db").string();
+  TempDir dir;
+  const std::string db = (dir.path() / "results.db").string();
   auto shared = ResultStore::open(db);
   auto other_a = ResultStore::open(db);
   auto other_b = ResultStore::open(db);
