@@ -6,6 +6,7 @@
 
 #include "analyzer/core/assets.h"
 #include "framelint/version.h"
+#include "report/html/csp.h"
 #include "report/html/html_escape.h"
 
 namespace framelint {
@@ -88,13 +89,15 @@ std::string render_queue_page(const std::vector<ClipResult>& results, const std:
   for (const auto& r : results) counts.add(r);
   std::string rows;
   for (size_t i : worst_first_order(results)) rows += row(results[i], i < links.size() ? links[i] : "");
-  std::string page =
-      "<!doctype html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n"
-      "<meta http-equiv=\"Content-Security-Policy\" content=\"default-src 'none'; style-src 'unsafe-inline'; "
-      "img-src data:; base-uri 'none'; form-action 'none'\">\n"
-      "<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n"
-      "<title>framelint review queue (" + std::to_string(counts.total) + " clips)</title>\n<style>\n";
-  page += std::string(asset("queue.css"));
+  // The style is allowed by its hash (CSP Level 2), like the clip pages; the
+  // page has no script at all.
+  const std::string style(asset("queue.css"));
+  std::string page = "<!doctype html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n"
+                     "<meta http-equiv=\"Content-Security-Policy\" content=\"default-src 'none'; img-src data:; "
+                     "style-src " + csp_hash_source(style) + "; base-uri 'none'; form-action 'none'\">\n"
+                     "<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n"
+                     "<title>framelint review queue (" + std::to_string(counts.total) + " clips)</title>\n<style>";
+  page += style;
   page += "</style>\n</head>\n<body>\n<header>\n<h1>Review queue</h1>\n<p class=\"counts\">" + counts_line(counts) +
           "</p>\n<p class=\"quiet\">Worst first: reject, review, error, pass; then lowest coherence. "
           "Written by framelint " + html_escape(version()) + ".</p>\n</header>\n<main>\n";
