@@ -18,7 +18,8 @@ std::vector<OptionSpec> gate_specs() {
   specs.push_back({"out", true, "output folder (required)"});
   specs.push_back({"db", true, "results store (default DIR/framelint.db); share one across runs"});
   specs.push_back({"jobs", true, "clips analysed at once (default: number of cores)"});
-  specs.push_back({"shard", true, "I/N: this job's share, I from 0; auto/N reads the scheduler's index"});
+  specs.push_back(
+      {"shard", true, "I/N: this job's share, I from 0; auto/N reads the scheduler's index"});
   specs.push_back({"fail-on", true, "review or reject (default): exit 1 when a clip gets it"});
   specs.push_back({"no-html", false, "write only the JSON reports"});
   specs.push_back({"print-default-policy", false, "print the built-in policy as JSON and exit"});
@@ -48,7 +49,8 @@ void assign_output_names(std::vector<GateInput>& inputs) {
 int run_gate(const std::vector<std::string>& args) {
   const auto specs = gate_specs();
   if (wants_help(args)) {
-    std::fputs(format_help("gate", "INPUT... --out DIR [options]", kDescription, specs).c_str(), stdout);
+    std::fputs(format_help("gate", "INPUT... --out DIR [options]", kDescription, specs).c_str(),
+               stdout);
     return kExitOk;
   }
   auto parsed = parse_args(args, specs);
@@ -57,8 +59,10 @@ int run_gate(const std::vector<std::string>& args) {
     std::printf("%s\n", policy_to_json(default_policy()).dump(2).c_str());
     return kExitOk;
   }
-  if (parsed->positionals.empty()) return print_error("gate needs at least one INPUT (see framelint gate --help)"), kExitUsage;
-  if (!parsed->get("out")) return print_error("gate needs --out DIR (see framelint gate --help)"), kExitUsage;
+  if (parsed->positionals.empty())
+    return print_error("gate needs at least one INPUT (see framelint gate --help)"), kExitUsage;
+  if (!parsed->get("out"))
+    return print_error("gate needs --out DIR (see framelint gate --help)"), kExitUsage;
   auto options = analysis_options_from_args(*parsed);
   if (!options) return print_error(options.error().message()), kExitUsage;
   auto jobs = parsed->get_int("jobs", 1, 1024);
@@ -75,7 +79,8 @@ int run_gate(const std::vector<std::string>& args) {
   if (!collected) return print_error(collected.error().message()), kExitUsage;
   for (const auto& w : collected->warnings) print_error(w);
   assign_output_names(collected->inputs);
-  const std::vector<GateInput> inputs = shard ? select_shard(collected->inputs, *shard) : collected->inputs;
+  const std::vector<GateInput> inputs =
+      shard ? select_shard(collected->inputs, *shard) : collected->inputs;
 
   GateOptions gate;
   gate.settings = options->settings;
@@ -84,7 +89,9 @@ int run_gate(const std::vector<std::string>& args) {
   gate.db_path = parsed->get("db").value_or("");
   gate.jobs = jobs->value_or(0);
   const bool html = !parsed->has("no-html");
-  gate.write_report = [html](const Report& r, const std::string& base) { return write_reports(r, base, html); };
+  gate.write_report = [html](const Report& r, const std::string& base) {
+    return write_reports(r, base, html);
+  };
   const bool quiet = parsed->has("quiet");
   BatchProgress progress(static_cast<int>(inputs.size()), quiet || !stderr_is_terminal());
   GateObserver observer;
@@ -98,8 +105,10 @@ int run_gate(const std::vector<std::string>& args) {
   for (const auto& w : run->warnings) print_error(w);
   if (!quiet) {
     std::string line = "gate: " + std::to_string(run->counts.total) + " clips";
-    if (shard) line += " (shard " + std::to_string(shard->index) + "/" + std::to_string(shard->count) + ")";
-    std::printf("%s: %s -> %s/queue.jsonl\n", line.c_str(), summary_text(run->counts).c_str(), gate.out_dir.c_str());
+    if (shard)
+      line += " (shard " + std::to_string(shard->index) + "/" + std::to_string(shard->count) + ")";
+    std::printf("%s: %s -> %s/queue.jsonl\n", line.c_str(), summary_text(run->counts).c_str(),
+                gate.out_dir.c_str());
   }
   return gate_exit_status(run->counts, *fail_on);
 }

@@ -39,10 +39,12 @@ void BatchProgress::draw(const GateCounts& c) {
   std::string bar(static_cast<size_t>(filled), '#');
   bar.resize(kWidth, '.');
   std::string eta = "ETA --";
-  const double elapsed = std::chrono::duration<double>(std::chrono::steady_clock::now() - start_).count();
-  if (c.total > 0 && c.total < total_) eta = "ETA " + duration_text(elapsed / c.total * (total_ - c.total));
-  std::fprintf(stderr, "\r[%s] %d/%d clips  %d reject  %d review  %d error  %s\x1b[K", bar.c_str(), c.total, total_,
-               c.reject, c.review, c.error, eta.c_str());
+  const double elapsed =
+      std::chrono::duration<double>(std::chrono::steady_clock::now() - start_).count();
+  if (c.total > 0 && c.total < total_)
+    eta = "ETA " + duration_text(elapsed / c.total * (total_ - c.total));
+  std::fprintf(stderr, "\r[%s] %d/%d clips  %d reject  %d review  %d error  %s\x1b[K", bar.c_str(),
+               c.total, total_, c.reject, c.review, c.error, eta.c_str());
   drawn_ = true;
 }
 
@@ -58,9 +60,9 @@ void BatchProgress::finish() {
 }
 
 std::string summary_text(const GateCounts& c) {
-  return std::to_string(c.pass) + " pass / " + std::to_string(c.review) + " review / " + std::to_string(c.reject) +
-         " reject / " + std::to_string(c.error) + " error (" + std::to_string(c.from_store) +
-         " taken from the store)";
+  return std::to_string(c.pass) + " pass / " + std::to_string(c.review) + " review / " +
+         std::to_string(c.reject) + " reject / " + std::to_string(c.error) + " error (" +
+         std::to_string(c.from_store) + " taken from the store)";
 }
 
 Expected<Verdict> fail_on_from_args(const ParsedArgs& args) {

@@ -15,12 +15,13 @@ int run_merge(const std::vector<std::string>& args) {
       {"quiet", false, "no summary line"},
   };
   if (wants_help(args)) {
-    std::fputs(format_help("merge", "DIR... --out DIR [options]",
-                           "Joins the output folders of `framelint gate --shard` runs: one queue.jsonl in\n"
-                           "input order without duplicates, the reports, one framelint.db and index.html.\n"
-                           "Exit status as for gate: 0, 1 (a clip reached --fail-on), 2 bad usage,\n"
-                           "3 a clip could not be read.",
-                           specs)
+    std::fputs(format_help(
+                   "merge", "DIR... --out DIR [options]",
+                   "Joins the output folders of `framelint gate --shard` runs: one queue.jsonl in\n"
+                   "input order without duplicates, the reports, one framelint.db and index.html.\n"
+                   "Exit status as for gate: 0, 1 (a clip reached --fail-on), 2 bad usage,\n"
+                   "3 a clip could not be read.",
+                   specs)
                    .c_str(),
                stdout);
     return kExitOk;
@@ -32,11 +33,13 @@ int run_merge(const std::vector<std::string>& args) {
   auto fail_on = fail_on_from_args(*parsed);
   if (!fail_on) return print_error(fail_on.error().message()), kExitUsage;
   auto run = merge_gate_outputs(parsed->positionals, *parsed->get("out"));
-  if (!run) return print_error(run.error().message()), run.error().kind == ErrorKind::input ? kExitInputError : kExitUsage;
+  if (!run)
+    return print_error(run.error().message()),
+           run.error().kind == ErrorKind::input ? kExitInputError : kExitUsage;
   for (const auto& w : run->warnings) print_error(w);
   if (!parsed->has("quiet"))
-    std::printf("merge: %d clips: %s -> %s/queue.jsonl\n", run->counts.total, summary_text(run->counts).c_str(),
-                parsed->get("out")->c_str());
+    std::printf("merge: %d clips: %s -> %s/queue.jsonl\n", run->counts.total,
+                summary_text(run->counts).c_str(), parsed->get("out")->c_str());
   return gate_exit_status(run->counts, *fail_on);
 }
 

@@ -16,20 +16,22 @@ using nlohmann::json;
 
 std::string lower_extension(const fs::path& p) {
   std::string ext = p.extension().string();
-  std::transform(ext.begin(), ext.end(), ext.begin(), [](unsigned char c) { return std::tolower(c); });
+  std::transform(ext.begin(), ext.end(), ext.begin(),
+                 [](unsigned char c) { return std::tolower(c); });
   return ext;
 }
 
 // Containers FFmpeg reads that generation tools emit (common practice).
 bool is_video_file(const fs::path& p) {
-  static const std::set<std::string> kVideo = {".mp4", ".m4v", ".mov", ".mkv", ".webm", ".avi", ".gif",
-                                               ".webp", ".mpg", ".mpeg", ".ts", ".mts", ".m2ts", ".flv",
-                                               ".wmv", ".ogv", ".y4m", ".apng"};
+  static const std::set<std::string> kVideo = {".mp4",  ".m4v",  ".mov", ".mkv",  ".webm", ".avi",
+                                               ".gif",  ".webp", ".mpg", ".mpeg", ".ts",   ".mts",
+                                               ".m2ts", ".flv",  ".wmv", ".ogv",  ".y4m",  ".apng"};
   return kVideo.count(lower_extension(p)) > 0;
 }
 
 bool is_frame_image(const fs::path& p) {
-  static const std::set<std::string> kImage = {".png", ".jpg", ".jpeg", ".bmp", ".tif", ".tiff", ".webp"};
+  static const std::set<std::string> kImage = {".png", ".jpg",  ".jpeg", ".bmp",
+                                               ".tif", ".tiff", ".webp"};
   const std::string name = p.filename().string();
   return kImage.count(lower_extension(p)) > 0 &&
          std::any_of(name.begin(), name.end(), [](unsigned char c) { return std::isdigit(c); });
@@ -43,9 +45,11 @@ bool hidden(const fs::path& p) {
 std::vector<fs::directory_entry> sorted_entries(const fs::path& dir) {
   std::vector<fs::directory_entry> entries;
   std::error_code ec;
-  for (const auto& e : fs::directory_iterator(dir, fs::directory_options::skip_permission_denied, ec))
+  for (const auto& e :
+       fs::directory_iterator(dir, fs::directory_options::skip_permission_denied, ec))
     if (!hidden(e.path())) entries.push_back(e);
-  std::sort(entries.begin(), entries.end(), [](const auto& a, const auto& b) { return a.path() < b.path(); });
+  std::sort(entries.begin(), entries.end(),
+            [](const auto& a, const auto& b) { return a.path() < b.path(); });
   return entries;
 }
 
@@ -86,7 +90,8 @@ struct ManifestLine {
   bool explicit_id = false;
 };
 
-Expected<ManifestLine> parse_manifest_line(const std::string& text, const fs::path& base, const std::string& where) {
+Expected<ManifestLine> parse_manifest_line(const std::string& text, const fs::path& base,
+                                           const std::string& where) {
   json j = json::parse(text, nullptr, /*allow_exceptions=*/false);
   if (j.is_discarded()) return usage_error(where, "not valid JSON");
   if (!j.is_object()) return usage_error(where, "each line must be a JSON object");

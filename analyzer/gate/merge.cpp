@@ -86,7 +86,8 @@ struct Merger {
     }
     const fs::path html = fs::path(src).replace_extension(".html");
     if (fs::exists(html, ec))
-      if (auto st = copy_atomic(html, out_dir / (name + ".html")); !st) warnings.push_back(st.error().message());
+      if (auto st = copy_atomic(html, out_dir / (name + ".html")); !st)
+        warnings.push_back(st.error().message());
     moved[canonical_text(src)] = canonical_text(dst);
     r.report = name + ".json";
     r.input.output_name = name;
@@ -114,13 +115,15 @@ struct Merger {
 
 }  // namespace
 
-Expected<GateRun> merge_gate_outputs(const std::vector<std::string>& shard_dirs, const std::string& out_dir) {
+Expected<GateRun> merge_gate_outputs(const std::vector<std::string>& shard_dirs,
+                                     const std::string& out_dir) {
   std::error_code ec;
   fs::create_directories(out_dir, ec);
   if (ec) return output_error(out_dir, "cannot create output folder: " + ec.message());
   const std::string out_canonical = canonical_text(out_dir);
   for (const auto& dir : shard_dirs)
-    if (canonical_text(dir) == out_canonical) return usage_error(dir, "merge output folder must not be one of its inputs");
+    if (canonical_text(dir) == out_canonical)
+      return usage_error(dir, "merge output folder must not be one of its inputs");
 
   auto store = ResultStore::open((fs::path(out_dir) / "framelint.db").string());
   if (!store) return store.error();
@@ -133,7 +136,8 @@ Expected<GateRun> merge_gate_outputs(const std::vector<std::string>& shard_dirs,
     for (auto& r : lines) {
       auto [it, fresh] = seen.emplace(r.input.id, dir);
       if (!fresh) {
-        merger.warnings.push_back(dir + ": clip '" + r.input.id + "' is also in " + it->second + "; kept that one");
+        merger.warnings.push_back(dir + ": clip '" + r.input.id + "' is also in " + it->second +
+                                  "; kept that one");
         continue;
       }
       merger.copy_report(dir, r);
@@ -141,8 +145,9 @@ Expected<GateRun> merge_gate_outputs(const std::vector<std::string>& shard_dirs,
     }
     if (auto st = merger.merge_store(dir, **store); !st) return st.error();
   }
-  std::stable_sort(run.results.begin(), run.results.end(),
-                   [](const ClipResult& a, const ClipResult& b) { return a.input.index < b.input.index; });
+  std::stable_sort(
+      run.results.begin(), run.results.end(),
+      [](const ClipResult& a, const ClipResult& b) { return a.input.index < b.input.index; });
   for (const auto& r : run.results) run.counts.add(r);
   run.warnings = std::move(merger.warnings);
   if (auto st = write_queue_outputs(out_dir, run.results); !st) return st.error();

@@ -18,15 +18,21 @@ std::string text_field(const json& j, const char* key) {
 
 }  // namespace
 
-std::string queue_status(const ClipResult& r) { return r.verdict ? to_string(*r.verdict) : "error"; }
+std::string queue_status(const ClipResult& r) {
+  return r.verdict ? to_string(*r.verdict) : "error";
+}
 
 void GateCounts::add(const ClipResult& r) {
   ++total;
   if (r.from_store) ++from_store;
-  if (!r.verdict) ++error;
-  else if (*r.verdict == Verdict::pass) ++pass;
-  else if (*r.verdict == Verdict::review) ++review;
-  else ++reject;
+  if (!r.verdict)
+    ++error;
+  else if (*r.verdict == Verdict::pass)
+    ++pass;
+  else if (*r.verdict == Verdict::review)
+    ++review;
+  else
+    ++reject;
 }
 
 json queue_line(const ClipResult& r) {
@@ -49,7 +55,8 @@ json queue_line(const ClipResult& r) {
 Expected<ClipResult> clip_result_from_queue_line(const json& j, const std::string& subject) {
   if (!j.is_object()) return input_error(subject, "a queue line must be a JSON object");
   for (const char* key : {"id", "path", "verdict"})
-    if (!j.contains(key) || !j[key].is_string()) return input_error(subject, std::string("queue line has no \"") + key + "\"");
+    if (!j.contains(key) || !j[key].is_string())
+      return input_error(subject, std::string("queue line has no \"") + key + "\"");
   if (!j.contains("index") || !j["index"].is_number_integer())
     return input_error(subject, "queue line has no \"index\"");
   ClipResult r;
@@ -61,17 +68,23 @@ Expected<ClipResult> clip_result_from_queue_line(const json& j, const std::strin
   if (j.contains("seed")) r.input.seed = j["seed"];
   if (j.contains("metadata") && j["metadata"].is_object()) r.input.metadata = j["metadata"];
   const std::string status = j["verdict"].get<std::string>();
-  if (status == "pass") r.verdict = Verdict::pass;
-  else if (status == "review") r.verdict = Verdict::review;
-  else if (status == "reject") r.verdict = Verdict::reject;
-  else if (status != "error") return input_error(subject, "queue line has an unknown verdict '" + status + "'");
-  if (j.contains("coherence") && j["coherence"].is_number()) r.coherence = j["coherence"].get<double>();
+  if (status == "pass")
+    r.verdict = Verdict::pass;
+  else if (status == "review")
+    r.verdict = Verdict::review;
+  else if (status == "reject")
+    r.verdict = Verdict::reject;
+  else if (status != "error")
+    return input_error(subject, "queue line has an unknown verdict '" + status + "'");
+  if (j.contains("coherence") && j["coherence"].is_number())
+    r.coherence = j["coherence"].get<double>();
   if (j.contains("reasons") && j["reasons"].is_array())
     for (const auto& reason : j["reasons"])
       if (reason.is_string()) r.reasons.push_back(reason.get<std::string>());
   r.report = text_field(j, "report");
   r.input.output_name = std::filesystem::path(r.report).stem().string();
-  if (j.contains("error") && j["error"].is_string()) r.error = input_error("", j["error"].get<std::string>());
+  if (j.contains("error") && j["error"].is_string())
+    r.error = input_error("", j["error"].get<std::string>());
   if (!r.verdict && !r.error) r.error = input_error(r.input.path, "unknown error");
   r.from_store = j.value("from_store", false);
   r.sha256 = text_field(j, "sha256");
@@ -95,7 +108,8 @@ Status write_queue_outputs(const std::string& out_dir, const std::vector<ClipRes
     }
     links.push_back(link);
   }
-  return write_file_atomic((fs::path(out_dir) / "index.html").string(), render_queue_page(results, links));
+  return write_file_atomic((fs::path(out_dir) / "index.html").string(),
+                           render_queue_page(results, links));
 }
 
 }  // namespace framelint

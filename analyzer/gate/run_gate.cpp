@@ -143,7 +143,8 @@ void worker(Batch& b, std::atomic<size_t>& next) {
     } catch (const std::exception& e) {  // a library below threw: record it, keep going
       r = ClipResult{};
       r.input = b.inputs[i];
-      r.error = Error{ErrorKind::internal, b.inputs[i].path, std::string("unexpected failure: ") + e.what()};
+      r.error = Error{ErrorKind::internal, b.inputs[i].path,
+                      std::string("unexpected failure: ") + e.what()};
     }
     record(b, i, std::move(r));
   }
@@ -156,8 +157,9 @@ Expected<GateRun> run_gate(const std::vector<GateInput>& inputs, const GateOptio
   std::error_code ec;
   fs::create_directories(options.out_dir, ec);
   if (ec) return output_error(options.out_dir, "cannot create output folder: " + ec.message());
-  const std::string db_path =
-      options.db_path.empty() ? (fs::path(options.out_dir) / "framelint.db").string() : options.db_path;
+  const std::string db_path = options.db_path.empty()
+                                  ? (fs::path(options.out_dir) / "framelint.db").string()
+                                  : options.db_path;
   auto store = ResultStore::open(db_path);
   if (!store) return store.error();
 
@@ -168,11 +170,18 @@ Expected<GateRun> run_gate(const std::vector<GateInput>& inputs, const GateOptio
   if (settings.threads <= 0) settings.threads = std::max(1, cores / jobs);
 
   AnalyzeFunction analyze = options.analyze ? options.analyze : AnalyzeFunction(analyze_clip);
-  ReportWriter write_report = options.write_report ? options.write_report : [](const Report& r, const std::string& base) {
-    return write_json_report(r, base + ".json");
-  };
-  Batch batch{inputs, options, settings, **store, settings_hash(options.settings, options.policy),
-              std::move(analyze), std::move(write_report), observer};
+  ReportWriter write_report =
+      options.write_report ? options.write_report : [](const Report& r, const std::string& base) {
+        return write_json_report(r, base + ".json");
+      };
+  Batch batch{inputs,
+              options,
+              settings,
+              **store,
+              settings_hash(options.settings, options.policy),
+              std::move(analyze),
+              std::move(write_report),
+              observer};
   batch.results.resize(inputs.size());
 
   std::atomic<size_t> next{0};

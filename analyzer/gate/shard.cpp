@@ -17,7 +17,8 @@ Expected<int> parse_int(const std::string& text, const std::string& subject) {
 
 // The shard index a scheduler gives this job, 0-based.
 Expected<int> index_from_environment(const std::function<const char*(const char*)>& getenv) {
-  if (const char* k8s = getenv("JOB_COMPLETION_INDEX")) return parse_int(k8s, "JOB_COMPLETION_INDEX");
+  if (const char* k8s = getenv("JOB_COMPLETION_INDEX"))
+    return parse_int(k8s, "JOB_COMPLETION_INDEX");
   if (const char* slurm = getenv("SLURM_ARRAY_TASK_ID")) {
     auto id = parse_int(slurm, "SLURM_ARRAY_TASK_ID");
     if (!id) return id;
@@ -30,26 +31,31 @@ Expected<int> index_from_environment(const std::function<const char*(const char*
     }
     return *id - first;
   }
-  return usage_error("--shard auto/N", "needs JOB_COMPLETION_INDEX or SLURM_ARRAY_TASK_ID in the environment");
+  return usage_error("--shard auto/N",
+                     "needs JOB_COMPLETION_INDEX or SLURM_ARRAY_TASK_ID in the environment");
 }
 
 }  // namespace
 
-Expected<ShardSpec> parse_shard(const std::string& text, const std::function<const char*(const char*)>& getenv) {
+Expected<ShardSpec> parse_shard(const std::string& text,
+                                const std::function<const char*(const char*)>& getenv) {
   const auto slash = text.find('/');
   if (slash == std::string::npos)
     return usage_error("--shard", "expects I/N (0-based I) or auto/N, got '" + text + "'");
   ShardSpec spec;
   auto count = parse_int(text.substr(slash + 1), "--shard");
   if (!count) return count.error();
-  if (*count < 1 || *count > 1000000) return usage_error("--shard", "N must be from 1 to 1000000, got " + text);
+  if (*count < 1 || *count > 1000000)
+    return usage_error("--shard", "N must be from 1 to 1000000, got " + text);
   spec.count = *count;
   const std::string index_text = text.substr(0, slash);
-  auto index = index_text == "auto" ? index_from_environment(getenv) : parse_int(index_text, "--shard");
+  auto index =
+      index_text == "auto" ? index_from_environment(getenv) : parse_int(index_text, "--shard");
   if (!index) return index.error();
   if (*index < 0 || *index >= spec.count)
     return usage_error("--shard", "index " + std::to_string(*index) + " is outside 0.." +
-                                      std::to_string(spec.count - 1) + " (shards are numbered from 0)");
+                                      std::to_string(spec.count - 1) +
+                                      " (shards are numbered from 0)");
   spec.index = *index;
   return spec;
 }

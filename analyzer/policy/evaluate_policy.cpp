@@ -27,7 +27,8 @@ std::string num(double v) {
 }
 
 double frame_time_s(const Report& r, int64_t frame) {
-  if (frame >= 0 && static_cast<size_t>(frame) < r.frame_times_s.size()) return r.frame_times_s[frame];
+  if (frame >= 0 && static_cast<size_t>(frame) < r.frame_times_s.size())
+    return r.frame_times_s[frame];
   return r.clip.fps > 0 ? static_cast<double>(frame) / r.clip.fps : 0;
 }
 
@@ -51,7 +52,9 @@ std::string frame_range(const Report& r, int64_t first, int64_t last) {
          seconds(frame_time_s(r, first)) + "-" + seconds(frame_time_s(r, last)) + " s)";
 }
 
-std::string whole_clip(const Report& r) { return "(whole clip, 0.00-" + seconds(clip_duration_s(r)) + " s)"; }
+std::string whole_clip(const Report& r) {
+  return "(whole clip, 0.00-" + seconds(clip_duration_s(r)) + " s)";
+}
 
 // Frames first..last where `pred` holds on the series, as a range text.
 template <class Pred>
@@ -93,7 +96,8 @@ struct Measured {
   std::string place;
 };
 
-std::optional<double> details_number(const Report& r, const std::string& metric, const std::string& key) {
+std::optional<double> details_number(const Report& r, const std::string& metric,
+                                     const std::string& key) {
   if (!r.summary.details.contains(metric)) return std::nullopt;
   const nlohmann::json* node = &r.summary.details[metric];
   size_t start = 0;
@@ -118,12 +122,15 @@ std::optional<Measured> measure(const Report& r, const SummaryRule& rule, double
   }
   if (stat == "segment_count" || stat == "longest_segment_s" || stat == "segment_total_s") {
     auto segs = segments_of(r, rule.metric);
-    if (segs.empty()) return r.find_series(rule.metric) ? std::optional<Measured>(Measured{0, whole_clip(r)}) : std::nullopt;
+    if (segs.empty())
+      return r.find_series(rule.metric) ? std::optional<Measured>(Measured{0, whole_clip(r)})
+                                        : std::nullopt;
     if (stat == "longest_segment_s") {
       auto longest = *std::max_element(segs.begin(), segs.end(), [&](auto a, auto b) {
         return segment_duration_s(r, *a) < segment_duration_s(r, *b);
       });
-      return Measured{segment_duration_s(r, *longest), frame_range(r, longest->start_frame, longest->end_frame)};
+      return Measured{segment_duration_s(r, *longest),
+                      frame_range(r, longest->start_frame, longest->end_frame)};
     }
     double total = 0;
     for (auto* s : segs) total += segment_duration_s(r, *s);
@@ -132,7 +139,10 @@ std::optional<Measured> measure(const Report& r, const SummaryRule& rule, double
   }
   const MetricSummary* m = r.find_summary(rule.metric);
   if (!m) return std::nullopt;
-  const double v = stat == "mean" ? m->mean : stat == "p50" ? m->p50 : stat == "p95" ? m->p95 : m->max;
+  const double v = stat == "mean"  ? m->mean
+                   : stat == "p50" ? m->p50
+                   : stat == "p95" ? m->p95
+                                   : m->max;
   if (!is_defined(v)) return std::nullopt;
   return Measured{v, where(r, rule.metric, [&](double x) { return x >= threshold; })};
 }
@@ -153,8 +163,8 @@ void check_summary_rules(const Report& r, const Policy& p, std::vector<Finding>&
     } else {
       continue;
     }
-    out.push_back({level, rule.metric + " " + rule.statistic + " " + num(m->value) + " >= " +
-                              to_string(level) + " " + num(threshold) + " " + m->place});
+    out.push_back({level, rule.metric + " " + rule.statistic + " " + num(m->value) +
+                              " >= " + to_string(level) + " " + num(threshold) + " " + m->place});
   }
 }
 
@@ -162,7 +172,8 @@ void check_summary_rules(const Report& r, const Policy& p, std::vector<Finding>&
 void check_segments(const Report& r, const Policy& p, std::vector<Finding>& out) {
   std::vector<std::string> metrics;
   for (const auto& s : r.segments)
-    if (s.severity != Severity::info && std::find(metrics.begin(), metrics.end(), s.metric) == metrics.end())
+    if (s.severity != Severity::info &&
+        std::find(metrics.begin(), metrics.end(), s.metric) == metrics.end())
       metrics.push_back(s.metric);
   for (const auto& metric : metrics) {
     auto segs = segments_of(r, metric);
@@ -177,7 +188,7 @@ void check_segments(const Report& r, const Policy& p, std::vector<Finding>& out)
       }
     std::string text = metric + " segment peak " + num(worst->peak);
     auto rule = p.segments.find(metric);
-    const double threshold = rule == p.segments.end() ? NAN
+    const double threshold = rule == p.segments.end()    ? NAN
                              : level == Severity::reject ? rule->second.reject_peak
                                                          : rule->second.review_peak;
     if (std::isfinite(threshold) && worst->peak >= threshold)
@@ -185,7 +196,8 @@ void check_segments(const Report& r, const Policy& p, std::vector<Finding>& out)
     else
       text += std::string(" (") + to_string(level) + " severity)";
     text += " " + frame_range(r, worst->start_frame, worst->end_frame);
-    if (count > 1) text += ", " + std::to_string(count) + " " + to_string(level) + " segments in all";
+    if (count > 1)
+      text += ", " + std::to_string(count) + " " + to_string(level) + " segments in all";
     out.push_back({level, text});
   }
 }
@@ -201,7 +213,8 @@ void check_flash(const Report& r, const Policy& p, std::vector<Finding>& out) {
   const bool hazard_detail = details_number(r, "flash", "hazard").value_or(0) > 0;
   if (worst <= 3 && !hazard_detail) return;
   std::string text = "flash hazard: ";
-  text += worst > 3 ? num(worst) + " flashes in one second > 3" : std::string("flagged by the flash metric");
+  text += worst > 3 ? num(worst) + " flashes in one second > 3"
+                    : std::string("flagged by the flash metric");
   text += " (WCAG 2.x three-flash threshold) " + where(r, "flash", [](double v) { return v > 3; }) +
           "; a screening aid, not a certification";
   out.push_back({Severity::reject, text});
@@ -228,13 +241,15 @@ std::string dropped_place(const Report& r) {
 void check_stream(const Report& r, const Policy& p, std::vector<Finding>& out) {
   const StreamFacts& st = r.summary.stream;
   if (p.stream_mismatch_review_s && st.mismatch_s && *st.mismatch_s >= *p.stream_mismatch_review_s)
-    out.push_back({Severity::review, "stream audio/video duration mismatch " + seconds(*st.mismatch_s) +
-                                         " s >= review " + num(*p.stream_mismatch_review_s) + " s (video " +
+    out.push_back({Severity::review, "stream audio/video duration mismatch " +
+                                         seconds(*st.mismatch_s) + " s >= review " +
+                                         num(*p.stream_mismatch_review_s) + " s (video " +
                                          seconds(st.video_duration_s) + " s, audio " +
                                          seconds(st.audio_duration_s.value_or(0)) + " s)"});
   if (p.dropped_frames_review && st.dropped_frames >= *p.dropped_frames_review)
-    out.push_back({Severity::review, "stream dropped_frames " + std::to_string(st.dropped_frames) + " >= review " +
-                                         std::to_string(*p.dropped_frames_review) + " " + dropped_place(r)});
+    out.push_back({Severity::review, "stream dropped_frames " + std::to_string(st.dropped_frames) +
+                                         " >= review " + std::to_string(*p.dropped_frames_review) +
+                                         " " + dropped_place(r)});
   // The pipeline notes a clip whose decoding stopped before its end
   // (analyzer/pipeline/report_assembly.cpp): only part of it was judged.
   if (p.decode_warnings_review)
@@ -243,7 +258,9 @@ void check_stream(const Report& r, const Policy& p, std::vector<Finding>& out) {
         out.push_back({Severity::review, "decode: " + note + " " + whole_clip(r)});
   if (p.decode_warnings_review && r.summary.details.contains("decode")) {
     const auto& w = r.summary.details["decode"].value("warnings", nlohmann::json());
-    const size_t n = w.is_array() ? w.size() : w.is_number() ? static_cast<size_t>(w.get<double>()) : 0;
+    const size_t n = w.is_array()    ? w.size()
+                     : w.is_number() ? static_cast<size_t>(w.get<double>())
+                                     : 0;
     if (n > 0) {
       std::string text = "decode " + std::to_string(n) + " decoder warning" + (n > 1 ? "s" : "");
       if (w.is_array() && w[0].is_string()) text += " (first: " + w[0].get<std::string>() + ")";
@@ -255,11 +272,11 @@ void check_stream(const Report& r, const Policy& p, std::vector<Finding>& out) {
 void check_coherence(const Report& r, const Policy& p, std::vector<Finding>& out) {
   const double c = r.summary.coherence;
   if (p.coherence_reject_below && c < *p.coherence_reject_below)
-    out.push_back({Severity::reject, "coherence " + num(c) + " < reject floor " + num(*p.coherence_reject_below) +
-                                         " " + whole_clip(r)});
+    out.push_back({Severity::reject, "coherence " + num(c) + " < reject floor " +
+                                         num(*p.coherence_reject_below) + " " + whole_clip(r)});
   else if (p.coherence_review_below && c < *p.coherence_review_below)
-    out.push_back({Severity::review, "coherence " + num(c) + " < review floor " + num(*p.coherence_review_below) +
-                                         " " + whole_clip(r)});
+    out.push_back({Severity::review, "coherence " + num(c) + " < review floor " +
+                                         num(*p.coherence_review_below) + " " + whole_clip(r)});
 }
 
 }  // namespace

@@ -71,12 +71,14 @@ int required_int(const json& obj, const std::string& key, const std::string& pat
   if (!v.is_number_integer()) throw BadKey{path + key, "must be a whole number"};
   const auto i = v.get<int64_t>();
   if (i < min || i > 1000000)
-    throw BadKey{path + key, "must be from " + std::to_string(min) + " to 1000000, got " + std::to_string(i)};
+    throw BadKey{path + key,
+                 "must be from " + std::to_string(min) + " to 1000000, got " + std::to_string(i)};
   return static_cast<int>(i);
 }
 
 bool required_bool(const json& obj, const std::string& key, const std::string& path) {
-  if (!obj.contains(key) || !obj[key].is_boolean()) throw BadKey{path + key, "must be true or false"};
+  if (!obj.contains(key) || !obj[key].is_boolean())
+    throw BadKey{path + key, "must be true or false"};
   return obj[key].get<bool>();
 }
 
@@ -95,7 +97,8 @@ bool valid_statistic(const std::string& s) {
 
 SegmentRule read_segment(const json& j, const std::string& path) {
   only_keys(j, path,
-            {"enter", "leave", "min_frames", "merge_gap_frames", "baseline_k", "review_peak", "reject_peak"});
+            {"enter", "leave", "min_frames", "merge_gap_frames", "baseline_k", "review_peak",
+             "reject_peak"});
   SegmentRule r;
   r.enter = required_nonneg(j, "enter", path);
   r.leave = required_nonneg(j, "leave", path);
@@ -113,7 +116,8 @@ SegmentRule read_segment(const json& j, const std::string& path) {
 
 void read_metric(const std::string& metric, const json& j, const std::string& path, Policy& out) {
   only_keys(j, path, {"segment", "thresholds"});
-  if (j.contains("segment") && !j["segment"].is_null()) out.segments[metric] = read_segment(object_at(j, "segment", path), path + "segment.");
+  if (j.contains("segment") && !j["segment"].is_null())
+    out.segments[metric] = read_segment(object_at(j, "segment", path), path + "segment.");
   if (!j.contains("thresholds") || j["thresholds"].is_null()) return;
   const std::string tpath = path + "thresholds.";
   for (const auto& [statistic, levels] : object_at(j, "thresholds", path).items()) {
@@ -121,12 +125,15 @@ void read_metric(const std::string& metric, const json& j, const std::string& pa
     if (!valid_statistic(statistic)) {
       std::string list;
       for (const auto& s : policy_statistics()) list += s + ", ";
-      throw BadKey{tpath + statistic, "unknown statistic (expected one of: " + list + "details.<key>)"};
+      throw BadKey{tpath + statistic,
+                   "unknown statistic (expected one of: " + list + "details.<key>)"};
     }
     if (levels.is_null()) continue;
-    if (!levels.is_object()) throw BadKey{tpath + statistic, "must be an object {review, reject} or null"};
+    if (!levels.is_object())
+      throw BadKey{tpath + statistic, "must be an object {review, reject} or null"};
     only_keys(levels, spath, {"review", "reject"});
-    SummaryRule rule{metric, statistic, opt_nonneg(levels, "review", spath), opt_nonneg(levels, "reject", spath)};
+    SummaryRule rule{metric, statistic, opt_nonneg(levels, "review", spath),
+                     opt_nonneg(levels, "reject", spath)};
     check_order(rule.review, rule.reject, "review", "reject", spath);
     if (rule.review || rule.reject) out.rules.push_back(std::move(rule));
   }
@@ -149,7 +156,8 @@ void read_rules(const json& j, Policy& out) {
   // A floor: the reject floor must sit at or below the review floor.
   check_order(out.coherence_reject_below, out.coherence_review_below, "coherence_reject_below",
               "coherence_review_below", path);
-  if (j.contains("dropped_frames_review") && !j["dropped_frames_review"].is_null()) out.dropped_frames_review = required_int(j, "dropped_frames_review", path, 1);
+  if (j.contains("dropped_frames_review") && !j["dropped_frames_review"].is_null())
+    out.dropped_frames_review = required_int(j, "dropped_frames_review", path, 1);
 }
 
 Policy read_policy(const json& doc, const std::set<std::string>& known_metrics) {
@@ -179,8 +187,12 @@ Policy read_policy(const json& doc, const std::set<std::string>& known_metrics) 
 }
 
 // Written in reading order (ordered_json): what a person edits comes first.
-ordered_json optional_json(const std::optional<double>& v) { return v ? ordered_json(*v) : ordered_json(nullptr); }
-ordered_json peak_json(double v) { return std::isfinite(v) ? ordered_json(v) : ordered_json(nullptr); }
+ordered_json optional_json(const std::optional<double>& v) {
+  return v ? ordered_json(*v) : ordered_json(nullptr);
+}
+ordered_json peak_json(double v) {
+  return std::isfinite(v) ? ordered_json(v) : ordered_json(nullptr);
+}
 
 std::pair<size_t, std::string> statistic_rank(const std::string& statistic) {
   const auto& known = policy_statistics();
@@ -239,14 +251,16 @@ void add_removals(ordered_json& metrics, const ordered_json& default_metrics) {
 }
 
 ordered_json policy_json_without_removals(const Policy& p) {
-  ordered_json rules = {{"flash_hazard_rejects", p.flash_hazard_rejects},
-                        {"stream_mismatch_review_s", optional_json(p.stream_mismatch_review_s)},
-                        {"coherence_review_below", optional_json(p.coherence_review_below)},
-                        {"coherence_reject_below", optional_json(p.coherence_reject_below)},
-                        {"dropped_frames_review",
-                         p.dropped_frames_review ? ordered_json(*p.dropped_frames_review) : ordered_json(nullptr)},
-                        {"decode_warnings_review", p.decode_warnings_review}};
-  return {{"schema", kPolicySchema}, {"name", p.name}, {"rules", rules}, {"metrics", metrics_json(p)}};
+  ordered_json rules = {
+      {"flash_hazard_rejects", p.flash_hazard_rejects},
+      {"stream_mismatch_review_s", optional_json(p.stream_mismatch_review_s)},
+      {"coherence_review_below", optional_json(p.coherence_review_below)},
+      {"coherence_reject_below", optional_json(p.coherence_reject_below)},
+      {"dropped_frames_review",
+       p.dropped_frames_review ? ordered_json(*p.dropped_frames_review) : ordered_json(nullptr)},
+      {"decode_warnings_review", p.decode_warnings_review}};
+  return {
+      {"schema", kPolicySchema}, {"name", p.name}, {"rules", rules}, {"metrics", metrics_json(p)}};
 }
 
 const ordered_json& default_policy_json() {
@@ -257,10 +271,8 @@ const ordered_json& default_policy_json() {
 }  // namespace
 
 const std::vector<std::string>& policy_statistics() {
-  static const std::vector<std::string> names = {"mean",          "p50",
-                                                 "p95",           "max",
-                                                 "segment_count", "longest_segment_s",
-                                                 "segment_total_s"};
+  static const std::vector<std::string> names = {
+      "mean", "p50", "p95", "max", "segment_count", "longest_segment_s", "segment_total_s"};
   return names;
 }
 
@@ -279,7 +291,8 @@ Expected<Policy> parse_policy(const std::string& json_text, const std::string& s
   }
   if (!patch.is_object()) return usage_error(subject, "a policy must be a JSON object");
   std::set<std::string> known_metrics;
-  for (const auto& [metric, entry] : default_policy_json()["metrics"].items()) known_metrics.insert(metric);
+  for (const auto& [metric, entry] : default_policy_json()["metrics"].items())
+    known_metrics.insert(metric);
   json merged = json::parse(default_policy_json().dump());
   merged.merge_patch(patch);
   try {

@@ -21,7 +21,9 @@ namespace {
 class Sha256 {
  public:
   Sha256() : ctx_(av_sha_alloc()) { av_sha_init(ctx_.get(), 256); }
-  void update(const void* data, size_t size) { av_sha_update(ctx_.get(), static_cast<const uint8_t*>(data), size); }
+  void update(const void* data, size_t size) {
+    av_sha_update(ctx_.get(), static_cast<const uint8_t*>(data), size);
+  }
   std::string hex() {
     uint8_t digest[32];
     av_sha_final(ctx_.get(), digest);

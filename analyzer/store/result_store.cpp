@@ -39,11 +39,15 @@ const char* kColumns =
 // A prepared statement, finalized on scope exit.
 class Statement {
  public:
-  Statement(sqlite3* db, const std::string& sql) { rc_ = sqlite3_prepare_v2(db, sql.c_str(), -1, &stmt_, nullptr); }
+  Statement(sqlite3* db, const std::string& sql) {
+    rc_ = sqlite3_prepare_v2(db, sql.c_str(), -1, &stmt_, nullptr);
+  }
   ~Statement() { sqlite3_finalize(stmt_); }
   bool ok() const { return rc_ == SQLITE_OK; }
   sqlite3_stmt* get() { return stmt_; }
-  void text(int i, const std::string& s) { sqlite3_bind_text(stmt_, i, s.data(), static_cast<int>(s.size()), SQLITE_TRANSIENT); }
+  void text(int i, const std::string& s) {
+    sqlite3_bind_text(stmt_, i, s.data(), static_cast<int>(s.size()), SQLITE_TRANSIENT);
+  }
   void real(int i, double v) { sqlite3_bind_double(stmt_, i, v); }
 
  private:
@@ -102,9 +106,12 @@ Expected<std::unique_ptr<ResultStore>> ResultStore::open(const std::string& path
     if (!st) return st.error();
   }
   Statement version(db, "PRAGMA user_version");
-  int found = version.ok() && sqlite3_step(version.get()) == SQLITE_ROW ? sqlite3_column_int(version.get(), 0) : 0;
+  int found = version.ok() && sqlite3_step(version.get()) == SQLITE_ROW
+                  ? sqlite3_column_int(version.get(), 0)
+                  : 0;
   if (found > kSchemaVersion)
-    return output_error(path, "results store was written by a newer framelint (schema " + std::to_string(found) + ")");
+    return output_error(path, "results store was written by a newer framelint (schema " +
+                                  std::to_string(found) + ")");
   if (found < kSchemaVersion) {
     auto st = store->exec(("PRAGMA user_version=" + std::to_string(kSchemaVersion)).c_str());
     if (!st) return st.error();
@@ -143,12 +150,13 @@ Status ResultStore::insert(StoredAnalysis& row) {
   std::lock_guard lock(mutex_);
   auto begun = exec("BEGIN IMMEDIATE");
   if (!begun) return begun;
-  Statement s(db_,
-              "INSERT INTO analyses (content_sha256, settings_hash, tool_version, clip_id, clip_path, "
-              "model, prompt_id, verdict, coherence, reasons_json, summary_json, report_path, created_at) "
-              "VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11, ?12, "
-              "COALESCE(NULLIF(?13, ''), strftime('%Y-%m-%dT%H:%M:%fZ', 'now'))) "
-              "RETURNING row_id, created_at");
+  Statement s(
+      db_,
+      "INSERT INTO analyses (content_sha256, settings_hash, tool_version, clip_id, clip_path, "
+      "model, prompt_id, verdict, coherence, reasons_json, summary_json, report_path, created_at) "
+      "VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11, ?12, "
+      "COALESCE(NULLIF(?13, ''), strftime('%Y-%m-%dT%H:%M:%fZ', 'now'))) "
+      "RETURNING row_id, created_at");
   bool ok = s.ok();
   if (ok) {
     s.text(1, row.content_sha256);
@@ -181,9 +189,10 @@ Status ResultStore::insert(StoredAnalysis& row) {
 
 Expected<bool> ResultStore::contains(const StoredAnalysis& row) {
   std::lock_guard lock(mutex_);
-  Statement s(db_,
-              "SELECT 1 FROM analyses WHERE content_sha256 = ?1 AND settings_hash = ?2 AND clip_id = ?3 "
-              "AND created_at = ?4 LIMIT 1");
+  Statement s(
+      db_,
+      "SELECT 1 FROM analyses WHERE content_sha256 = ?1 AND settings_hash = ?2 AND clip_id = ?3 "
+      "AND created_at = ?4 LIMIT 1");
   if (!s.ok()) return output_error(path_, std::string("results store: ") + sqlite3_errmsg(db_));
   s.text(1, row.content_sha256);
   s.text(2, row.settings_hash);
@@ -201,7 +210,8 @@ Expected<std::vector<StoredAnalysis>> ResultStore::all() {
   std::vector<StoredAnalysis> rows;
   int rc;
   while ((rc = sqlite3_step(s.get())) == SQLITE_ROW) rows.push_back(read_row(s.get()));
-  if (rc != SQLITE_DONE) return output_error(path_, std::string("results store: ") + sqlite3_errmsg(db_));
+  if (rc != SQLITE_DONE)
+    return output_error(path_, std::string("results store: ") + sqlite3_errmsg(db_));
   return rows;
 }
 

@@ -23,12 +23,12 @@ namespace framelint {
 
 // One clip of a batch.
 struct GateInput {
-  int64_t index = 0;        // position in the whole (unsharded) input list
-  std::string path;         // the clip: a video file or a folder of frames
-  std::string id;           // manifest "id", else `path`; shards hash it
-  std::string prompt_id;    // "" when not given
-  std::string model;        // "" when not given
-  nlohmann::json seed;      // null when not given
+  int64_t index = 0;      // position in the whole (unsharded) input list
+  std::string path;       // the clip: a video file or a folder of frames
+  std::string id;         // manifest "id", else `path`; shards hash it
+  std::string prompt_id;  // "" when not given
+  std::string model;      // "" when not given
+  nlohmann::json seed;    // null when not given
   nlohmann::json metadata = nlohmann::json::object();  // other manifest fields, as given
   std::string origin;       // "manifest.jsonl:12" for manifest lines, else ""
   std::string output_name;  // report file stem, unique in the batch (set by the caller)
@@ -81,7 +81,8 @@ struct ClipResult {
 std::string queue_status(const ClipResult& result);
 // One queue.jsonl line (fields in docs/gate.md) and back.
 nlohmann::json queue_line(const ClipResult& result);
-Expected<ClipResult> clip_result_from_queue_line(const nlohmann::json& line, const std::string& subject);
+Expected<ClipResult> clip_result_from_queue_line(const nlohmann::json& line,
+                                                 const std::string& subject);
 
 struct GateCounts {
   int total = 0;
@@ -107,10 +108,10 @@ struct GateOptions {
   AnalysisSettings settings;  // settings.threads = 0: max(1, cores / jobs) per clip
   Policy policy = default_policy();
   std::string out_dir;
-  std::string db_path;  // "" = out_dir/framelint.db
-  int jobs = 0;         // clips analysed at once; 0 = number of cores
-  AnalyzeFunction analyze;     // empty = analyze_clip
-  ReportWriter write_report;   // empty = JSON only (base_path + ".json")
+  std::string db_path;        // "" = out_dir/framelint.db
+  int jobs = 0;               // clips analysed at once; 0 = number of cores
+  AnalyzeFunction analyze;    // empty = analyze_clip
+  ReportWriter write_report;  // empty = JSON only (base_path + ".json")
 };
 
 struct GateObserver {
@@ -134,6 +135,7 @@ Status write_queue_outputs(const std::string& out_dir, const std::vector<ClipRes
 // Joins the outputs of shard runs (their queue.jsonl, reports and
 // framelint.db) into out_dir: one queue in input order without duplicates,
 // one store, one index page. Reports whose names collide get a new name.
-Expected<GateRun> merge_gate_outputs(const std::vector<std::string>& shard_dirs, const std::string& out_dir);
+Expected<GateRun> merge_gate_outputs(const std::vector<std::string>& shard_dirs,
+                                     const std::string& out_dir);
 
 }  // namespace framelint

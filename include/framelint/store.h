@@ -26,9 +26,9 @@ struct sqlite3;
 namespace framelint {
 
 struct StoredAnalysis {
-  int64_t row_id = 0;           // set by insert()
-  std::string content_sha256;   // of the clip's bytes (content_sha256())
-  std::string settings_hash;    // settings_hash()
+  int64_t row_id = 0;          // set by insert()
+  std::string content_sha256;  // of the clip's bytes (content_sha256())
+  std::string settings_hash;   // settings_hash()
   std::string tool_version;
   std::string clip_id;
   std::string clip_path;
@@ -38,8 +38,8 @@ struct StoredAnalysis {
   double coherence = 0;
   std::vector<std::string> reasons;
   nlohmann::json summary = nlohmann::json::object();  // the report's summary JSON
-  std::string report_path;  // absolute path of the JSON report
-  std::string created_at;   // ISO 8601 UTC, set by insert() when empty
+  std::string report_path;                            // absolute path of the JSON report
+  std::string created_at;                             // ISO 8601 UTC, set by insert() when empty
 };
 
 class ResultStore {

@@ -15,9 +15,12 @@ namespace {
 int rank(const ClipResult& r) {
   if (!r.verdict) return 2;
   switch (*r.verdict) {
-    case Verdict::reject: return 0;
-    case Verdict::review: return 1;
-    case Verdict::pass: return 3;
+    case Verdict::reject:
+      return 0;
+    case Verdict::review:
+      return 1;
+    case Verdict::pass:
+      return 3;
   }
   return 3;
 }
@@ -31,20 +34,25 @@ std::string coherence_text(double c) {
 
 std::string counts_line(const GateCounts& c) {
   auto pill = [](const char* cls, int n, const char* label) {
-    return std::string("<span class=\"pill ") + cls + "\">" + std::to_string(n) + " " + label + "</span>";
+    return std::string("<span class=\"pill ") + cls + "\">" + std::to_string(n) + " " + label +
+           "</span>";
   };
-  return pill("total", c.total, "clips") + pill("reject", c.reject, "reject") + pill("review", c.review, "review") +
-         pill("error", c.error, "error") + pill("pass", c.pass, "pass") +
-         pill("store", c.from_store, "from store");
+  return pill("total", c.total, "clips") + pill("reject", c.reject, "reject") +
+         pill("review", c.review, "review") + pill("error", c.error, "error") +
+         pill("pass", c.pass, "pass") + pill("store", c.from_store, "from store");
 }
 
 std::string clip_cell(const ClipResult& r) {
   std::string out = "<div class=\"clip-id\">" + html_escape(r.input.id) + "</div>";
-  if (r.input.path != r.input.id) out += "<div class=\"clip-path\">" + html_escape(r.input.path) + "</div>";
+  if (r.input.path != r.input.id)
+    out += "<div class=\"clip-path\">" + html_escape(r.input.path) + "</div>";
   std::string tags;
-  if (!r.input.model.empty()) tags += "<span class=\"tag\">model " + html_escape(r.input.model) + "</span>";
-  if (!r.input.prompt_id.empty()) tags += "<span class=\"tag\">prompt " + html_escape(r.input.prompt_id) + "</span>";
-  if (!r.input.seed.is_null()) tags += "<span class=\"tag\">seed " + html_escape(r.input.seed.dump()) + "</span>";
+  if (!r.input.model.empty())
+    tags += "<span class=\"tag\">model " + html_escape(r.input.model) + "</span>";
+  if (!r.input.prompt_id.empty())
+    tags += "<span class=\"tag\">prompt " + html_escape(r.input.prompt_id) + "</span>";
+  if (!r.input.seed.is_null())
+    tags += "<span class=\"tag\">seed " + html_escape(r.input.seed.dump()) + "</span>";
   if (r.from_store) tags += "<span class=\"tag store\">from store</span>";
   if (!tags.empty()) out += "<div class=\"tags\">" + tags + "</div>";
   return out;
@@ -63,8 +71,8 @@ std::string row(const ClipResult& r, const std::string& link) {
   std::string report = link.empty() ? std::string("<span class=\"quiet\">none</span>")
                                     : "<a href=\"" + url_escape_path(link) + "\">report</a>";
   return "<tr class=\"" + status + "\"><td><span class=\"verdict " + status + "\">" + status +
-         "</span></td><td class=\"num\">" + coherence_text(r.coherence) + "</td><td>" + clip_cell(r) +
-         "</td><td>" + reasons_cell(r) + "</td><td>" + report + "</td></tr>\n";
+         "</span></td><td class=\"num\">" + coherence_text(r.coherence) + "</td><td>" +
+         clip_cell(r) + "</td><td>" + reasons_cell(r) + "</td><td>" + report + "</td></tr>\n";
 }
 
 }  // namespace
@@ -84,28 +92,39 @@ std::vector<size_t> worst_first_order(const std::vector<ClipResult>& results) {
   return order;
 }
 
-std::string render_queue_page(const std::vector<ClipResult>& results, const std::vector<std::string>& links) {
+std::string render_queue_page(const std::vector<ClipResult>& results,
+                              const std::vector<std::string>& links) {
   GateCounts counts;
   for (const auto& r : results) counts.add(r);
   std::string rows;
-  for (size_t i : worst_first_order(results)) rows += row(results[i], i < links.size() ? links[i] : "");
+  for (size_t i : worst_first_order(results))
+    rows += row(results[i], i < links.size() ? links[i] : "");
   // The style is allowed by its hash (CSP Level 2), like the clip pages; the
   // page has no script at all.
   const std::string style(asset("queue.css"));
-  std::string page = "<!doctype html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n"
-                     "<meta http-equiv=\"Content-Security-Policy\" content=\"default-src 'none'; img-src data:; "
-                     "style-src " + csp_hash_source(style) + "; base-uri 'none'; form-action 'none'\">\n"
-                     "<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n"
-                     "<title>framelint review queue (" + std::to_string(counts.total) + " clips)</title>\n<style>";
+  std::string page =
+      "<!doctype html>\n<html lang=\"en\">\n<head>\n<meta charset=\"utf-8\">\n"
+      "<meta http-equiv=\"Content-Security-Policy\" content=\"default-src 'none'; img-src data:; "
+      "style-src " +
+      csp_hash_source(style) +
+      "; base-uri 'none'; form-action 'none'\">\n"
+      "<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n"
+      "<title>framelint review queue (" +
+      std::to_string(counts.total) + " clips)</title>\n<style>";
   page += style;
-  page += "</style>\n</head>\n<body>\n<header>\n<h1>Review queue</h1>\n<p class=\"counts\">" + counts_line(counts) +
-          "</p>\n<p class=\"quiet\">Worst first: reject, review, error, pass; then lowest coherence. "
-          "Written by framelint " + html_escape(version()) + ".</p>\n</header>\n<main>\n";
+  page +=
+      "</style>\n</head>\n<body>\n<header>\n<h1>Review queue</h1>\n<p class=\"counts\">" +
+      counts_line(counts) +
+      "</p>\n<p class=\"quiet\">Worst first: reject, review, error, pass; then lowest coherence. "
+      "Written by framelint " +
+      html_escape(version()) + ".</p>\n</header>\n<main>\n";
   if (results.empty()) {
     page += "<p class=\"quiet\">No clips in this queue.</p>\n";
   } else {
-    page += "<table>\n<thead><tr><th>Verdict</th><th>Coherence</th><th>Clip</th><th>Reasons</th>"
-            "<th>Report</th></tr></thead>\n<tbody>\n" + rows + "</tbody>\n</table>\n";
+    page +=
+        "<table>\n<thead><tr><th>Verdict</th><th>Coherence</th><th>Clip</th><th>Reasons</th>"
+        "<th>Report</th></tr></thead>\n<tbody>\n" +
+        rows + "</tbody>\n</table>\n";
   }
   page += "</main>\n</body>\n</html>\n";
   return page;

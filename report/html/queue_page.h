@@ -12,7 +12,8 @@
 namespace framelint {
 
 // links[i]: the report of results[i] relative to the page ("" for none).
-std::string render_queue_page(const std::vector<ClipResult>& results, const std::vector<std::string>& links);
+std::string render_queue_page(const std::vector<ClipResult>& results,
+                              const std::vector<std::string>& links);
 
 // The order the page lists clips in: indices into `results`.
 std::vector<size_t> worst_first_order(const std::vector<ClipResult>& results);

@@ -16,7 +16,8 @@ using namespace framelint::test;
 
 namespace {
 
-ClipResult result(int index, std::optional<Verdict> verdict, const std::string& id, double coherence) {
+ClipResult result(int index, std::optional<Verdict> verdict, const std::string& id,
+                  double coherence) {
   ClipResult r;
   r.input.index = index;
   r.input.id = id;
@@ -31,7 +32,8 @@ ClipResult result(int index, std::optional<Verdict> verdict, const std::string& 
 
 TEST(GateQueuePage, LoadsCleanlyInChromiumWithHostileInputs) {
   if (!std::filesystem::exists("/usr/bin/chromium")) GTEST_SKIP() << "chromium is not installed";
-  if (!std::filesystem::exists("/usr/bin/python3")) GTEST_SKIP() << "/usr/bin/python3 is not installed";
+  if (!std::filesystem::exists("/usr/bin/python3"))
+    GTEST_SKIP() << "/usr/bin/python3 is not installed";
   std::vector<ClipResult> results = {
       result(0, Verdict::pass, "harbour dawn.mp4", 98),
       result(1, Verdict::reject, "<img src=x onerror=alert(1)>.mp4", 31),
@@ -47,7 +49,8 @@ TEST(GateQueuePage, LoadsCleanlyInChromiumWithHostileInputs) {
   TempDir dir;
   write_text(dir.path() / "index.html", render_queue_page(results, links));
 
-  const auto run = run_command({"/usr/bin/python3", std::string(FRAMELINT_SOURCE_DIR) + "/tests/browser/page_check.py",
+  const auto run = run_command({"/usr/bin/python3",
+                                std::string(FRAMELINT_SOURCE_DIR) + "/tests/browser/page_check.py",
                                 "/usr/bin/chromium", dir.file("index.html"), dir.file("shot.png")});
   ASSERT_EQ(run.exit_code, 0) << run.err;
   const auto facts = nlohmann::json::parse(run.out);

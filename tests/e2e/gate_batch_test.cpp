@@ -38,13 +38,15 @@ TEST(GateCli, BatchJudgesGoodAndDefectiveClipsAndRecordsUnreadableOnes) {
   TempDir dir;
   const std::string good_a = dir.file("street 1 — été.mp4"), good_b = dir.file("街 2.mp4");
   for (auto [clip, start] : {std::pair{good_a, 0}, std::pair{good_b, 30}}) {
-    const auto r = run_command({"ffmpeg", "-v", "error", "-y", "-ss", std::to_string(start), "-t", "2", "-i", vtest,
-                                "-vf", "scale=160:120", "-c:v", "libx264", "-pix_fmt", "yuv420p", clip});
+    const auto r = run_command({"ffmpeg", "-v", "error", "-y", "-ss", std::to_string(start), "-t",
+                                "2", "-i", vtest, "-vf", "scale=160:120", "-c:v", "libx264",
+                                "-pix_fmt", "yuv420p", clip});
     ASSERT_EQ(r.exit_code, 0) << r.err;
   }
   const std::string flashing = dir.file("flashing.mp4");
   ASSERT_EQ(make_lavfi_clip(flashing, "color=c=gray:size=160x120:rate=24:duration=2",
-                            {"-vf", "geq=lum='if(lt(mod(N,4),2),225,30)':cb=128:cr=128", "-pix_fmt", "yuv420p"}),
+                            {"-vf", "geq=lum='if(lt(mod(N,4),2),225,30)':cb=128:cr=128", "-pix_fmt",
+                             "yuv420p"}),
             "");
   std::string noise(20000, '\0');
   uint32_t x = 7;
@@ -53,21 +55,23 @@ TEST(GateCli, BatchJudgesGoodAndDefectiveClipsAndRecordsUnreadableOnes) {
   write_text(dir.file("truncated.mp4"), read_text(good_a).substr(0, 3000));
   write_text(dir.file("empty.mp4"), "");
   write_text(dir.file("notes.txt"), "shot list for the harbour sequence\n");
-  const std::vector<std::string> bad = {dir.file("corrupt.mp4"), dir.file("truncated.mp4"), dir.file("empty.mp4"),
-                                        dir.file("notes.txt")};
+  const std::vector<std::string> bad = {dir.file("corrupt.mp4"), dir.file("truncated.mp4"),
+                                        dir.file("empty.mp4"), dir.file("notes.txt")};
   std::vector<std::string> args = {"gate", good_a, good_b, flashing};
   args.insert(args.end(), bad.begin(), bad.end());
-  for (const std::string& a : {std::string("--out"), dir.file("out"), std::string("--jobs"), std::string("2"),
-                                std::string("--no-html")})
+  for (const std::string& a : {std::string("--out"), dir.file("out"), std::string("--jobs"),
+                               std::string("2"), std::string("--no-html")})
     args.push_back(a);
   const auto result = framelint_cli(args);
   EXPECT_EQ(result.exit_code, 3) << result.err;  // an unreadable input outranks the rejected clip
-  EXPECT_NE(result.out.find("2 pass / 0 review / 1 reject / 4 error (0 taken from the store)"), std::string::npos)
+  EXPECT_NE(result.out.find("2 pass / 0 review / 1 reject / 4 error (0 taken from the store)"),
+            std::string::npos)
       << result.out;
 
   const auto queue = queue_of(dir.path() / "out");
   ASSERT_EQ(queue.size(), 7u);
-  const std::vector<std::string> expected = {"pass", "pass", "reject", "error", "error", "error", "error"};
+  const std::vector<std::string> expected = {"pass",  "pass",  "reject", "error",
+                                             "error", "error", "error"};
   for (size_t i = 0; i < queue.size(); ++i) {
     EXPECT_EQ(queue[i]["index"], i);
     EXPECT_EQ(queue[i]["verdict"], expected[i]) << queue[i].dump();
@@ -78,18 +82,22 @@ TEST(GateCli, BatchJudgesGoodAndDefectiveClipsAndRecordsUnreadableOnes) {
   EXPECT_FALSE(queue[2]["reasons"].empty());
   for (size_t i = 3; i < 7; ++i) {
     const std::string name = fs::path(bad[i - 3]).filename().string();
-    EXPECT_NE(queue[i]["error"].get<std::string>().find(name), std::string::npos) << queue[i].dump();
+    EXPECT_NE(queue[i]["error"].get<std::string>().find(name), std::string::npos)
+        << queue[i].dump();
     EXPECT_NE(result.err.find(name), std::string::npos) << result.err;
     EXPECT_TRUE(queue[i]["report"].is_null());
   }
   const std::string page = read_text(dir.path() / "out" / "index.html");
-  EXPECT_LT(page.find("flashing.mp4"), page.find("corrupt.mp4"));  // worst first: reject before error
-  EXPECT_LT(page.find("corrupt.mp4"), page.find("街 2.mp4"));      // error before pass
+  EXPECT_LT(page.find("flashing.mp4"),
+            page.find("corrupt.mp4"));                         // worst first: reject before error
+  EXPECT_LT(page.find("corrupt.mp4"), page.find("街 2.mp4"));  // error before pass
 
   // --fail-on: the rejected clip alone fails the gate (1); the good ones pass.
-  EXPECT_EQ(framelint_cli({"gate", flashing, "--out", dir.file("out2"), "--quiet", "--no-html"}).exit_code, 1);
-  EXPECT_EQ(framelint_cli({"gate", good_a, good_b, "--out", dir.file("out2"), "--quiet", "--fail-on", "review",
-                           "--no-html"})
+  EXPECT_EQ(framelint_cli({"gate", flashing, "--out", dir.file("out2"), "--quiet", "--no-html"})
+                .exit_code,
+            1);
+  EXPECT_EQ(framelint_cli({"gate", good_a, good_b, "--out", dir.file("out2"), "--quiet",
+                           "--fail-on", "review", "--no-html"})
                 .exit_code,
             0);
 }
@@ -100,10 +108,12 @@ TEST(GateCli, FoldersAndManifestsKeepTheirFields) {
   ASSERT_EQ(make_varied_clips(dir.path() / "batch" / "day 1", 2, "take"), "");
   ASSERT_EQ(make_varied_clips(dir.path() / "more", 1, "extra"), "");
   write_text(dir.path() / "more" / "list.jsonl",
-             "{\"path\": \"extra_0.mp4\", \"id\": \"e-0\", \"prompt_id\": \"harbour-dawn\", \"model\": \"ckpt-12\", "
+             "{\"path\": \"extra_0.mp4\", \"id\": \"e-0\", \"prompt_id\": \"harbour-dawn\", "
+             "\"model\": \"ckpt-12\", "
              "\"seed\": 1234, \"guidance\": 6.5}\n");
-  const auto result = framelint_cli({"gate", dir.file("batch"), dir.file("more/list.jsonl"), "--out", dir.file("out"),
-                                     "--width", "160", "--quiet", "--no-html"});
+  const auto result =
+      framelint_cli({"gate", dir.file("batch"), dir.file("more/list.jsonl"), "--out",
+                     dir.file("out"), "--width", "160", "--quiet", "--no-html"});
   ASSERT_TRUE(result.exit_code == 0 || result.exit_code == 1) << result.err;
   const auto queue = queue_of(dir.path() / "out");
   ASSERT_EQ(queue.size(), 3u);
@@ -130,18 +140,23 @@ TEST(GateCli, UsageErrorsExitTwoAndNameTheCulprit) {
   EXPECT_EQ(r.exit_code, 2);
   EXPECT_NE(r.err.find("missing \"path\""), std::string::npos) << r.err;
 
-  write_text(dir.path() / "p.json", "{\"metrics\": {\"flicker\": {\"segment\": {\"enter\": -0.5}}}}");
+  write_text(dir.path() / "p.json",
+             "{\"metrics\": {\"flicker\": {\"segment\": {\"enter\": -0.5}}}}");
   r = framelint_cli({"gate", "x.mp4", "--out", dir.file("out"), "--policy", dir.file("p.json")});
   EXPECT_EQ(r.exit_code, 2);
   EXPECT_NE(r.err.find("metrics.flicker.segment.enter"), std::string::npos) << r.err;
 
-  write_text(dir.path() / "p.json", "{\"metrics\": {\"flicker\": {\"thresholds\": {\"p95\": {\"review\": 0.9}}}}}");
+  write_text(dir.path() / "p.json",
+             "{\"metrics\": {\"flicker\": {\"thresholds\": {\"p95\": {\"review\": 0.9}}}}}");
   r = framelint_cli({"gate", "x.mp4", "--out", dir.file("out"), "--policy", dir.file("p.json")});
   EXPECT_EQ(r.exit_code, 2);
   EXPECT_NE(r.err.find("metrics.flicker.thresholds.p95.review"), std::string::npos) << r.err;
 
-  EXPECT_EQ(framelint_cli({"gate", "x.mp4", "--out", dir.file("out"), "--shard", "3/3"}).exit_code, 2);
-  EXPECT_EQ(framelint_cli({"gate", "x.mp4", "--out", dir.file("out"), "--fail-on", "maybe"}).exit_code, 2);
+  EXPECT_EQ(framelint_cli({"gate", "x.mp4", "--out", dir.file("out"), "--shard", "3/3"}).exit_code,
+            2);
+  EXPECT_EQ(
+      framelint_cli({"gate", "x.mp4", "--out", dir.file("out"), "--fail-on", "maybe"}).exit_code,
+      2);
   EXPECT_EQ(framelint_cli({"gate", "x.mp4"}).exit_code, 2);  // no --out
   EXPECT_EQ(framelint_cli({"merge", dir.file("nowhere"), "--out", dir.file("m")}).exit_code, 2);
 }
@@ -153,8 +168,8 @@ TEST(GateCli, PrintedDefaultPolicyIsAcceptedBackUnchanged) {
   EXPECT_EQ(nlohmann::ordered_json::parse(printed.out), policy_to_json(default_policy()));
   write_text(dir.path() / "policy.json", printed.out);
   // Accepted: the run goes on to the (missing) clip, exit 3, not 2.
-  const auto r = framelint_cli({"gate", dir.file("missing.mp4"), "--out", dir.file("out"), "--policy",
-                                dir.file("policy.json"), "--quiet"});
+  const auto r = framelint_cli({"gate", dir.file("missing.mp4"), "--out", dir.file("out"),
+                                "--policy", dir.file("policy.json"), "--quiet"});
   EXPECT_EQ(r.exit_code, 3) << r.err;
   auto back = load_policy(dir.file("policy.json"));
   ASSERT_TRUE(back.ok()) << back.error().message();

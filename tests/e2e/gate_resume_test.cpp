@@ -41,8 +41,9 @@ TEST(GateResume, KilledBatchFinishesOnRerunWithoutLosingOrRepeatingClips) {
   constexpr int kClips = 10;
   ASSERT_EQ(make_varied_clips(dir.path() / "clips", kClips), "");
   const fs::path out = dir.path() / "out", db = out / "framelint.db";
-  const std::vector<std::string> command = {FRAMELINT_BINARY, "gate", dir.file("clips"), "--out", out.string(),
-                                            "--jobs", "1", "--threads", "1", "--width", "160", "--no-html"};
+  const std::vector<std::string> command = {
+      FRAMELINT_BINARY, "gate", dir.file("clips"), "--out", out.string(), "--jobs", "1",
+      "--threads",      "1",    "--width",         "160",   "--no-html"};
 
   // First run: kill -9 as soon as one clip is stored (one clip at a time, so
   // the others are still to do). Give up waiting after two minutes.
@@ -77,7 +78,8 @@ TEST(GateResume, KilledBatchFinishesOnRerunWithoutLosingOrRepeatingClips) {
   // Second run: the same command.
   const auto second = run_command(command);
   ASSERT_TRUE(second.exit_code == 0 || second.exit_code == 1) << second.err;
-  EXPECT_NE(second.out.find("(" + std::to_string(stored_before) + " taken from the store)"), std::string::npos)
+  EXPECT_NE(second.out.find("(" + std::to_string(stored_before) + " taken from the store)"),
+            std::string::npos)
       << second.out;
   const auto lines = read_lines(out / "queue.jsonl");
   ASSERT_EQ(lines.size(), static_cast<size_t>(kClips));
@@ -97,6 +99,8 @@ TEST(GateResume, KilledBatchFinishesOnRerunWithoutLosingOrRepeatingClips) {
 
   // A third run recomputes nothing.
   const auto third = run_command(command);
-  EXPECT_NE(third.out.find("(" + std::to_string(kClips) + " taken from the store)"), std::string::npos) << third.out;
+  EXPECT_NE(third.out.find("(" + std::to_string(kClips) + " taken from the store)"),
+            std::string::npos)
+      << third.out;
   EXPECT_EQ(stored_rows(db), static_cast<size_t>(kClips));
 }

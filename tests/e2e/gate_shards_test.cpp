@@ -36,10 +36,12 @@ TEST(GateShards, UnionOfShardRunsEqualsOneRun) {
   FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   ASSERT_EQ(make_varied_clips(dir.path() / "clips", 7), "");
-  write_text(dir.path() / "clips" / "broken.mp4", "not a video");  // errors travel through merge too
+  write_text(dir.path() / "clips" / "broken.mp4",
+             "not a video");  // errors travel through merge too
   auto gate = [&](const std::string& out, std::vector<std::string> extra) {
-    std::vector<std::string> args = {FRAMELINT_BINARY, "gate", dir.file("clips"), "--out", dir.file(out),
-                                     "--width", "160", "--jobs", "2", "--no-html"};
+    std::vector<std::string> args = {
+        FRAMELINT_BINARY, "gate", dir.file("clips"), "--out", dir.file(out),
+        "--width",        "160",  "--jobs",          "2",     "--no-html"};
     args.insert(args.end(), extra.begin(), extra.end());
     return run_command(args);
   };
@@ -80,7 +82,8 @@ TEST(GateShards, UnionOfShardRunsEqualsOneRun) {
     b.erase("from_store");
     EXPECT_EQ(a, b) << "clip " << i;
     ids.insert(b["id"].get<std::string>());
-    if (!b["report"].is_null()) EXPECT_TRUE(fs::exists(dir.path() / "merged" / b["report"].get<std::string>()));
+    if (!b["report"].is_null())
+      EXPECT_TRUE(fs::exists(dir.path() / "merged" / b["report"].get<std::string>()));
   }
   EXPECT_EQ(ids.size(), one.size());
   EXPECT_EQ(stored_rows(dir.path() / "merged" / "framelint.db"), 7u);

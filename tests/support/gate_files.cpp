@@ -64,8 +64,9 @@ std::string make_varied_clips(const fs::path& dir, int n, const std::string& ste
   fs::create_directories(dir);
   for (int i = 0; i < n; ++i) {
     const std::string out = (dir / (stem + "_" + std::to_string(i) + ".mp4")).string();
-    std::string err = make_lavfi_clip(out, "testsrc2=size=160x120:rate=12:duration=1",
-                                      {"-vf", "hue=h=" + std::to_string(i * 37 % 360), "-pix_fmt", "yuv420p"});
+    std::string err =
+        make_lavfi_clip(out, "testsrc2=size=160x120:rate=12:duration=1",
+                        {"-vf", "hue=h=" + std::to_string(i * 37 % 360), "-pix_fmt", "yuv420p"});
     if (!err.empty()) return err;
   }
   return "";

@@ -25,6 +25,7 @@ int wait_program(int pid);
 // Makes `n` small different clips (FFmpeg's testsrc2 at 160x120, 12 fps,
 // 1 s, each with its own hue) named <stem>_<i>.mp4 in `dir`. Returns "" on
 // success, else ffmpeg's complaint.
-std::string make_varied_clips(const std::filesystem::path& dir, int n, const std::string& stem = "clip");
+std::string make_varied_clips(const std::filesystem::path& dir, int n,
+                              const std::string& stem = "clip");
 
 }  // namespace framelint::test

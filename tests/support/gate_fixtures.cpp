@@ -22,15 +22,18 @@ Report gate_report(int frames, double fps, const std::string& path) {
   return r;
 }
 
-void add_series(Report& r, const std::string& metric, double base, double value, int first, int last) {
+void add_series(Report& r, const std::string& metric, double base, double value, int first,
+                int last) {
   MetricSeries s{metric, std::vector<double>(r.frame_times_s.size(), base)};
   for (int i = first; i >= 0 && i <= last; ++i) s.values[i] = value;
   r.series.push_back(std::move(s));
   r.summary.metrics = summarise_series(r.series);
 }
 
-void add_segment(Report& r, const std::string& metric, int first, int last, double peak, Severity severity) {
-  r.segments.push_back({metric, first, last, r.frame_times_s[first], r.frame_times_s[last], peak, first, severity});
+void add_segment(Report& r, const std::string& metric, int first, int last, double peak,
+                 Severity severity) {
+  r.segments.push_back(
+      {metric, first, last, r.frame_times_s[first], r.frame_times_s[last], peak, first, severity});
 }
 
 }  // namespace framelint::fixtures

@@ -18,6 +18,7 @@ void add_series(Report& r, const std::string& metric, double base, double value 
                 int last = -1);
 
 // Adds a segment of `metric` over first..last (times from the report).
-void add_segment(Report& r, const std::string& metric, int first, int last, double peak, Severity severity);
+void add_segment(Report& r, const std::string& metric, int first, int last, double peak,
+                 Severity severity);
 
 }  // namespace framelint::fixtures

@@ -48,7 +48,8 @@ TEST(GateEvaluate, SummaryStatisticReasonNamesMetricValueThresholdAndTime) {
   add_series(r, "flicker", 0.001, 0.041, 12, 40);  // p95 = 0.041
   const VerdictResult v = evaluate_policy(r, default_policy());
   EXPECT_EQ(v.status, Verdict::reject);
-  EXPECT_TRUE(has_reason(v, "flicker p95 0.041 >= reject 0.03 (frames 12-40, 0.50-1.67 s)")) << all_reasons(v);
+  EXPECT_TRUE(has_reason(v, "flicker p95 0.041 >= reject 0.03 (frames 12-40, 0.50-1.67 s)"))
+      << all_reasons(v);
 }
 
 TEST(GateEvaluate, ReviewLevelNamesTheReviewThreshold) {
@@ -56,7 +57,8 @@ TEST(GateEvaluate, ReviewLevelNamesTheReviewThreshold) {
   add_series(r, "flicker", 0.001, 0.02, 30, 35);  // p95 0.02: above review 0.012, below reject 0.03
   const VerdictResult v = evaluate_policy(r, default_policy());
   EXPECT_EQ(v.status, Verdict::review) << all_reasons(v);
-  EXPECT_TRUE(has_reason(v, "flicker p95 0.02 >= review 0.012 (frames 30-35, 1.25-1.46 s)")) << all_reasons(v);
+  EXPECT_TRUE(has_reason(v, "flicker p95 0.02 >= review 0.012 (frames 30-35, 1.25-1.46 s)"))
+      << all_reasons(v);
 }
 
 TEST(GateEvaluate, SegmentSeverityDecides) {
@@ -65,7 +67,8 @@ TEST(GateEvaluate, SegmentSeverityDecides) {
   add_segment(review, "warp_error", 6, 8, 0.03, Severity::review);
   VerdictResult v = evaluate_policy(review, default_policy());
   EXPECT_EQ(v.status, Verdict::review);
-  EXPECT_TRUE(has_reason(v, "warp_error segment peak 0.03 >= review 0.02 (frames 6-8, 0.25-0.33 s)"))
+  EXPECT_TRUE(
+      has_reason(v, "warp_error segment peak 0.03 >= review 0.02 (frames 6-8, 0.25-0.33 s)"))
       << all_reasons(v);
 
   Report reject = review;
@@ -73,7 +76,9 @@ TEST(GateEvaluate, SegmentSeverityDecides) {
   add_segment(reject, "warp_error", 30, 31, 0.07, Severity::reject);
   v = evaluate_policy(reject, default_policy());
   EXPECT_EQ(v.status, Verdict::reject);
-  EXPECT_TRUE(has_reason(v, "warp_error segment peak 0.09 >= reject 0.05 (frame 20, 0.83 s), 2 reject segments in all"))
+  EXPECT_TRUE(has_reason(
+      v,
+      "warp_error segment peak 0.09 >= reject 0.05 (frame 20, 0.83 s), 2 reject segments in all"))
       << all_reasons(v);
 
   Report info = gate_report(48, 24);
@@ -104,7 +109,8 @@ TEST(GateEvaluate, StreamMismatchDroppedFramesAndDecodeWarningsReview) {
   r.summary.stream.mismatch_s = 1.5;
   VerdictResult v = evaluate_policy(r, default_policy());
   EXPECT_EQ(v.status, Verdict::review);
-  EXPECT_TRUE(has_reason(v, "stream audio/video duration mismatch 1.50 s >= review 1 s (video 2.00 s, audio 3.50 s)"))
+  EXPECT_TRUE(has_reason(
+      v, "stream audio/video duration mismatch 1.50 s >= review 1 s (video 2.00 s, audio 3.50 s)"))
       << all_reasons(v);
 
   Report dropped = gate_report(48, 24);
@@ -114,18 +120,23 @@ TEST(GateEvaluate, StreamMismatchDroppedFramesAndDecodeWarningsReview) {
   EXPECT_TRUE(has_reason(v, "stream dropped_frames 4 >= review 3 (frame 30")) << all_reasons(v);
 
   Report warned = gate_report(48, 24);
-  warned.summary.details["decode"] = {{"warnings", nlohmann::json::array({"concealed 3 corrupt macroblocks at 0.8 s"})}};
+  warned.summary.details["decode"] = {
+      {"warnings", nlohmann::json::array({"concealed 3 corrupt macroblocks at 0.8 s"})}};
   v = evaluate_policy(warned, default_policy());
   EXPECT_EQ(v.status, Verdict::review);
-  EXPECT_TRUE(has_reason(v, "decode 1 decoder warning (first: concealed 3 corrupt macroblocks")) << all_reasons(v);
+  EXPECT_TRUE(has_reason(v, "decode 1 decoder warning (first: concealed 3 corrupt macroblocks"))
+      << all_reasons(v);
 
   Report cut_short = gate_report(48, 24);
-  cut_short.notes.push_back("decoding stopped early after frame 47: invalid data found when processing input");
+  cut_short.notes.push_back(
+      "decoding stopped early after frame 47: invalid data found when processing input");
   v = evaluate_policy(cut_short, default_policy());
   EXPECT_EQ(v.status, Verdict::review);
   EXPECT_TRUE(has_reason(v, "decode: decoding stopped early after frame 47")) << all_reasons(v);
-  EXPECT_EQ(evaluate_policy(cut_short, policy_from(R"({"rules": {"decode_warnings_review": false}})")).status,
-            Verdict::pass);
+  EXPECT_EQ(
+      evaluate_policy(cut_short, policy_from(R"({"rules": {"decode_warnings_review": false}})"))
+          .status,
+      Verdict::pass);
 }
 
 TEST(GateEvaluate, CoherenceFloors) {
@@ -133,7 +144,8 @@ TEST(GateEvaluate, CoherenceFloors) {
   r.summary.coherence = 42;
   VerdictResult v = evaluate_policy(r, default_policy());
   EXPECT_EQ(v.status, Verdict::review);
-  EXPECT_TRUE(has_reason(v, "coherence 42 < review floor 50 (whole clip, 0.00-2.00 s)")) << all_reasons(v);
+  EXPECT_TRUE(has_reason(v, "coherence 42 < review floor 50 (whole clip, 0.00-2.00 s)"))
+      << all_reasons(v);
   v = evaluate_policy(r, policy_from(R"({"rules": {"coherence_reject_below": 45}})"));
   EXPECT_EQ(v.status, Verdict::reject);
   EXPECT_TRUE(has_reason(v, "coherence 42 < reject floor 45")) << all_reasons(v);
@@ -146,14 +158,16 @@ TEST(GateEvaluate, SegmentStatisticsUseDurationsInSeconds) {
   add_segment(r, "freeze", 10, 40, 1, Severity::info);
   VerdictResult v = evaluate_policy(r, default_policy());
   EXPECT_EQ(v.status, Verdict::reject);
-  EXPECT_TRUE(has_reason(v, "freeze longest_segment_s 1.29 >= reject 1 (frames 10-40, 0.42-1.67 s)"))
+  EXPECT_TRUE(
+      has_reason(v, "freeze longest_segment_s 1.29 >= reject 1 (frames 10-40, 0.42-1.67 s)"))
       << all_reasons(v);
   // Three short flicker pulses: segment_count reviews, the span is named.
   Report pulses = gate_report(48, 24);
   add_series(pulses, "flicker", 0.001);
   for (int f : {5, 20, 35}) add_segment(pulses, "flicker", f, f, 0.011, Severity::info);
   v = evaluate_policy(pulses, default_policy());
-  EXPECT_TRUE(has_reason(v, "flicker segment_count 3 >= review 3 (frames 5-35, 0.21-1.46 s)")) << all_reasons(v);
+  EXPECT_TRUE(has_reason(v, "flicker segment_count 3 >= review 3 (frames 5-35, 0.21-1.46 s)"))
+      << all_reasons(v);
 }
 
 TEST(GateEvaluate, DetailsRulesReadNestedNumbers) {
@@ -165,7 +179,8 @@ TEST(GateEvaluate, DetailsRulesReadNestedNumbers) {
                                                   "details.band.hz": {"reject": 10}}}}})");
   VerdictResult v = evaluate_policy(r, p);
   EXPECT_EQ(v.status, Verdict::reject);
-  EXPECT_TRUE(has_reason(v, "flicker details.flicker_index 0.2 >= review 0.1 (whole clip")) << all_reasons(v);
+  EXPECT_TRUE(has_reason(v, "flicker details.flicker_index 0.2 >= review 0.1 (whole clip"))
+      << all_reasons(v);
   EXPECT_TRUE(has_reason(v, "flicker details.band.hz 12.5 >= reject 10")) << all_reasons(v);
   // Rejects are listed before reviews.
   ASSERT_EQ(v.reasons.size(), 2u);

@@ -22,7 +22,8 @@ namespace fs = std::filesystem;
 TEST(GateInputs, ManifestFieldsAndRelativePaths) {
   TempDir dir;
   write_text(dir.path() / "m.jsonl",
-             "{\"path\": \"a.mp4\", \"id\": \"clip-a\", \"prompt_id\": \"p1\", \"model\": \"ckpt-7\", \"seed\": 42, "
+             "{\"path\": \"a.mp4\", \"id\": \"clip-a\", \"prompt_id\": \"p1\", \"model\": "
+             "\"ckpt-7\", \"seed\": 42, "
              "\"cfg\": 6.5, \"tags\": [\"x\"]}\n"
              "\n"
              "{\"path\": \"/abs/b.mp4\", \"prompt_id\": 17}\r\n");
@@ -104,7 +105,8 @@ TEST(GateInputs, SpacesAndUnicodeInPaths) {
   const fs::path folder = dir.path() / "prises de vue ü";
   write_text(folder / "plan 1 — été.mp4", "x");
   write_text(folder / "镜头 2.webm", "x");
-  write_text(dir.path() / "list.jsonl", "{\"path\": \"prises de vue ü/plan 1 — été.mp4\", \"id\": \"été 1\"}\n");
+  write_text(dir.path() / "list.jsonl",
+             "{\"path\": \"prises de vue ü/plan 1 — été.mp4\", \"id\": \"été 1\"}\n");
   auto got = collect_inputs({folder.string(), (dir.path() / "list.jsonl").string()});
   ASSERT_TRUE(got.ok()) << got.error().message();
   ASSERT_EQ(got->inputs.size(), 3u);
@@ -168,8 +170,10 @@ TEST(GateShards, EveryClipInExactlyOneShardAndSharesAreBalanced) {
       const auto share = select_shard(inputs, {i, n});
       // Balanced within 15% of the fair share (2000 ids; a fair hash stays
       // well inside this).
-      EXPECT_NEAR(static_cast<double>(share.size()), 2000.0 / n, 0.15 * 2000.0 / n) << i << "/" << n;
-      for (size_t k = 1; k < share.size(); ++k) EXPECT_LT(share[k - 1].index, share[k].index);  // input order
+      EXPECT_NEAR(static_cast<double>(share.size()), 2000.0 / n, 0.15 * 2000.0 / n)
+          << i << "/" << n;
+      for (size_t k = 1; k < share.size(); ++k)
+        EXPECT_LT(share[k - 1].index, share[k].index);  // input order
       for (const auto& in : share) seen.insert(in.id);
     }
     EXPECT_EQ(seen.size(), inputs.size());

@@ -24,10 +24,12 @@ void expect_names_key(const std::string& text, const std::string& key) {
   const Error e = parse_error(text);
   EXPECT_EQ(e.kind, ErrorKind::usage) << text;
   EXPECT_NE(e.message().find("p.json"), std::string::npos) << e.message();
-  EXPECT_NE(e.message().find(key), std::string::npos) << "message '" << e.message() << "' should name " << key;
+  EXPECT_NE(e.message().find(key), std::string::npos)
+      << "message '" << e.message() << "' should name " << key;
 }
 
-const SummaryRule* find_rule(const Policy& p, const std::string& metric, const std::string& statistic) {
+const SummaryRule* find_rule(const Policy& p, const std::string& metric,
+                             const std::string& statistic) {
   for (const auto& r : p.rules)
     if (r.metric == metric && r.statistic == statistic) return &r;
   return nullptr;
@@ -46,8 +48,8 @@ TEST(GatePolicy, DefaultRoundTripsUnchanged) {
 
 TEST(GatePolicy, DefaultCoversTheInitialMetricsWithPossibleThresholds) {
   const Policy& p = default_policy();
-  for (const char* metric : {"warp_error", "warp_error_long", "occluded_pct", "flicker", "freeze", "cut", "drift",
-                             "flash", "jerk", "flicker_local"})
+  for (const char* metric : {"warp_error", "warp_error_long", "occluded_pct", "flicker", "freeze",
+                             "cut", "drift", "flash", "jerk", "flicker_local"})
     EXPECT_TRUE(p.segments.count(metric)) << metric;
   for (const auto& [metric, r] : p.segments) {
     EXPECT_LE(r.leave, r.enter) << metric;
@@ -59,9 +61,10 @@ TEST(GatePolicy, DefaultCoversTheInitialMetricsWithPossibleThresholds) {
 }
 
 TEST(GatePolicy, KeysGivenOverrideTheDefaultAndTheRestIsKept) {
-  auto p = parse_policy(R"({"name": "strict", "metrics": {"flicker": {"thresholds": {"p95": {"reject": 0.05}},
+  auto p = parse_policy(
+      R"({"name": "strict", "metrics": {"flicker": {"thresholds": {"p95": {"reject": 0.05}},
                                                                       "segment": {"enter": 0.02}}}})",
-                        "p.json");
+      "p.json");
   ASSERT_TRUE(p.ok()) << p.error().message();
   EXPECT_EQ(p->name, "strict");
   const SummaryRule* p95 = find_rule(*p, "flicker", "p95");
@@ -70,14 +73,16 @@ TEST(GatePolicy, KeysGivenOverrideTheDefaultAndTheRestIsKept) {
   EXPECT_EQ(p95->review, find_rule(default_policy(), "flicker", "p95")->review);
   EXPECT_EQ(p->segments.at("flicker").enter, 0.02);
   EXPECT_EQ(p->segments.at("flicker").leave, default_policy().segments.at("flicker").leave);
-  EXPECT_EQ(policy_to_json(*p)["metrics"]["warp_error"], policy_to_json(default_policy())["metrics"]["warp_error"]);
+  EXPECT_EQ(policy_to_json(*p)["metrics"]["warp_error"],
+            policy_to_json(default_policy())["metrics"]["warp_error"]);
 }
 
 TEST(GatePolicy, NullTurnsRulesOffAndSurvivesARoundTrip) {
-  auto p = parse_policy(R"({"metrics": {"flicker": {"thresholds": {"p95": null}, "segment": {"reject_peak": null}},
+  auto p = parse_policy(
+      R"({"metrics": {"flicker": {"thresholds": {"p95": null}, "segment": {"reject_peak": null}},
                                         "cut": null},
                             "rules": {"coherence_review_below": null, "flash_hazard_rejects": false}})",
-                        "p.json");
+      "p.json");
   ASSERT_TRUE(p.ok()) << p.error().message();
   EXPECT_EQ(find_rule(*p, "flicker", "p95"), nullptr);
   EXPECT_TRUE(std::isinf(p->segments.at("flicker").reject_peak));
@@ -93,8 +98,9 @@ TEST(GatePolicy, NullTurnsRulesOffAndSurvivesARoundTrip) {
 }
 
 TEST(GatePolicy, DetailsStatisticsAreAccepted) {
-  auto p = parse_policy(R"({"metrics": {"flicker": {"thresholds": {"details.flicker_index": {"review": 0.1}}}}})",
-                        "p.json");
+  auto p = parse_policy(
+      R"({"metrics": {"flicker": {"thresholds": {"details.flicker_index": {"review": 0.1}}}}})",
+      "p.json");
   ASSERT_TRUE(p.ok()) << p.error().message();
   ASSERT_NE(find_rule(*p, "flicker", "details.flicker_index"), nullptr);
 }
@@ -103,7 +109,8 @@ TEST(GatePolicy, UnknownKeysAreNamed) {
   expect_names_key(R"({"metric": {}})", "metric");
   expect_names_key(R"({"metrics": {"flickr": {}}})", "metrics.flickr");
   expect_names_key(R"({"metrics": {"flicker": {"segmnt": {}}}})", "metrics.flicker.segmnt");
-  expect_names_key(R"({"metrics": {"flicker": {"segment": {"entr": 1}}}})", "metrics.flicker.segment.entr");
+  expect_names_key(R"({"metrics": {"flicker": {"segment": {"entr": 1}}}})",
+                   "metrics.flicker.segment.entr");
   expect_names_key(R"({"metrics": {"flicker": {"thresholds": {"p99": {"review": 1}}}}})",
                    "metrics.flicker.thresholds.p99");
   expect_names_key(R"({"metrics": {"flicker": {"thresholds": {"p95": {"warn": 1}}}}})",
@@ -112,11 +119,13 @@ TEST(GatePolicy, UnknownKeysAreNamed) {
 }
 
 TEST(GatePolicy, WrongTypesAreNamed) {
-  expect_names_key(R"({"metrics": {"flicker": {"segment": {"enter": "high"}}}})", "metrics.flicker.segment.enter");
+  expect_names_key(R"({"metrics": {"flicker": {"segment": {"enter": "high"}}}})",
+                   "metrics.flicker.segment.enter");
   expect_names_key(R"({"metrics": {"flicker": {"segment": 3}}})", "metrics.flicker.segment");
   expect_names_key(R"({"metrics": {"flicker": {"segment": {"min_frames": 1.5}}}})",
                    "metrics.flicker.segment.min_frames");
-  expect_names_key(R"({"metrics": {"flicker": {"thresholds": {"p95": 0.3}}}})", "metrics.flicker.thresholds.p95");
+  expect_names_key(R"({"metrics": {"flicker": {"thresholds": {"p95": 0.3}}}})",
+                   "metrics.flicker.thresholds.p95");
   expect_names_key(R"({"rules": {"flash_hazard_rejects": "yes"}})", "rules.flash_hazard_rejects");
   expect_names_key(R"({"rules": {"dropped_frames_review": 0.5}})", "rules.dropped_frames_review");
   expect_names_key(R"({"name": 7})", "name");
@@ -125,16 +134,19 @@ TEST(GatePolicy, WrongTypesAreNamed) {
 }
 
 TEST(GatePolicy, ImpossibleThresholdsAreNamed) {
-  expect_names_key(R"({"metrics": {"flicker": {"thresholds": {"p95": {"review": 0.5, "reject": 0.1}}}}})",
-                   "metrics.flicker.thresholds.p95.review");
+  expect_names_key(
+      R"({"metrics": {"flicker": {"thresholds": {"p95": {"review": 0.5, "reject": 0.1}}}}})",
+      "metrics.flicker.thresholds.p95.review");
   // Review above the default reject (0.03) is impossible too.
   expect_names_key(R"({"metrics": {"flicker": {"thresholds": {"p95": {"review": 0.05}}}}})",
                    "metrics.flicker.thresholds.p95.review");
   expect_names_key(R"({"metrics": {"flicker": {"segment": {"enter": 0.01, "leave": 0.02}}}})",
                    "metrics.flicker.segment.leave");
-  expect_names_key(R"({"metrics": {"flicker": {"segment": {"review_peak": 0.5, "reject_peak": 0.1}}}})",
-                   "metrics.flicker.segment.review_peak");
-  expect_names_key(R"({"metrics": {"flicker": {"segment": {"enter": -1}}}})", "metrics.flicker.segment.enter");
+  expect_names_key(
+      R"({"metrics": {"flicker": {"segment": {"review_peak": 0.5, "reject_peak": 0.1}}}})",
+      "metrics.flicker.segment.review_peak");
+  expect_names_key(R"({"metrics": {"flicker": {"segment": {"enter": -1}}}})",
+                   "metrics.flicker.segment.enter");
   expect_names_key(R"({"metrics": {"flicker": {"segment": {"min_frames": 0}}}})",
                    "metrics.flicker.segment.min_frames");
   expect_names_key(R"({"metrics": {"flicker": {"thresholds": {"mean": {"review": -0.1}}}}})",
@@ -142,11 +154,13 @@ TEST(GatePolicy, ImpossibleThresholdsAreNamed) {
   expect_names_key(R"({"rules": {"coherence_review_below": 140}})", "rules.coherence_review_below");
   expect_names_key(R"({"rules": {"coherence_review_below": 40, "coherence_reject_below": 60}})",
                    "rules.coherence_reject_below");
-  expect_names_key(R"({"rules": {"stream_mismatch_review_s": -2}})", "rules.stream_mismatch_review_s");
+  expect_names_key(R"({"rules": {"stream_mismatch_review_s": -2}})",
+                   "rules.stream_mismatch_review_s");
 }
 
 TEST(GatePolicy, RequiredValuesRemovedByNullAreNamed) {
-  expect_names_key(R"({"metrics": {"flicker": {"segment": {"enter": null}}}})", "metrics.flicker.segment.enter");
+  expect_names_key(R"({"metrics": {"flicker": {"segment": {"enter": null}}}})",
+                   "metrics.flicker.segment.enter");
   expect_names_key(R"({"rules": {"flash_hazard_rejects": null}})", "rules.flash_hazard_rejects");
 }
 

@@ -36,15 +36,18 @@ struct FakeAnalysis {
       if (text.rfind("broken", 0) == 0) return input_error(path, "no video stream");
       Report r = fixtures::gate_report(24, 24, path);
       r.summary.coherence = 50 + static_cast<double>(text.size() % 50);
-      if (text.rfind("reject", 0) == 0) r.verdict = {Verdict::reject, {"flicker p95 0.04 >= reject 0.03 (frame 3, 0.12 s)"}};
-      if (text.rfind("review", 0) == 0) r.verdict = {Verdict::review, {"cut segment peak 0.7 >= review 0.5 (frame 9, 0.38 s)"}};
+      if (text.rfind("reject", 0) == 0)
+        r.verdict = {Verdict::reject, {"flicker p95 0.04 >= reject 0.03 (frame 3, 0.12 s)"}};
+      if (text.rfind("review", 0) == 0)
+        r.verdict = {Verdict::review, {"cut segment peak 0.7 >= review 0.5 (frame 9, 0.38 s)"}};
       return r;
     };
   }
 };
 
 // Clips named clip_<i>.mp4 in `dir` whose verdicts cycle through `kinds`.
-std::vector<GateInput> make_clips(const fs::path& dir, int n, const std::vector<std::string>& kinds) {
+std::vector<GateInput> make_clips(const fs::path& dir, int n,
+                                  const std::vector<std::string>& kinds) {
   std::vector<GateInput> inputs;
   for (int i = 0; i < n; ++i) {
     GateInput in;
@@ -117,13 +120,15 @@ TEST(GateRun, QueueInInputOrderWithErrorsRecorded) {
   EXPECT_NE(queue[5]["error"].get<std::string>().find("gone.mp4"), std::string::npos);
   EXPECT_TRUE(fs::exists(dir.path() / "out" / "index.html"));
   EXPECT_EQ(store_rows(dir.path() / "out" / "framelint.db"), 4u);  // errors are not stored
-  EXPECT_EQ(cli::gate_exit_status(run->counts, Verdict::reject), cli::kExitInputError);  // 3 outranks 1
+  EXPECT_EQ(cli::gate_exit_status(run->counts, Verdict::reject),
+            cli::kExitInputError);  // 3 outranks 1
 }
 
 TEST(GateRun, RerunTakesJudgedClipsFromTheStore) {
   TempDir dir;
   FakeAnalysis fake;
-  const auto inputs = make_clips(dir.path() / "clips", 6, {"pass", "reject", "review", "broken", "pass", "broken"});
+  const auto inputs =
+      make_clips(dir.path() / "clips", 6, {"pass", "reject", "review", "broken", "pass", "broken"});
   ASSERT_TRUE(run_gate(inputs, options_for(dir.path() / "out", fake)).ok());
   EXPECT_EQ(fake.calls, 6);
   fake.calls = 0;
@@ -166,7 +171,8 @@ TEST(GateRun, SharedStoreServesAnotherOutputFolder) {
   ASSERT_TRUE(run.ok());
   EXPECT_EQ(run->counts.from_store, 3);
   EXPECT_EQ(fake.calls, 3);
-  for (int i = 0; i < 3; ++i) EXPECT_TRUE(fs::exists(dir.path() / "out2" / ("clip_" + std::to_string(i) + ".json")));
+  for (int i = 0; i < 3; ++i)
+    EXPECT_TRUE(fs::exists(dir.path() / "out2" / ("clip_" + std::to_string(i) + ".json")));
   EXPECT_FALSE(fs::exists(dir.path() / "out2" / "framelint.db"));
 }
 
@@ -176,7 +182,9 @@ TEST(GateRun, ParallelJobsJudgeEveryClipOnce) {
   const auto inputs = make_clips(dir.path() / "clips", 40, {"pass", "reject", "review"});
   int callbacks = 0;
   GateObserver observer;
-  observer.on_clip_done = [&](const ClipResult&, const GateCounts& counts) { EXPECT_EQ(counts.total, ++callbacks); };
+  observer.on_clip_done = [&](const ClipResult&, const GateCounts& counts) {
+    EXPECT_EQ(counts.total, ++callbacks);
+  };
   auto run = run_gate(inputs, options_for(dir.path() / "out", fake, 8), observer);
   ASSERT_TRUE(run.ok());
   EXPECT_EQ(fake.calls, 40);
@@ -190,7 +198,8 @@ TEST(GateRun, ParallelJobsJudgeEveryClipOnce) {
 TEST(GateRun, UnionOfShardsEqualsOneRun) {
   TempDir dir;
   FakeAnalysis fake;
-  const auto inputs = make_clips(dir.path() / "clips", 30, {"pass", "reject", "review", "broken", "pass"});
+  const auto inputs =
+      make_clips(dir.path() / "clips", 30, {"pass", "reject", "review", "broken", "pass"});
   ASSERT_TRUE(run_gate(inputs, options_for(dir.path() / "single", fake)).ok());
   std::vector<std::string> shard_dirs;
   for (int i = 0; i < 3; ++i) {
@@ -210,9 +219,11 @@ TEST(GateRun, UnionOfShardsEqualsOneRun) {
     a.erase("from_store");
     b.erase("from_store");
     EXPECT_EQ(a, b) << "clip " << i;
-    if (!b["report"].is_null()) EXPECT_TRUE(fs::exists(dir.path() / "merged" / b["report"].get<std::string>()));
+    if (!b["report"].is_null())
+      EXPECT_TRUE(fs::exists(dir.path() / "merged" / b["report"].get<std::string>()));
   }
-  EXPECT_EQ(store_rows(dir.path() / "merged" / "framelint.db"), store_rows(dir.path() / "single" / "framelint.db"));
+  EXPECT_EQ(store_rows(dir.path() / "merged" / "framelint.db"),
+            store_rows(dir.path() / "single" / "framelint.db"));
   auto store = ResultStore::open((dir.path() / "merged" / "framelint.db").string());
   ASSERT_TRUE(store.ok());
   const auto rows = (*store)->all();
@@ -227,7 +238,8 @@ TEST(GateRun, UnionOfShardsEqualsOneRun) {
   ASSERT_TRUE(twice.ok());
   EXPECT_EQ(twice->results.size(), single.size());
   EXPECT_FALSE(twice->warnings.empty());
-  EXPECT_EQ(store_rows(dir.path() / "merged2" / "framelint.db"), store_rows(dir.path() / "single" / "framelint.db"));
+  EXPECT_EQ(store_rows(dir.path() / "merged2" / "framelint.db"),
+            store_rows(dir.path() / "single" / "framelint.db"));
   // Merging into one of the inputs is refused.
   EXPECT_FALSE(merge_gate_outputs({shard_dirs[0]}, shard_dirs[0]).ok());
 }
@@ -272,8 +284,9 @@ TEST(GateRun, IndexPageEscapesInputsAndListsWorstFirst) {
   EXPECT_NE(page.find("Content-Security-Policy"), std::string::npos);
   EXPECT_EQ(page.find("http://"), std::string::npos);
   EXPECT_EQ(page.find("https://"), std::string::npos);
-  const size_t reject = page.find("<tr class=\"reject\""), review = page.find("<tr class=\"review\""),
-               error = page.find("<tr class=\"error\""), pass = page.find("<tr class=\"pass\"");
+  const size_t reject = page.find("<tr class=\"reject\""),
+               review = page.find("<tr class=\"review\""), error = page.find("<tr class=\"error\""),
+               pass = page.find("<tr class=\"pass\"");
   ASSERT_NE(pass, std::string::npos);
   EXPECT_LT(reject, review);
   EXPECT_LT(review, error);

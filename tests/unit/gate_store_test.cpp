@@ -19,7 +19,8 @@ namespace fs = std::filesystem;
 
 namespace {
 
-StoredAnalysis row(const std::string& content, const std::string& clip_id, Verdict v = Verdict::pass) {
+StoredAnalysis row(const std::string& content, const std::string& clip_id,
+                   Verdict v = Verdict::pass) {
   StoredAnalysis r;
   r.content_sha256 = content;
   r.settings_hash = "settings-1";
@@ -56,7 +57,8 @@ TEST(GateStore, ContentHashOfFilesAndFrameFolders) {
   auto first = content_sha256(folder);
   ASSERT_TRUE(first.ok());
   // Defined from the sorted listing, independent of creation order.
-  EXPECT_EQ(*first, sha256_hex("f_001.png " + sha256_hex("one") + "\nf_002.png " + sha256_hex("two") + "\n"));
+  EXPECT_EQ(*first, sha256_hex("f_001.png " + sha256_hex("one") + "\nf_002.png " +
+                               sha256_hex("two") + "\n"));
   write_text(dir.path() / "frames" / "f_002.png", "changed");
   EXPECT_NE(*content_sha256(folder), *first);
   auto missing = content_sha256((dir.path() / "nope.mp4").string());
@@ -127,15 +129,16 @@ TEST(GateStore, ConcurrentWritersLoseNothing) {
   auto other_a = ResultStore::open(db);
   auto other_b = ResultStore::open(db);
   ASSERT_TRUE(shared.ok() && other_a.ok() && other_b.ok());
-  std::vector<ResultStore*> stores = {shared->get(), shared->get(), shared->get(), shared->get(), other_a->get(),
-                                      other_b->get()};
+  std::vector<ResultStore*> stores = {shared->get(), shared->get(),  shared->get(),
+                                      shared->get(), other_a->get(), other_b->get()};
   constexpr int kEach = 40;
   std::vector<std::thread> threads;
   std::atomic<int> failures{0};
   for (size_t t = 0; t < stores.size(); ++t)
     threads.emplace_back([&, t] {
       for (int i = 0; i < kEach; ++i) {
-        StoredAnalysis r = row("sha-" + std::to_string(t) + "-" + std::to_string(i), "c" + std::to_string(i));
+        StoredAnalysis r =
+            row("sha-" + std::to_string(t) + "-" + std::to_string(i), "c" + std::to_string(i));
         if (!stores[t]->insert(r).ok()) ++failures;
         if (!stores[t]->find(r.content_sha256, r.settings_hash).ok()) ++failures;
       }
