@@ -22,8 +22,9 @@ namespace {
 using page::num;
 using page::seconds;
 
-// Flashes were found when the flash series is ever above zero or the flash
-// summary counts any (keys naming counts, flashes or hazards).
+// Flashes were found when the flash series (flashes in the one-second window
+// ending at each frame) is ever above zero, or summary.flash.details counts
+// any or reports a hazard (analyzer/metrics/flash_metric.cpp).
 bool flashes_found(const Report& report) {
   if (const MetricSeries* s = report.find_series("flash"))
     for (double v : s->values)
@@ -31,12 +32,10 @@ bool flashes_found(const Report& report) {
   if (!report.summary.details.contains("flash")) return false;
   const auto& flash = report.summary.details["flash"];
   if (!flash.is_object()) return false;
-  for (const auto& [k, v] : flash.items()) {
-    const bool counts = k.find("count") != std::string::npos || k.find("flash") != std::string::npos ||
-                        k.find("hazard") != std::string::npos;
-    if (counts && ((v.is_number() && v.get<double>() > 0) || (v.is_boolean() && v.get<bool>()))) return true;
-  }
-  return false;
+  for (const char* key : {"max_flashes_per_s", "general_max_flashes_per_s", "red_max_flashes_per_s"})
+    if (auto it = flash.find(key); it != flash.end() && it->is_number() && it->get<double>() > 0) return true;
+  const auto hazard = flash.find("hazard");
+  return hazard != flash.end() && hazard->is_boolean() && hazard->get<bool>();
 }
 
 std::string caution_block(const Report& report) {

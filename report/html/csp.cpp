@@ -8,7 +8,6 @@ extern "C" {
 #include <libavutil/sha.h>
 }
 
-#include "report/html/html_escape.h"
 
 namespace framelint {
 

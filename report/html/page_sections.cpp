@@ -193,7 +193,9 @@ std::string summary_table(const Report& report) {
     std::string details;
     if (report.summary.details.contains(m.metric) && report.summary.details[m.metric].is_object())
       for (const auto& [k, v] : report.summary.details[m.metric].items())
-        if (is_scalar(v)) details += (details.empty() ? "" : " \u00b7 ") + html_escape(k) + " " + scalar_text(v);
+        // Long texts (rules, cautions) are shown elsewhere or belong in the JSON.
+        if (is_scalar(v) && !(v.is_string() && v.get<std::string>().size() > 60))
+          details += (details.empty() ? "" : " \u00b7 ") + html_escape(k) + " " + scalar_text(v);
     out += "<tr><td title=\"" + html_escape(metric_description(m.metric)) + "\">" + html_escape(m.metric) +
            "</td><td class=\"num\">" + num(m.mean) + "</td><td class=\"num\">" + num(m.p50) +
            "</td><td class=\"num\">" + num(m.p95) + "</td><td class=\"num\">" + num(m.max) + "</td><td>" +

@@ -75,6 +75,7 @@ std::string chart_row(const std::string& metric, const MetricSeries* series, con
   if (series)
     for (double v : series->values)
       if (std::isfinite(v)) lo = std::min(lo, v), hi = std::max(hi, v);
+  const double shown_hi = hi;  // the label gives the data's own range
   if (hi - lo < 1e-12) hi = lo + 1;
   std::string svg = "<svg class=\"chart\" viewBox=\"0 0 1000 60\" preserveAspectRatio=\"none\" "
                     "aria-hidden=\"true\">";
@@ -105,7 +106,7 @@ std::string chart_row(const std::string& metric, const MetricSeries* series, con
   const std::string description = metric_description(metric);
   return "<div class=\"tl-label\" title=\"" + html_escape(description) + "\"><span class=\"metric\">" +
          html_escape(metric) + "</span><span class=\"range\">" + (lo < 0 ? num(lo) + " to " : "max ") +
-         num(series ? hi : 0) + "</span></div><div class=\"tl-track\" data-metric=\"" + html_escape(metric) +
+         num(shown_hi) + "</span></div><div class=\"tl-track\" data-metric=\"" + html_escape(metric) +
          "\">" + svg + markers + "</div>\n";
 }
 

@@ -158,7 +158,8 @@ Report synthetic_report(const SyntheticScene& scene, const std::string& clip_pat
     r.summary.metrics.push_back(m);
   }
   r.summary.coherence = 41.5;
-  r.summary.details["flash"] = {{"general_flashes", 3}, {"red_flashes", 0}, {"max_flashes_per_s", 4}, {"hazard", true}};
+  r.summary.details["flash"] = {{"max_flashes_per_s", 4}, {"general_max_flashes_per_s", 4},
+                                {"red_max_flashes_per_s", 0}, {"hazard", true}, {"limit_flashes_per_s", 3}};
   r.summary.details["flicker"] = {{"percent_flicker", 2.1}, {"flicker_index", 0.004}, {"dominant_hz", 4.3}};
   TrackedObject ball;
   ball.id = 1;

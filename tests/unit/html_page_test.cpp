@@ -91,10 +91,14 @@ TEST_F(PageFixture, SelfContainedWithAPolicyThatPinsItsOwnStyleAndScript) {
 TEST_F(PageFixture, FlashesBringThePhotosensitiveCaution) {
   EXPECT_NE(html.find("screening aid, not a certification"), std::string::npos);
   EXPECT_NE(html.find("photosensitive epilepsy"), std::string::npos);
+  // A calm clip's flash summary still names the limit; that is not a flash.
   Report calm = report;
-  calm.summary.details.erase("flash");
+  calm.summary.details["flash"] = {{"max_flashes_per_s", 0}, {"general_max_flashes_per_s", 0},
+                                   {"red_max_flashes_per_s", 0}, {"hazard", false}, {"limit_flashes_per_s", 3}};
   for (auto& v : calm.find_series("flash")->values) v = 0;
   EXPECT_EQ(render_clip_page(calm, assets, options).find("photosensitive epilepsy"), std::string::npos);
+  calm.find_series("flash")->values[70] = 1;  // one flash in a window: caution, no hazard
+  EXPECT_NE(render_clip_page(calm, assets, options).find("photosensitive epilepsy"), std::string::npos);
 }
 
 TEST_F(PageFixture, TenSecondPageStaysSmall) {
