@@ -7,6 +7,7 @@
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
+#include <fstream>
 #include <optional>
 
 #include "framelint/analysis.h"
@@ -100,6 +101,7 @@ void expect_ten_second_page_well_under_five_megabytes(const std::string& clip) {
   std::printf("page size for Megamind.avi (%zu frames, %zu segments, %zu panel sets): %zu bytes\n",
               r.frame_times_s.size(), r.segments.size(), assets.panels.size(), page.size());
   EXPECT_LT(page.size(), 2'500'000u);
+  std::ofstream("megamind-page.html") << page;  // left in the build tree for a look by hand
 }
 
 }  // namespace

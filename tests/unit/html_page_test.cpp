@@ -4,6 +4,9 @@
 // tests/support/html_fixtures.* (only the page writer is under test).
 #include <gtest/gtest.h>
 
+#include <unistd.h>
+
+#include <filesystem>
 #include <fstream>
 #include <regex>
 
@@ -168,4 +171,19 @@ TEST(ObjectBoxes, ToleratesMalformedDetail) {
   EXPECT_FALSE(object_box_at(o, 10).has_value());
   o.detail = {{"boxes", "not a list"}};
   EXPECT_TRUE(object_boxes(o).empty());
+}
+
+TEST(WriteHtmlReport, UnreadableClipStillGetsAPageThatSaysWhy) {
+  fixtures::SyntheticScene scene;
+  const auto dir = std::filesystem::temp_directory_path() / ("framelint-html-" + std::to_string(::getpid()));
+  std::filesystem::create_directories(dir);
+  Report r = fixtures::synthetic_report(scene, (dir / "gone.mp4").string());
+  const std::string page = (dir / "gone.html").string();
+  ASSERT_TRUE(write_html_report(r, page, AnalysisSettings{}, HtmlOptions{}, nullptr).ok());
+  std::ifstream in(page);
+  const std::string html((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
+  EXPECT_NE(html.find("Pictures are missing: "), std::string::npos);
+  EXPECT_NE(html.find("gone.mp4"), std::string::npos);
+  EXPECT_EQ(count(html, "class=\"seg-marker "), r.segments.size());
+  std::filesystem::remove_all(dir);
 }
