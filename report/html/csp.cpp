@@ -8,6 +8,7 @@ extern "C" {
 #include <libavutil/sha.h>
 }
 
+#include "report/html/html_escape.h"
 
 namespace framelint {
 

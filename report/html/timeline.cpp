@@ -131,7 +131,7 @@ std::string axis_row(const TimeAxis& axis, CssRules& css) {
          "</div>\n";
 }
 
-std::string thumbs_row(const Report& report, const HtmlAssets& assets, const TimeAxis& axis, CssRules& css) {
+std::string thumbs_row(const HtmlAssets& assets, const TimeAxis& axis, CssRules& css) {
   if (assets.thumbnails.empty()) return "";
   std::string strip;
   for (size_t i = 0; i < assets.thumbnails.size(); ++i) {
@@ -142,7 +142,6 @@ std::string thumbs_row(const Report& report, const HtmlAssets& assets, const Tim
     strip += img_tag(th.image, "frame " + std::to_string(th.frame_index) + " at " + seconds(th.t_s),
                      "thumb " + pos);
   }
-  (void)report;
   return "<div class=\"tl-label\"><span class=\"metric\">frames</span></div><div class=\"tl-thumbs\">" + strip +
          "</div>\n";
 }
@@ -152,7 +151,7 @@ std::string thumbs_row(const Report& report, const HtmlAssets& assets, const Tim
 std::string timeline_section(const Report& report, const HtmlAssets& assets, CssRules& css) {
   const TimeAxis axis = time_axis(report);
   std::string rows;
-  rows += thumbs_row(report, assets, axis, css);
+  rows += thumbs_row(assets, axis, css);
   std::vector<std::string> metrics;
   for (const auto& s : report.series) metrics.push_back(s.metric);
   for (const auto& s : report.segments)  // a segment of a metric without a series still shows
