@@ -127,10 +127,11 @@ PanelImages encode_panels(const FramePanels& panels, const Report& report, const
   }
   if (!is_drift_peak(report, panels.frame_index)) return out;
   cv::Mat boxed = panels.current.clone();
-  for (const TrackedObject* object : objects_at_frame(report, panels.frame_index, kMaxObjectsPerPanel)) {
+  const cv::Size size = panels.current.size();
+  for (const TrackedObject* object : objects_at_frame(report, panels.frame_index, size, kMaxObjectsPerPanel)) {
     ObjectLook look;
     look.object_id = object->id;
-    look.box_px = *object_box_at(*object, panels.frame_index);
+    look.box_px = *object_box_at(*object, panels.frame_index, size);
     look.first_frame = object->first_frame;
     look.current_look = encode_jpeg(crop_look(panels.current, look.box_px), q);
     cv::rectangle(boxed, look.box_px, cv::Scalar(0, 215, 255), 2);
@@ -150,19 +151,24 @@ HtmlAssets collect_html_assets(const Report& report, const AnalysisSettings& set
   const std::vector<int64_t> frames = panel_frames(report, options);
   if (frames.empty() && !need_thumbnails) return assets;
 
-  // Objects whose first look the drift panels show, by the frame of that look.
+  // Objects whose first look the drift panels show, by the frame of that
+  // look; boxes are placed once the working frame size is known.
   std::multimap<int64_t, std::pair<int, cv::Rect>> first_looks_wanted;
-  for (int64_t f : frames) {
-    if (!is_drift_peak(report, f)) continue;
-    for (const TrackedObject* o : objects_at_frame(report, f, kMaxObjectsPerPanel))
-      if (auto first = object_first_box(*o)) first_looks_wanted.insert({first->frame, {o->id, first->box_px}});
-  }
+  auto want_first_looks = [&](cv::Size size) {
+    for (int64_t f : frames) {
+      if (!is_drift_peak(report, f)) continue;
+      for (const TrackedObject* o : objects_at_frame(report, f, size, kMaxObjectsPerPanel))
+        if (auto first = object_first_box(*o, size)) first_looks_wanted.insert({first->frame, {o->id, first->box_px}});
+    }
+  };
+  bool first_frame_seen = false;
   std::map<int, EncodedImage> first_looks;
   ThumbnailCollector collector;
   FrameWalk walk;
   walk.pair_frames = {frames.begin(), frames.end()};
   walk.decode_to_end = need_thumbnails;
   walk.on_frame = [&](const DecodedFrame& frame) {
+    if (!first_frame_seen) want_first_looks(frame.bgr.size()), first_frame_seen = true;
     if (need_thumbnails) collector.add(frame);
     auto [lo, hi] = first_looks_wanted.equal_range(frame.index);
     for (auto it = lo; it != hi; ++it)

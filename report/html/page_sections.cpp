@@ -1,6 +1,7 @@
 // The per-frame panel sets and the tables of the per-clip page.
 #include <algorithm>
 #include <cmath>
+#include <cstdio>
 
 #include "analyzer/inspect/panels.h"
 #include "report/html/html_escape.h"
@@ -99,6 +100,28 @@ std::string scalar_text(const nlohmann::json& v) {
 
 bool is_scalar(const nlohmann::json& v) { return v.is_primitive(); }
 
+// An object's drift over the whole clip as a small line (x: frame across the
+// clip, y: drift on a scale shared by all objects, so rows compare).
+std::string drift_sparkline(const TrackedObject& o, int64_t frame_count, double max_drift) {
+  const auto samples = object_drift_samples(o);
+  if (samples.empty() || frame_count < 2 || !(max_drift > 0)) return "\u2014";
+  std::string d;
+  bool pen_down = false;
+  for (const auto& [frame, value] : samples) {
+    if (!std::isfinite(value)) {
+      pen_down = false;
+      continue;
+    }
+    char xy[48];
+    std::snprintf(xy, sizeof xy, "%c%.1f %.1f", pen_down ? 'L' : 'M', 120.0 * frame / (frame_count - 1),
+                  22.0 - 20.0 * std::clamp(value / max_drift, 0.0, 1.0));
+    d += xy;
+    pen_down = true;
+  }
+  return "<svg class=\"spark\" viewBox=\"0 0 120 24\" role=\"img\" aria-label=\"drift of object " +
+         std::to_string(o.id) + " over the clip\"><path d=\"" + d + "\"/></svg>";
+}
+
 }  // namespace
 
 std::string panels_section(const Report& report, const HtmlAssets& assets) {
@@ -163,14 +186,21 @@ std::string objects_table(const Report& report) {
   for (const auto& o : report.objects)
     for (const auto& [k, v] : o.detail.items())
       if (is_scalar(v) && std::find(keys.begin(), keys.end(), k) == keys.end()) keys.push_back(k);
+  double max_drift = 0;
+  for (const auto& o : report.objects)
+    for (const auto& [frame, value] : object_drift_samples(o))
+      if (std::isfinite(value)) max_drift = std::max(max_drift, value);
+  const int64_t frame_count = static_cast<int64_t>(report.frame_times_s.size());
   std::string out = "<section class=\"card\" aria-labelledby=\"h-objects\">\n<h2 id=\"h-objects\">Tracked "
-                    "objects (drift)</h2>\n<div class=\"table-wrap\"><table><thead><tr><th>object</th>"
-                    "<th>frames</th><th>ends</th><th>vanished</th>";
+                    "objects (drift)</h2>\n<p class=\"hint\">Drift over the clip on one scale for all objects "
+                    "(0 to " + num(max_drift) + ").</p>\n<div class=\"table-wrap\"><table><thead><tr><th>object</th>"
+                    "<th>frames</th><th>drift over the clip</th><th>ends</th><th>vanished</th>";
   for (const auto& k : keys) out += "<th>" + html_escape(k) + "</th>";
   out += "</tr></thead><tbody>\n";
   for (const auto& o : report.objects) {
     out += "<tr><td>#" + std::to_string(o.id) + "</td><td>" + std::to_string(o.first_frame) + "\u2013" +
-           std::to_string(o.last_frame) + "</td><td>" + html_escape(o.end_reason) + "</td><td>" +
+           std::to_string(o.last_frame) + "</td><td>" + drift_sparkline(o, frame_count, max_drift) + "</td><td>" +
+           html_escape(o.end_reason) + "</td><td>" +
            (o.vanished ? "yes" : "no") + "</td>";
     for (const auto& k : keys) {
       const auto it = o.detail.find(k);

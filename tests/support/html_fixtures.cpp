@@ -166,13 +166,17 @@ Report synthetic_report(const SyntheticScene& scene, const std::string& clip_pat
   ball.first_frame = 0;
   ball.last_frame = n - 1;
   ball.end_reason = "clip_end";
-  nlohmann::json boxes = nlohmann::json::array(), drift_rows = nlohmann::json::array();
-  for (int i = 0; i < n; ++i) {
+  // Sampled every 5 frames, laid out as the drift metric writes objects.
+  nlohmann::json frames = nlohmann::json::array(), boxes = nlohmann::json::array(),
+                 drift_values = nlohmann::json::array();
+  for (int i = 0; i < n; i += 5) {
     const cv::Rect b = scene.ball_box(i);
+    frames.push_back(i);
     boxes.push_back({i, b.x, b.y, b.width, b.height});
-    drift_rows.push_back({i, drift.values[i]});
+    drift_values.push_back(drift.values[i]);
   }
-  ball.detail = {{"boxes", boxes}, {"drift", drift_rows}, {"max_drift_de00", 7.3}, {"label", "<ball> & \"co\""}};
+  ball.detail = {{"kind", "moving"}, {"frames", frames}, {"boxes", boxes}, {"drift", drift_values},
+                 {"peak_drift", 7.3}, {"drift_rate_per_s", 0.61}, {"label", "<ball> & \"co\""}};
   r.objects.push_back(ball);
   r.verdict.status = Verdict::reject;
   r.verdict.reasons = {"warp_error peak 0.056 >= 0.03 (reject) at 3.93-4.53 s",
@@ -201,7 +205,7 @@ HtmlAssets synthetic_assets(const Report& report, const SyntheticScene& scene, c
       const TrackedObject* o = nullptr;
       for (const auto& obj : report.objects)
         if (obj.id == look.object_id) o = &obj;
-      if (auto first = o ? object_first_box(*o) : std::nullopt) {
+      if (auto first = o ? object_first_box(*o, {scene.width, scene.height}) : std::nullopt) {
         const cv::Mat frame0 = scene.render(first->frame);
         cv::Mat crop;
         cv::resize(frame0(first->box_px & cv::Rect(0, 0, frame0.cols, frame0.rows)), crop, {112, 112});

@@ -164,13 +164,34 @@ TEST(ObjectBoxes, ToleratesMalformedDetail) {
   o.first_frame = 2;
   o.last_frame = 9;
   o.detail = {{"boxes", {{2, 1, 2, 3, 4}, "junk", {3, 1}, {5, 10, 20, 30, 40}, {6, 0, 0, -1, 4}}}};
-  ASSERT_EQ(object_boxes(o).size(), 2u);
-  EXPECT_EQ(object_box_at(o, 4), cv::Rect(1, 2, 3, 4));
-  EXPECT_EQ(object_box_at(o, 7), cv::Rect(10, 20, 30, 40));
-  EXPECT_FALSE(object_box_at(o, 1).has_value());
-  EXPECT_FALSE(object_box_at(o, 10).has_value());
+  const cv::Size size(100, 50);
+  ASSERT_EQ(object_boxes(o, size).size(), 2u);
+  EXPECT_EQ(object_box_at(o, 4, size), cv::Rect(1, 2, 3, 4));
+  EXPECT_EQ(object_box_at(o, 7, size), cv::Rect(10, 20, 30, 40));
+  EXPECT_FALSE(object_box_at(o, 1, size).has_value());
+  EXPECT_FALSE(object_box_at(o, 10, size).has_value());
   o.detail = {{"boxes", "not a list"}};
-  EXPECT_TRUE(object_boxes(o).empty());
+  EXPECT_TRUE(object_boxes(o, size).empty());
+}
+
+// The drift metric's own layout (analyzer/drift/drift_report.cpp): sampled
+// frames, boxes with nulls, fractions of the frame, drift aligned with frames.
+TEST(ObjectBoxes, ReadsTheDriftMetricsLayout) {
+  TrackedObject o;
+  o.first_frame = 10;
+  o.last_frame = 40;
+  o.detail = {{"frames", {10, 20, 30}},
+              {"boxes", {{10, 5, 5, 10, 10}, {20, nullptr, nullptr, nullptr, nullptr}, {30, 7, 5, 10, 10}}},
+              {"boxes_frac", {{10, 0.1, 0.2, 0.2, 0.4}, {30, 0.5, 0.2, 0.2, 0.4}}},
+              {"drift", {0.0, nullptr, 2.5}}};
+  // Fractions win: they place the box on a frame of any size.
+  EXPECT_EQ(object_box_at(o, 12, {200, 100}), cv::Rect(20, 20, 40, 40));
+  EXPECT_EQ(object_box_at(o, 35, {100, 50}), cv::Rect(50, 10, 20, 20));
+  EXPECT_EQ(object_drift_at(o, 25), 0.0);
+  EXPECT_EQ(object_drift_at(o, 30), 2.5);
+  EXPECT_EQ(object_drift_samples(o).size(), 2u);
+  o.detail.erase("boxes_frac");
+  EXPECT_EQ(object_box_at(o, 35, {200, 100}), cv::Rect(7, 5, 10, 10));
 }
 
 TEST(WriteHtmlReport, UnreadableClipStillGetsAPageThatSaysWhy) {
