@@ -15,7 +15,8 @@ std::vector<std::pair<int64_t, cv::Rect2d>> box_rows(const nlohmann::json& rows)
     bool numeric = true;
     for (size_t i = 0; i < 5; ++i) numeric = numeric && row[i].is_number();
     if (!numeric) continue;
-    const cv::Rect2d r(row[1].get<double>(), row[2].get<double>(), row[3].get<double>(), row[4].get<double>());
+    const cv::Rect2d r(row[1].get<double>(), row[2].get<double>(), row[3].get<double>(),
+                       row[4].get<double>());
     if (!(r.width > 0 && r.height > 0) || !std::isfinite(r.x + r.y + r.width + r.height)) continue;
     out.emplace_back(row[0].get<int64_t>(), r);
   }
@@ -33,7 +34,8 @@ cv::Rect to_pixels(const cv::Rect2d& r) {
 std::vector<ObjectBox> object_boxes(const TrackedObject& object, cv::Size frame_size) {
   std::vector<ObjectBox> out;
   const auto frac = object.detail.find("boxes_frac");
-  const bool use_frac = frac != object.detail.end() && frame_size.area() > 0 && !box_rows(*frac).empty();
+  const bool use_frac =
+      frac != object.detail.end() && frame_size.area() > 0 && !box_rows(*frac).empty();
   const auto px = object.detail.find("boxes");
   if (use_frac) {
     for (const auto& [frame, r] : box_rows(*frac))
@@ -42,11 +44,13 @@ std::vector<ObjectBox> object_boxes(const TrackedObject& object, cv::Size frame_
   } else if (px != object.detail.end()) {
     for (const auto& [frame, r] : box_rows(*px)) out.push_back({frame, to_pixels(r)});
   }
-  std::stable_sort(out.begin(), out.end(), [](const auto& a, const auto& b) { return a.frame < b.frame; });
+  std::stable_sort(out.begin(), out.end(),
+                   [](const auto& a, const auto& b) { return a.frame < b.frame; });
   return out;
 }
 
-std::optional<cv::Rect> object_box_at(const TrackedObject& object, int64_t frame, cv::Size frame_size) {
+std::optional<cv::Rect> object_box_at(const TrackedObject& object, int64_t frame,
+                                      cv::Size frame_size) {
   if (frame < object.first_frame || frame > object.last_frame) return std::nullopt;
   std::optional<cv::Rect> found;
   for (const auto& b : object_boxes(object, frame_size)) {
@@ -67,18 +71,20 @@ std::vector<std::pair<int64_t, double>> object_drift_samples(const TrackedObject
   const auto drift = object.detail.find("drift");
   if (drift == object.detail.end() || !drift->is_array()) return out;
   const auto frames = object.detail.find("frames");
-  const bool aligned = frames != object.detail.end() && frames->is_array() && frames->size() == drift->size();
+  const bool aligned =
+      frames != object.detail.end() && frames->is_array() && frames->size() == drift->size();
   for (size_t i = 0; i < drift->size(); ++i) {
     const auto& entry = (*drift)[i];
     if (entry.is_array() && entry.size() >= 2 && entry[0].is_number() && entry[1].is_number()) {
       out.emplace_back(entry[0].get<int64_t>(), entry[1].get<double>());
     } else if (entry.is_number()) {
       const int64_t frame = aligned && (*frames)[i].is_number() ? (*frames)[i].get<int64_t>()
-                                                                 : object.first_frame + int64_t(i);
+                                                                : object.first_frame + int64_t(i);
       out.emplace_back(frame, entry.get<double>());
     }
   }
-  std::stable_sort(out.begin(), out.end(), [](const auto& a, const auto& b) { return a.first < b.first; });
+  std::stable_sort(out.begin(), out.end(),
+                   [](const auto& a, const auto& b) { return a.first < b.first; });
   return out;
 }
 

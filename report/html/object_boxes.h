@@ -27,7 +27,8 @@ struct ObjectBox {
 std::vector<ObjectBox> object_boxes(const TrackedObject& object, cv::Size frame_size);
 
 // The box at `frame`, or the last one before it within the object's life.
-std::optional<cv::Rect> object_box_at(const TrackedObject& object, int64_t frame, cv::Size frame_size);
+std::optional<cv::Rect> object_box_at(const TrackedObject& object, int64_t frame,
+                                      cv::Size frame_size);
 
 // The object's first box (its "first look").
 std::optional<ObjectBox> object_first_box(const TrackedObject& object, cv::Size frame_size);

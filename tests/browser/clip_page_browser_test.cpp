@@ -57,7 +57,8 @@ void expect_clean_load(const json& result) {
 class ClipPageBrowser : public ::testing::Test {
  protected:
   void SetUp() override {
-    if (!std::filesystem::exists(kChromium)) GTEST_SKIP() << kChromium << " is not installed (Debian package chromium)";
+    if (!std::filesystem::exists(kChromium))
+      GTEST_SKIP() << kChromium << " is not installed (Debian package chromium)";
     if (!std::filesystem::exists(kPython)) GTEST_SKIP() << kPython << " is not installed";
   }
 };
@@ -88,7 +89,8 @@ TEST_F(ClipPageBrowser, FixturePageLoadsCleanlyAndKeepsInputsAsText) {
   EXPECT_EQ(dom["injected_bold"], 0);
   EXPECT_EQ(dom["scripts"], 2);  // the data block and the page's own script
   EXPECT_NE(dom["caution"].get<std::string>().find("photosensitive epilepsy"), std::string::npos);
-  // The page's script ran under its CSP: "n" moved focus to a segment and the readout shows a frame.
+  // The page's script ran under its CSP: "n" moved focus to a segment and the readout shows a
+  // frame.
   EXPECT_TRUE(result["after_key"]["focused_marker"].get<bool>());
   EXPECT_TRUE(result["after_key"]["cursor_visible"].get<bool>());
   EXPECT_NE(result["after_key"]["readout"].get<std::string>().find("Frame "), std::string::npos);
@@ -117,14 +119,15 @@ TEST_F(ClipPageBrowser, CheckerSeesABlockedScript) {
 TEST_F(ClipPageBrowser, AnalyzedClipPageMatchesItsJson) {
   FRAMELINT_SKIP_WITHOUT_DATA(clip, "tree.avi");
   test::TempDir dir;
-  const auto r = test::run_command({FRAMELINT_BINARY, "analyze", clip, "--out", dir.path().string(), "--quiet",
-                                    "--preset", "fast"});
+  const auto r = test::run_command({FRAMELINT_BINARY, "analyze", clip, "--out", dir.path().string(),
+                                    "--quiet", "--preset", "fast"});
   ASSERT_TRUE(r.exit_code == 0 || r.exit_code == 1) << r.err;
   const std::string html = dir.file("tree.html");
   ASSERT_TRUE(std::filesystem::exists(html)) << r.out << r.err;
   auto report = read_report_file(dir.file("tree.json"));
   ASSERT_TRUE(report.ok()) << report.error().message();
-  std::filesystem::copy_file(html, artifacts() / "tree.html", std::filesystem::copy_options::overwrite_existing);
+  std::filesystem::copy_file(html, artifacts() / "tree.html",
+                             std::filesystem::copy_options::overwrite_existing);
   const json result = check_page(html, (artifacts() / "tree.png").string());
   ASSERT_TRUE(result.contains("dom"));
   expect_clean_load(result);

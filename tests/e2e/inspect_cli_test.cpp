@@ -23,7 +23,8 @@ std::vector<std::string> lines(const std::string& text) {
 TEST(InspectCli, WritesAndPrintsEveryPanel) {
   FRAMELINT_SKIP_WITHOUT_DATA(clip, "tree.avi");
   test::TempDir dir;
-  const auto r = test::run_command({FRAMELINT_BINARY, "inspect", clip, "--frame", "30", "--out", dir.path().string()});
+  const auto r = test::run_command(
+      {FRAMELINT_BINARY, "inspect", clip, "--frame", "30", "--out", dir.path().string()});
   ASSERT_EQ(r.exit_code, 0) << r.err;
   const auto paths = lines(r.out);
   ASSERT_EQ(paths.size(), 8u) << r.out;
@@ -36,7 +37,8 @@ TEST(InspectCli, WritesAndPrintsEveryPanel) {
 TEST(InspectCli, FrameZeroWritesWhatExistsAndSaysSo) {
   FRAMELINT_SKIP_WITHOUT_DATA(clip, "tree.avi");
   test::TempDir dir;
-  const auto r = test::run_command({FRAMELINT_BINARY, "inspect", clip, "--frame", "0", "--out", dir.path().string()});
+  const auto r = test::run_command(
+      {FRAMELINT_BINARY, "inspect", clip, "--frame", "0", "--out", dir.path().string()});
   ASSERT_EQ(r.exit_code, 0) << r.err;
   const auto paths = lines(r.out);
   ASSERT_EQ(paths.size(), 1u);
@@ -47,7 +49,8 @@ TEST(InspectCli, FrameZeroWritesWhatExistsAndSaysSo) {
 TEST(InspectCli, BadRequestsAreOneLineErrors) {
   FRAMELINT_SKIP_WITHOUT_DATA(clip, "tree.avi");
   test::TempDir dir;
-  auto r = test::run_command({FRAMELINT_BINARY, "inspect", clip, "--frame", "500", "--out", dir.path().string()});
+  auto r = test::run_command(
+      {FRAMELINT_BINARY, "inspect", clip, "--frame", "500", "--out", dir.path().string()});
   EXPECT_EQ(r.exit_code, 2);
   EXPECT_NE(r.err.find("the clip has 68 frames (0 to 67)"), std::string::npos) << r.err;
   EXPECT_EQ(lines(r.err).size(), 1u) << r.err;

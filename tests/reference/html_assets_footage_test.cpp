@@ -21,7 +21,8 @@ namespace {
 // Adds a segment of `metric` peaking at `frame` (the pictures only need the
 // peak frame; the real policy decides segments elsewhere).
 void add_segment(Report& r, const std::string& metric, int64_t frame, Severity s) {
-  const int64_t a = std::max<int64_t>(0, frame - 2), b = std::min<int64_t>(r.frame_times_s.size() - 1, frame + 2);
+  const int64_t a = std::max<int64_t>(0, frame - 2),
+                b = std::min<int64_t>(r.frame_times_s.size() - 1, frame + 2);
   r.segments.push_back({metric, a, b, r.frame_times_s[a], r.frame_times_s[b], 1.0, frame, s});
 }
 
@@ -38,8 +39,10 @@ const Analysed& megamind(const std::string& clip) {
     Analysed a;
     a.settings.preset = Preset::fast;
     auto report = analyze_clip(clip, a.settings, default_policy());
-    if (report) a.report = std::move(report.value());
-    else a.error = report.error().message();
+    if (report)
+      a.report = std::move(report.value());
+    else
+      a.error = report.error().message();
     return a;
   }();
   return a;
@@ -67,14 +70,16 @@ void expect_panels_show_what_the_analysis_measured(const std::string& clip) {
   // The warp error under the picture is the report's own value at that frame.
   const MetricSeries* warp = r.find_series("warp_error");
   ASSERT_NE(warp, nullptr);
-  EXPECT_NEAR(assets.panels[0].mean_warp_error, warp->values[40], 1e-6 * std::max(1.0, warp->values[40]));
+  EXPECT_NEAR(assets.panels[0].mean_warp_error, warp->values[40],
+              1e-6 * std::max(1.0, warp->values[40]));
   const MetricSeries* occluded = r.find_series("occluded_pct");
   ASSERT_NE(occluded, nullptr);
   EXPECT_NEAR(assets.panels[0].occluded_pct, occluded->values[40], 1e-6);
   // Every picture is there; thumbnails were collected by this pass.
-  for (const EncodedImage* image : {&assets.panels[0].previous, &assets.panels[0].current,
-                                    &assets.panels[0].warped_previous, &assets.panels[0].warp_error_heat,
-                                    &assets.panels[0].flow_colour, &assets.panels[0].occlusion}) {
+  for (const EncodedImage* image :
+       {&assets.panels[0].previous, &assets.panels[0].current, &assets.panels[0].warped_previous,
+        &assets.panels[0].warp_error_heat, &assets.panels[0].flow_colour,
+        &assets.panels[0].occlusion}) {
     EXPECT_EQ(image->mime, "image/jpeg");
     EXPECT_LE(image->width_px, 320);
   }

@@ -43,12 +43,18 @@ TEST(InspectFootage, VtestFrameHasEveryPanelAtTheWorkingSize) {
   test::TempDir dir;
   auto paths = write_panel_pngs(*panels, dir.path().string(), "vtest");
   ASSERT_TRUE(paths.ok()) << paths.error().message();
-  const std::vector<std::string> kinds = {"previous",     "current",               "warped-prev",
-                                          "warp-error-heat", "warp-error-colour-bar", "flow-colour",
-                                          "flow-colour-wheel", "occlusion-mask"};
+  const std::vector<std::string> kinds = {"previous",
+                                          "current",
+                                          "warped-prev",
+                                          "warp-error-heat",
+                                          "warp-error-colour-bar",
+                                          "flow-colour",
+                                          "flow-colour-wheel",
+                                          "occlusion-mask"};
   ASSERT_EQ(paths->size(), kinds.size());
   for (size_t i = 0; i < kinds.size(); ++i) {
-    EXPECT_EQ(std::filesystem::path((*paths)[i]).filename().string(), "vtest-f000120-" + kinds[i] + ".png");
+    EXPECT_EQ(std::filesystem::path((*paths)[i]).filename().string(),
+              "vtest-f000120-" + kinds[i] + ".png");
     const cv::Mat back = cv::imread((*paths)[i], cv::IMREAD_UNCHANGED);
     ASSERT_FALSE(back.empty()) << (*paths)[i];
     if (kinds[i] == "warp-error-colour-bar") {
