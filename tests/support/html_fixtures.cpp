@@ -39,13 +39,11 @@ cv::Mat world(const SyntheticScene& s) {
 }  // namespace
 
 cv::Mat SyntheticScene::render(int64_t frame) const {
-  static thread_local cv::Mat cached_world;
-  static thread_local const SyntheticScene* cached_for = nullptr;
-  if (cached_for != this || cached_world.empty()) cached_world = world(*this), cached_for = this;
+  if (world_cache_.empty()) world_cache_ = world(*this);
   const double offset = pan_px_per_frame * double(frame);
   cv::Mat out;
   const cv::Matx23d shift(1, 0, -offset, 0, 1, 0);
-  cv::warpAffine(cached_world, out, shift, {width, height}, cv::INTER_LINEAR, cv::BORDER_REPLICATE);
+  cv::warpAffine(world_cache_, out, shift, {width, height}, cv::INTER_LINEAR, cv::BORDER_REPLICATE);
   const cv::Point2d c = ball_centre(*this, frame);
   // The ball's colour drifts in the last third of the clip (what the
   // report's drift segment describes).

@@ -32,6 +32,9 @@ struct SyntheticScene {
   // The pair (frame-1, frame) with the true backward/forward flow, the
   // occlusion mask of the true motion and the warped previous frame.
   void make_pair(int64_t frame, FramePlanes& prev, FramePlanes& cur, FramePair& pair) const;
+
+ private:
+  mutable cv::Mat world_cache_;  // the static world, drawn on first use
 };
 
 // A 10 s, 30 fps report over the scene with hand-placed segments.
