@@ -18,14 +18,15 @@ int run_inspect(const std::vector<std::string>& args) {
       {"fps", true, "frame rate for folders of numbered images (default 24)"},
   };
   if (wants_help(args)) {
-    std::fputs(format_help("inspect", "CLIP --frame N [options]",
-                           "Writes PNG panels for one frame: previous, current, previous warped onto\n"
-                           "current, warp-error heat map and its colour bar, optical flow in the\n"
-                           "Middlebury colour coding and its colour wheel, occlusion mask.\n"
-                           "Prints the paths written, one per line.",
-                           specs)
-                   .c_str(),
-               stdout);
+    std::fputs(
+        format_help("inspect", "CLIP --frame N [options]",
+                    "Writes PNG panels for one frame: previous, current, previous warped onto\n"
+                    "current, warp-error heat map and its colour bar, optical flow in the\n"
+                    "Middlebury colour coding and its colour wheel, occlusion mask.\n"
+                    "Prints the paths written, one per line.",
+                    specs)
+            .c_str(),
+        stdout);
     return kExitOk;
   }
   auto parsed = parse_args(args, specs);

@@ -18,12 +18,14 @@ std::array<Rgb8, 55> build_wheel() {
   std::array<Rgb8, 55> wheel{};
   int k = 0;
   auto ramp = [](int i, int n) { return static_cast<uint8_t>(255 * i / n); };
-  for (int i = 0; i < kRY; ++i) wheel[k++] = {255, ramp(i, kRY), 0};                          // red -> yellow
-  for (int i = 0; i < kYG; ++i) wheel[k++] = {uint8_t(255 - ramp(i, kYG)), 255, 0};           // yellow -> green
-  for (int i = 0; i < kGC; ++i) wheel[k++] = {0, 255, ramp(i, kGC)};                          // green -> cyan
-  for (int i = 0; i < kCB; ++i) wheel[k++] = {0, uint8_t(255 - ramp(i, kCB)), 255};           // cyan -> blue
-  for (int i = 0; i < kBM; ++i) wheel[k++] = {ramp(i, kBM), 0, 255};                          // blue -> magenta
-  for (int i = 0; i < kMR; ++i) wheel[k++] = {255, 0, uint8_t(255 - ramp(i, kMR))};           // magenta -> red
+  for (int i = 0; i < kRY; ++i) wheel[k++] = {255, ramp(i, kRY), 0};  // red -> yellow
+  for (int i = 0; i < kYG; ++i)
+    wheel[k++] = {uint8_t(255 - ramp(i, kYG)), 255, 0};               // yellow -> green
+  for (int i = 0; i < kGC; ++i) wheel[k++] = {0, 255, ramp(i, kGC)};  // green -> cyan
+  for (int i = 0; i < kCB; ++i) wheel[k++] = {0, uint8_t(255 - ramp(i, kCB)), 255};  // cyan -> blue
+  for (int i = 0; i < kBM; ++i) wheel[k++] = {ramp(i, kBM), 0, 255};  // blue -> magenta
+  for (int i = 0; i < kMR; ++i)
+    wheel[k++] = {255, 0, uint8_t(255 - ramp(i, kMR))};  // magenta -> red
   return wheel;
 }
 

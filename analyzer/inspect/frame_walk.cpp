@@ -14,8 +14,8 @@ SourceOptions source_options(const AnalysisSettings& settings) {
   return options;
 }
 
-Expected<FrameWalkResult> walk_frames(const std::string& clip_path, const AnalysisSettings& settings,
-                                      const FrameWalk& walk) {
+Expected<FrameWalkResult> walk_frames(const std::string& clip_path,
+                                      const AnalysisSettings& settings, const FrameWalk& walk) {
   auto source = ClipSource::open(clip_path, source_options(settings));
   if (!source) return source.error();
   const int64_t last_wanted = walk.pair_frames.empty() ? -1 : *walk.pair_frames.rbegin();

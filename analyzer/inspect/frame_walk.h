@@ -34,7 +34,7 @@ struct FrameWalkResult {
 
 SourceOptions source_options(const AnalysisSettings& settings);
 
-Expected<FrameWalkResult> walk_frames(const std::string& clip_path, const AnalysisSettings& settings,
-                                      const FrameWalk& walk);
+Expected<FrameWalkResult> walk_frames(const std::string& clip_path,
+                                      const AnalysisSettings& settings, const FrameWalk& walk);
 
 }  // namespace framelint

@@ -14,7 +14,8 @@ namespace framelint {
 Expected<FramePanels> inspect_frame(const std::string& clip_path, int64_t frame_index,
                                     const AnalysisSettings& settings) {
   if (frame_index < 0)
-    return usage_error("--frame", "expects a frame index of 0 or more, got " + std::to_string(frame_index));
+    return usage_error("--frame",
+                       "expects a frame index of 0 or more, got " + std::to_string(frame_index));
   std::optional<FramePanels> panels;
   FrameWalk walk;
   walk.pair_frames = {frame_index};
@@ -24,14 +25,16 @@ Expected<FramePanels> inspect_frame(const std::string& clip_path, int64_t frame_
   if (!walked) return walked.error();
   if (!panels) {
     const int64_t n = walked->frames_decoded;
-    return usage_error(clip_path, "frame " + std::to_string(frame_index) + " is out of range: the clip has " +
-                                      std::to_string(n) + " frame" + (n == 1 ? "" : "s") +
+    return usage_error(clip_path, "frame " + std::to_string(frame_index) +
+                                      " is out of range: the clip has " + std::to_string(n) +
+                                      " frame" + (n == 1 ? "" : "s") +
                                       (n > 0 ? " (0 to " + std::to_string(n - 1) + ")" : ""));
   }
   return std::move(*panels);
 }
 
-Expected<std::vector<std::string>> write_panel_pngs(const FramePanels& panels, const std::string& dir,
+Expected<std::vector<std::string>> write_panel_pngs(const FramePanels& panels,
+                                                    const std::string& dir,
                                                     const std::string& stem) {
   std::error_code ec;
   std::filesystem::create_directories(dir, ec);

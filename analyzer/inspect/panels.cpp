@@ -81,7 +81,8 @@ FramePanels make_pair_panels(const FramePair& pair) {
   } else {
     cv::bitwise_not(pair.valid, p.occlusion_mask);
   }
-  const int valid_count = pair.valid.empty() ? error.rows * error.cols : cv::countNonZero(pair.valid);
+  const int valid_count =
+      pair.valid.empty() ? error.rows * error.cols : cv::countNonZero(pair.valid);
   const int total = std::max(1, error.rows * error.cols);
   p.occluded_pct = 100.0 * (total - valid_count) / total;
   p.mean_warp_error =
@@ -101,7 +102,8 @@ FramePanels make_first_frame_panels(const FramePlanes& frame) {
 cv::Mat warp_error_colour_bar(int width_px, int height_px, bool with_labels) {
   const int bar_h = with_labels ? std::max(8, height_px - 34) : height_px;
   cv::Mat ramp(1, width_px, CV_32FC1);
-  for (int x = 0; x < width_px; ++x) ramp.at<float>(0, x) = float(x) / float(std::max(1, width_px - 1));
+  for (int x = 0; x < width_px; ++x)
+    ramp.at<float>(0, x) = float(x) / float(std::max(1, width_px - 1));
   cv::Mat bar_row = apply_heat_scale(ramp);
   cv::Mat out(height_px, width_px, CV_8UC3, cv::Scalar(255, 255, 255));
   cv::resize(bar_row, out.rowRange(0, bar_h), cv::Size(width_px, bar_h), 0, 0, cv::INTER_NEAREST);
@@ -112,16 +114,18 @@ cv::Mat warp_error_colour_bar(int width_px, int height_px, bool with_labels) {
   // Ticks at colour positions 0, 0.2, ..., 1: squared errors max * p^2.
   for (const double position : warp_error_tick_positions()) {
     char label[32];
-    std::snprintf(label, sizeof label, position >= 1 ? ">=%g" : "%g", warp_error_at_position(position));
+    std::snprintf(label, sizeof label, position >= 1 ? ">=%g" : "%g",
+                  warp_error_at_position(position));
     int baseline = 0;
     const int w = cv::getTextSize(label, cv::FONT_HERSHEY_SIMPLEX, scale, 1, &baseline).width;
     const int x = static_cast<int>(std::lround(position * (width_px - 1)));
     cv::line(out, {x, bar_h - 4}, {x, bar_h + 2}, ink);
     const int text_x = std::clamp(x - w / 2, margin, width_px - w - margin);
-    cv::putText(out, label, {text_x, bar_h + 14}, cv::FONT_HERSHEY_SIMPLEX, scale, ink, 1, cv::LINE_AA);
+    cv::putText(out, label, {text_x, bar_h + 14}, cv::FONT_HERSHEY_SIMPLEX, scale, ink, 1,
+                cv::LINE_AA);
   }
-  cv::putText(out, "warp error per pixel: squared RGB difference (sum over R,G,B in 0-1)", {margin, bar_h + 30},
-              cv::FONT_HERSHEY_SIMPLEX, scale, ink, 1, cv::LINE_AA);
+  cv::putText(out, "warp error per pixel: squared RGB difference (sum over R,G,B in 0-1)",
+              {margin, bar_h + 30}, cv::FONT_HERSHEY_SIMPLEX, scale, ink, 1, cv::LINE_AA);
   return out;
 }
 

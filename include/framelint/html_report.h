@@ -67,7 +67,7 @@ class ThumbnailCollector {
 // A tracked object seen at a panel's frame (drift).
 struct ObjectLook {
   int object_id = 0;
-  cv::Rect box_px;            // at the panel's frame, working-frame pixels
+  cv::Rect box_px;  // at the panel's frame, working-frame pixels
   int64_t first_frame = 0;
   EncodedImage first_look;    // the object's box at its first frame
   EncodedImage current_look;  // the object's box at the panel's frame
@@ -96,7 +96,7 @@ struct HtmlOptions {
   // Extra facts shown with the clip's own, e.g. {"prompt", "..."} from a
   // gate manifest. Shown as text, always escaped.
   std::vector<std::pair<std::string, std::string>> facts;
-  int max_panel_sets = 8;   // flagged segments shown with pictures, worst first
+  int max_panel_sets = 8;  // flagged segments shown with pictures, worst first
   int panel_width_px = 320;
   int jpeg_quality = 80;
 };
@@ -108,7 +108,8 @@ std::vector<int64_t> panel_frames(const Report& report, const HtmlOptions& optio
 
 // Encodes panels (downscaled to options.panel_width_px) for the page and adds
 // the drift looks of objects present at that frame.
-PanelImages encode_panels(const FramePanels& panels, const Report& report, const HtmlOptions& options);
+PanelImages encode_panels(const FramePanels& panels, const Report& report,
+                          const HtmlOptions& options);
 
 // Step 2 above. `thumbnails` are those collected during analysis; when empty
 // they are collected in this pass. Never fails: if the clip cannot be read

@@ -41,9 +41,9 @@ struct FramePanels {
   cv::Mat occlusion_mask;   // CV_8UC1: 255 where the forward-backward check fails
 
   // Numbers that belong with the pictures.
-  double max_flow_px = 0;        // flow length that maps to full saturation
-  double mean_warp_error = 0;    // over non-occluded pixels, same units as the heat map
-  double occluded_pct = 0;       // share of pixels failing the forward-backward check
+  double max_flow_px = 0;      // flow length that maps to full saturation
+  double mean_warp_error = 0;  // over non-occluded pixels, same units as the heat map
+  double occluded_pct = 0;     // share of pixels failing the forward-backward check
 };
 
 // The legends, the same for every frame: the heat map's colour bar (with

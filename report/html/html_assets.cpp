@@ -20,7 +20,8 @@ constexpr int kLookLongSidePx = 112;  // object crops, upscaled or downscaled to
 
 cv::Mat resize_to_width(const cv::Mat& image, int width_px) {
   if (image.empty() || image.cols <= width_px) return image;
-  const int height = std::max(1, static_cast<int>(std::lround(double(image.rows) * width_px / image.cols)));
+  const int height =
+      std::max(1, static_cast<int>(std::lround(double(image.rows) * width_px / image.cols)));
   cv::Mat out;
   cv::resize(image, out, {width_px, height}, 0, 0, cv::INTER_AREA);
   return out;
@@ -32,7 +33,8 @@ cv::Mat crop_look(const cv::Mat& frame, cv::Rect box) {
   const double scale = double(kLookLongSidePx) / std::max(box.width, box.height);
   cv::Mat out;
   cv::resize(frame(box), out,
-             {std::max(1, int(std::lround(box.width * scale))), std::max(1, int(std::lround(box.height * scale)))},
+             {std::max(1, int(std::lround(box.width * scale))),
+              std::max(1, int(std::lround(box.height * scale)))},
              0, 0, scale > 1 ? cv::INTER_NEAREST : cv::INTER_AREA);
   return out;
 }
@@ -49,8 +51,9 @@ cv::Mat occlusion_overlay(const cv::Mat& current_bgr, const cv::Mat& occlusion_m
 }
 
 bool is_drift_peak(const Report& report, int64_t frame) {
-  return std::any_of(report.segments.begin(), report.segments.end(),
-                     [&](const Segment& s) { return s.metric == "drift" && s.peak_frame == frame; });
+  return std::any_of(report.segments.begin(), report.segments.end(), [&](const Segment& s) {
+    return s.metric == "drift" && s.peak_frame == frame;
+  });
 }
 
 int severity_rank(Severity s) { return s == Severity::reject ? 2 : s == Severity::review ? 1 : 0; }
@@ -60,7 +63,8 @@ int severity_rank(Severity s) { return s == Severity::reject ? 2 : s == Severity
 EncodedImage encode_jpeg(const cv::Mat& bgr, int quality) {
   EncodedImage out;
   std::vector<uint8_t> bytes;
-  if (bgr.empty() || !cv::imencode(".jpg", bgr, bytes, {cv::IMWRITE_JPEG_QUALITY, quality})) return out;
+  if (bgr.empty() || !cv::imencode(".jpg", bgr, bytes, {cv::IMWRITE_JPEG_QUALITY, quality}))
+    return out;
   out.mime = "image/jpeg";
   out.bytes.assign(bytes.begin(), bytes.end());
   out.width_px = bgr.cols;
@@ -84,7 +88,8 @@ ThumbnailCollector::ThumbnailCollector(int max_count, int width_px, int jpeg_qua
 
 void ThumbnailCollector::add(const DecodedFrame& frame) {
   if (frame.index % interval_ != 0 || frame.bgr.empty()) return;
-  thumbnails_.push_back({frame.index, frame.t_s, encode_jpeg(resize_to_width(frame.bgr, width_px_), jpeg_quality_)});
+  thumbnails_.push_back(
+      {frame.index, frame.t_s, encode_jpeg(resize_to_width(frame.bgr, width_px_), jpeg_quality_)});
   if (static_cast<int>(thumbnails_.size()) <= max_count_) return;
   interval_ *= 2;
   std::erase_if(thumbnails_, [&](const Thumbnail& t) { return t.frame_index % interval_ != 0; });
@@ -108,7 +113,8 @@ std::vector<int64_t> panel_frames(const Report& report, const HtmlOptions& optio
   return frames;
 }
 
-PanelImages encode_panels(const FramePanels& panels, const Report& report, const HtmlOptions& options) {
+PanelImages encode_panels(const FramePanels& panels, const Report& report,
+                          const HtmlOptions& options) {
   PanelImages out;
   out.frame_index = panels.frame_index;
   out.t_s = panels.t_s;
@@ -123,14 +129,17 @@ PanelImages encode_panels(const FramePanels& panels, const Report& report, const
     out.warped_previous = encode_jpeg(resize_to_width(panels.warped_previous, w), q);
     out.warp_error_heat = encode_jpeg(resize_to_width(panels.warp_error_heat, w), q);
     out.flow_colour = encode_jpeg(resize_to_width(panels.flow_colour, w), q);
-    out.occlusion = encode_jpeg(resize_to_width(occlusion_overlay(panels.current, panels.occlusion_mask), w), q);
+    out.occlusion = encode_jpeg(
+        resize_to_width(occlusion_overlay(panels.current, panels.occlusion_mask), w), q);
   }
   if (!is_drift_peak(report, panels.frame_index)) return out;
   cv::Mat boxed = panels.current.clone();
-  for (const TrackedObject* object : objects_at_frame(report, panels.frame_index, kMaxObjectsPerPanel)) {
+  const cv::Size size = panels.current.size();
+  for (const TrackedObject* object :
+       objects_at_frame(report, panels.frame_index, size, kMaxObjectsPerPanel)) {
     ObjectLook look;
     look.object_id = object->id;
-    look.box_px = *object_box_at(*object, panels.frame_index);
+    look.box_px = *object_box_at(*object, panels.frame_index, size);
     look.first_frame = object->first_frame;
     look.current_look = encode_jpeg(crop_look(panels.current, look.box_px), q);
     cv::rectangle(boxed, look.box_px, cv::Scalar(0, 215, 255), 2);
@@ -150,23 +159,30 @@ HtmlAssets collect_html_assets(const Report& report, const AnalysisSettings& set
   const std::vector<int64_t> frames = panel_frames(report, options);
   if (frames.empty() && !need_thumbnails) return assets;
 
-  // Objects whose first look the drift panels show, by the frame of that look.
+  // Objects whose first look the drift panels show, by the frame of that
+  // look; boxes are placed once the working frame size is known.
   std::multimap<int64_t, std::pair<int, cv::Rect>> first_looks_wanted;
-  for (int64_t f : frames) {
-    if (!is_drift_peak(report, f)) continue;
-    for (const TrackedObject* o : objects_at_frame(report, f, kMaxObjectsPerPanel))
-      if (auto first = object_first_box(*o)) first_looks_wanted.insert({first->frame, {o->id, first->box_px}});
-  }
+  auto want_first_looks = [&](cv::Size size) {
+    for (int64_t f : frames) {
+      if (!is_drift_peak(report, f)) continue;
+      for (const TrackedObject* o : objects_at_frame(report, f, size, kMaxObjectsPerPanel))
+        if (auto first = object_first_box(*o, size))
+          first_looks_wanted.insert({first->frame, {o->id, first->box_px}});
+    }
+  };
+  bool first_frame_seen = false;
   std::map<int, EncodedImage> first_looks;
   ThumbnailCollector collector;
   FrameWalk walk;
   walk.pair_frames = {frames.begin(), frames.end()};
   walk.decode_to_end = need_thumbnails;
   walk.on_frame = [&](const DecodedFrame& frame) {
+    if (!first_frame_seen) want_first_looks(frame.bgr.size()), first_frame_seen = true;
     if (need_thumbnails) collector.add(frame);
     auto [lo, hi] = first_looks_wanted.equal_range(frame.index);
     for (auto it = lo; it != hi; ++it)
-      first_looks[it->second.first] = encode_jpeg(crop_look(frame.bgr, it->second.second), options.jpeg_quality);
+      first_looks[it->second.first] =
+          encode_jpeg(crop_look(frame.bgr, it->second.second), options.jpeg_quality);
   };
   walk.on_pair = [&](const FramePair& pair) {
     assets.panels.push_back(encode_panels(make_pair_panels(pair), report, options));
@@ -180,11 +196,16 @@ HtmlAssets collect_html_assets(const Report& report, const AnalysisSettings& set
 
   for (auto& panel : assets.panels)
     for (auto& look : panel.objects)
-      if (auto it = first_looks.find(look.object_id); it != first_looks.end()) look.first_look = it->second;
+      if (auto it = first_looks.find(look.object_id); it != first_looks.end())
+        look.first_look = it->second;
   // Worst first, as panel_frames ordered them.
-  auto rank = [&](int64_t f) { return std::find(frames.begin(), frames.end(), f) - frames.begin(); };
+  auto rank = [&](int64_t f) {
+    return std::find(frames.begin(), frames.end(), f) - frames.begin();
+  };
   std::sort(assets.panels.begin(), assets.panels.end(),
-            [&](const PanelImages& a, const PanelImages& b) { return rank(a.frame_index) < rank(b.frame_index); });
+            [&](const PanelImages& a, const PanelImages& b) {
+              return rank(a.frame_index) < rank(b.frame_index);
+            });
   return assets;
 }
 

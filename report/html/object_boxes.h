@@ -1,7 +1,9 @@
-// Reading tracked objects' boxes from Report::objects (detail.boxes holds
-// [frame, x, y, w, h] rows in working-frame pixels, written by the drift
-// metric), tolerant of missing or malformed entries: a report read from
-// disk must never crash the page writer.
+// Reading tracked objects' boxes from Report::objects, as the drift metric
+// writes them (analyzer/drift/drift_report.cpp): detail.boxes holds
+// [frame, x, y, w, h] rows in working-frame pixels, detail.boxes_frac the
+// same as fractions of the frame, detail.frames / detail.drift the sampled
+// frames and the object's drift there. Tolerant of missing or malformed
+// entries: a report read from disk must never crash the page writer.
 #pragma once
 
 #include <cstdint>
@@ -19,21 +21,29 @@ struct ObjectBox {
   cv::Rect box_px;
 };
 
-std::vector<ObjectBox> object_boxes(const TrackedObject& object);
+// The object's boxes in pixels of a frame of `frame_size` (the working
+// size the pictures are made at): from boxes_frac when present, so a page
+// made at another size still boxes the right place; else from boxes.
+std::vector<ObjectBox> object_boxes(const TrackedObject& object, cv::Size frame_size);
 
 // The box at `frame`, or the last one before it within the object's life.
-std::optional<cv::Rect> object_box_at(const TrackedObject& object, int64_t frame);
+std::optional<cv::Rect> object_box_at(const TrackedObject& object, int64_t frame,
+                                      cv::Size frame_size);
 
 // The object's first box (its "first look").
-std::optional<ObjectBox> object_first_box(const TrackedObject& object);
+std::optional<ObjectBox> object_first_box(const TrackedObject& object, cv::Size frame_size);
 
-// The object's drift value at `frame` when its detail carries a per-frame
-// series (detail.drift as [frame, value] rows or as values from first_frame).
+// The object's drift at `frame` (the last sample at or before it), from
+// detail.drift given either as values aligned with detail.frames or as
+// [frame, value] rows.
 std::optional<double> object_drift_at(const TrackedObject& object, int64_t frame);
+
+// The object's sampled (frame, drift) pairs, for its sparkline.
+std::vector<std::pair<int64_t, double>> object_drift_samples(const TrackedObject& object);
 
 // Objects shown at a drift panel: alive at `frame` with a box, largest drift
 // first (when known), at most `max_count`.
 std::vector<const TrackedObject*> objects_at_frame(const Report& report, int64_t frame,
-                                                   size_t max_count);
+                                                   cv::Size frame_size, size_t max_count);
 
 }  // namespace framelint

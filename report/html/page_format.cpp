@@ -42,14 +42,16 @@ std::string metric_description(const std::string& metric) {
   if (metric.rfind("warp_error_", 0) == 0)
     return "Long-range warping error: as warp_error, across several frames.";
   if (metric == "occluded_pct")
-    return "Share of pixels failing the forward\u2013backward flow check (Sundaram et al. 2010), in %.";
+    return "Share of pixels failing the forward\u2013backward flow check (Sundaram et al. 2010), "
+           "in %.";
   if (metric == "flicker")
     return "Brightness change that motion does not explain (relative luminance after motion "
            "compensation, against its running median).";
   if (metric == "drift")
     return "The worst tracked object's departure from its own first appearance (colour, structure, "
            "size).";
-  if (metric == "cut") return "A hard discontinuity: flow cannot follow and the picture changes a lot.";
+  if (metric == "cut")
+    return "A hard discontinuity: flow cannot follow and the picture changes a lot.";
   if (metric == "freeze") return "The frame repeats the previous one.";
   if (metric == "jerk") return "Spikes in the acceleration of the dominant (camera) motion.";
   if (metric == "flash")
@@ -83,11 +85,12 @@ TimeAxis time_axis(const Report& report) {
   return axis;
 }
 
-std::string img_tag(const EncodedImage& image, const std::string& alt, const std::string& css_class) {
+std::string img_tag(const EncodedImage& image, const std::string& alt,
+                    const std::string& css_class) {
   if (image.empty()) return "";
-  return "<img class=\"" + css_class + "\" src=\"" + data_uri(image.mime, image.bytes) + "\" width=\"" +
-         std::to_string(image.width_px) + "\" height=\"" + std::to_string(image.height_px) + "\" alt=\"" +
-         html_escape(alt) + "\">";
+  return "<img class=\"" + css_class + "\" src=\"" + data_uri(image.mime, image.bytes) +
+         "\" width=\"" + std::to_string(image.width_px) + "\" height=\"" +
+         std::to_string(image.height_px) + "\" alt=\"" + html_escape(alt) + "\">";
 }
 
 namespace {
@@ -106,13 +109,18 @@ void append_number(std::string& out, double v, const char* format) {
 // element (<, >, &) are written as \u escapes, so the data block can never
 // close itself whatever a metric name contains.
 std::string json_string(const std::string& s) {
-  std::string dumped = nlohmann::json(s).dump(-1, ' ', false, nlohmann::json::error_handler_t::replace);
+  std::string dumped =
+      nlohmann::json(s).dump(-1, ' ', false, nlohmann::json::error_handler_t::replace);
   std::string out;
   for (char c : dumped) {
-    if (c == '<') out += "\\u003c";
-    else if (c == '>') out += "\\u003e";
-    else if (c == '&') out += "\\u0026";
-    else out.push_back(c);
+    if (c == '<')
+      out += "\\u003c";
+    else if (c == '>')
+      out += "\\u003e";
+    else if (c == '&')
+      out += "\\u0026";
+    else
+      out.push_back(c);
   }
   return out;
 }

@@ -46,7 +46,8 @@ struct TimeAxis {
 TimeAxis time_axis(const Report& report);
 
 // <img> with a data: URI, or "" when the image is empty.
-std::string img_tag(const EncodedImage& image, const std::string& alt, const std::string& css_class);
+std::string img_tag(const EncodedImage& image, const std::string& alt,
+                    const std::string& css_class);
 
 // The page's sections.
 std::string timeline_section(const Report& report, const HtmlAssets& assets, CssRules& css);

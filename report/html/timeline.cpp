@@ -60,8 +60,9 @@ std::string series_path(const std::vector<double>& values, const std::vector<dou
 }
 
 std::string segment_title(const Segment& s) {
-  return s.metric + " \u00b7 " + severity_name(s.severity) + " \u00b7 " + seconds(s.start_s) + "\u2013" +
-         seconds(s.end_s) + " \u00b7 peak " + num(s.peak) + " at frame " + std::to_string(s.peak_frame);
+  return s.metric + " \u00b7 " + severity_name(s.severity) + " \u00b7 " + seconds(s.start_s) +
+         "\u2013" + seconds(s.end_s) + " \u00b7 peak " + num(s.peak) + " at frame " +
+         std::to_string(s.peak_frame);
 }
 
 bool has_panel(const HtmlAssets& assets, int64_t frame) {
@@ -75,38 +76,48 @@ std::string chart_row(const std::string& metric, const MetricSeries* series, con
   if (series)
     for (double v : series->values)
       if (std::isfinite(v)) lo = std::min(lo, v), hi = std::max(hi, v);
+  const double shown_hi = hi;  // the label gives the data's own range
   if (hi - lo < 1e-12) hi = lo + 1;
-  std::string svg = "<svg class=\"chart\" viewBox=\"0 0 1000 60\" preserveAspectRatio=\"none\" "
-                    "aria-hidden=\"true\">";
+  std::string svg =
+      "<svg class=\"chart\" viewBox=\"0 0 1000 60\" preserveAspectRatio=\"none\" "
+      "aria-hidden=\"true\">";
   std::string markers;
   for (size_t k = 0; k < report.segments.size(); ++k) {
     const Segment& s = report.segments[k];
     if (s.metric != metric) continue;
     const double a = axis.fraction(s.start_s), b = axis.fraction(s.end_s + axis.frame_interval_s);
     char rect[160];
-    std::snprintf(rect, sizeof rect, "<rect class=\"seg-fill sev-%s\" x=\"%.1f\" y=\"0\" width=\"%.1f\" height=\"60\"/>",
-                  severity_name(s.severity), a * kChartW, std::max(2.0, (b - a) * kChartW));
+    std::snprintf(
+        rect, sizeof rect,
+        "<rect class=\"seg-fill sev-%s\" x=\"%.1f\" y=\"0\" width=\"%.1f\" height=\"60\"/>",
+        severity_name(s.severity), a * kChartW, std::max(2.0, (b - a) * kChartW));
     svg += rect;
     const std::string pos = css.add_class("mk", "left:" + pct(a) + ";width:" + pct(b - a));
-    const std::string target = has_panel(assets, s.peak_frame) ? "#frame-" + std::to_string(s.peak_frame)
-                                                                : "#seg-" + std::to_string(k);
+    const std::string target = has_panel(assets, s.peak_frame)
+                                   ? "#frame-" + std::to_string(s.peak_frame)
+                                   : "#seg-" + std::to_string(k);
     markers += "<a class=\"seg-marker sev-" + std::string(severity_name(s.severity)) + " " + pos +
                "\" href=\"" + target + "\" data-seg=\"" + std::to_string(k) + "\" title=\"" +
-               html_escape(segment_title(s)) + "\" aria-label=\"" + html_escape(segment_title(s)) + "\"></a>";
+               html_escape(segment_title(s)) + "\" aria-label=\"" + html_escape(segment_title(s)) +
+               "\"></a>";
   }
   if (lo < 0) {
     char zero[120];
     const double y0 = kChartH - 3 - (0 - lo) / (hi - lo) * (kChartH - 6);
-    std::snprintf(zero, sizeof zero, "<line class=\"zero\" x1=\"0\" x2=\"1000\" y1=\"%.1f\" y2=\"%.1f\"/>", y0, y0);
+    std::snprintf(zero, sizeof zero,
+                  "<line class=\"zero\" x1=\"0\" x2=\"1000\" y1=\"%.1f\" y2=\"%.1f\"/>", y0, y0);
     svg += zero;
   }
-  if (series) svg += "<path class=\"line\" d=\"" + series_path(series->values, report.frame_times_s, axis, lo, hi) + "\"/>";
+  if (series)
+    svg += "<path class=\"line\" d=\"" +
+           series_path(series->values, report.frame_times_s, axis, lo, hi) + "\"/>";
   svg += "</svg>";
   const std::string description = metric_description(metric);
-  return "<div class=\"tl-label\" title=\"" + html_escape(description) + "\"><span class=\"metric\">" +
-         html_escape(metric) + "</span><span class=\"range\">" + (lo < 0 ? num(lo) + " to " : "max ") +
-         num(series ? hi : 0) + "</span></div><div class=\"tl-track\" data-metric=\"" + html_escape(metric) +
-         "\">" + svg + markers + "</div>\n";
+  return "<div class=\"tl-label\" title=\"" + html_escape(description) +
+         "\"><span class=\"metric\">" + html_escape(metric) + "</span><span class=\"range\">" +
+         (lo < 0 ? num(lo) + " to " : "max ") + num(shown_hi) +
+         "</span></div><div class=\"tl-track\" data-metric=\"" + html_escape(metric) + "\">" + svg +
+         markers + "</div>\n";
 }
 
 // Tick step of 1, 2 or 5 times a power of ten giving about `target` ticks.
@@ -124,26 +135,30 @@ std::string axis_row(const TimeAxis& axis, CssRules& css) {
   for (double t = std::ceil(axis.t0 / step) * step; t <= axis.t0 + axis.span_s + 1e-9; t += step) {
     char label[32];
     std::snprintf(label, sizeof label, step < 1 ? "%.1f" : "%.0f", t);
-    ticks += "<span class=\"tick " + css.add_class("tk", "left:" + pct(axis.fraction(t))) + "\">" + label + "</span>";
+    ticks += "<span class=\"tick " + css.add_class("tk", "left:" + pct(axis.fraction(t))) + "\">" +
+             label + "</span>";
   }
-  return "<div class=\"tl-label\"><span class=\"metric\">time (s)</span></div><div class=\"tl-axis\">" + ticks +
-         "</div>\n";
+  return "<div class=\"tl-label\"><span class=\"metric\">time (s)</span></div><div "
+         "class=\"tl-axis\">" +
+         ticks + "</div>\n";
 }
 
-std::string thumbs_row(const Report& report, const HtmlAssets& assets, const TimeAxis& axis, CssRules& css) {
+std::string thumbs_row(const HtmlAssets& assets, const TimeAxis& axis, CssRules& css) {
   if (assets.thumbnails.empty()) return "";
   std::string strip;
   for (size_t i = 0; i < assets.thumbnails.size(); ++i) {
     const Thumbnail& th = assets.thumbnails[i];
-    const double end = i + 1 < assets.thumbnails.size() ? assets.thumbnails[i + 1].t_s : axis.t0 + axis.span_s;
-    const std::string pos = css.add_class("th", "left:" + pct(axis.fraction(th.t_s)) + ";width:" +
-                                                   pct(axis.fraction(end) - axis.fraction(th.t_s)));
+    const double end =
+        i + 1 < assets.thumbnails.size() ? assets.thumbnails[i + 1].t_s : axis.t0 + axis.span_s;
+    const std::string pos =
+        css.add_class("th", "left:" + pct(axis.fraction(th.t_s)) +
+                                ";width:" + pct(axis.fraction(end) - axis.fraction(th.t_s)));
     strip += img_tag(th.image, "frame " + std::to_string(th.frame_index) + " at " + seconds(th.t_s),
                      "thumb " + pos);
   }
-  (void)report;
-  return "<div class=\"tl-label\"><span class=\"metric\">frames</span></div><div class=\"tl-thumbs\">" + strip +
-         "</div>\n";
+  return "<div class=\"tl-label\"><span class=\"metric\">frames</span></div><div "
+         "class=\"tl-thumbs\">" +
+         strip + "</div>\n";
 }
 
 }  // namespace
@@ -151,12 +166,14 @@ std::string thumbs_row(const Report& report, const HtmlAssets& assets, const Tim
 std::string timeline_section(const Report& report, const HtmlAssets& assets, CssRules& css) {
   const TimeAxis axis = time_axis(report);
   std::string rows;
-  rows += thumbs_row(report, assets, axis, css);
+  rows += thumbs_row(assets, axis, css);
   std::vector<std::string> metrics;
   for (const auto& s : report.series) metrics.push_back(s.metric);
   for (const auto& s : report.segments)  // a segment of a metric without a series still shows
-    if (std::find(metrics.begin(), metrics.end(), s.metric) == metrics.end()) metrics.push_back(s.metric);
-  for (const auto& m : metrics) rows += chart_row(m, report.find_series(m), report, assets, axis, css);
+    if (std::find(metrics.begin(), metrics.end(), s.metric) == metrics.end())
+      metrics.push_back(s.metric);
+  for (const auto& m : metrics)
+    rows += chart_row(m, report.find_series(m), report, assets, axis, css);
   rows += axis_row(axis, css);
 
   std::string bands;
@@ -167,17 +184,19 @@ std::string timeline_section(const Report& report, const HtmlAssets& assets, Css
   }
   return "<section class=\"card timeline\" aria-labelledby=\"h-timeline\">\n"
          "<h2 id=\"h-timeline\">Timeline</h2>\n"
-         "<p class=\"hint\">Point at or click a chart to read a frame's values. Keys: <kbd>n</kbd> / "
+         "<p class=\"hint\">Point at or click a chart to read a frame's values. Keys: <kbd>n</kbd> "
+         "/ "
          "<kbd>p</kbd> next / previous flagged segment, <kbd>\u2190</kbd> <kbd>\u2192</kbd> step "
-         "frames once a point is chosen, <kbd>Enter</kbd> on a segment opens its frame, <kbd>Esc</kbd> "
+         "frames once a point is chosen, <kbd>Enter</kbd> on a segment opens its frame, "
+         "<kbd>Esc</kbd> "
          "releases the cursor.</p>\n"
          "<div class=\"tl\" id=\"tl\">\n" +
          rows + "<div class=\"tl-overlay\" aria-hidden=\"true\">" + bands +
          "<div class=\"cursor\" id=\"tl-cursor\" hidden></div></div>\n</div>\n"
          "<div class=\"readout\" id=\"readout\" aria-live=\"polite\">" +
          std::to_string(report.frame_times_s.size()) + " frames, " + seconds(axis.span_s) + ", " +
-         std::to_string(report.segments.size()) + " segment" + (report.segments.size() == 1 ? "" : "s") +
-         ".</div>\n</section>\n";
+         std::to_string(report.segments.size()) + " segment" +
+         (report.segments.size() == 1 ? "" : "s") + ".</div>\n</section>\n";
 }
 
 }  // namespace framelint::page

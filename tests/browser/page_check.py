@@ -185,6 +185,9 @@ def check(chromium, page, screenshot):
         after_key = evaluate(browser, session, AFTER_KEY)
         browser.call('Runtime.evaluate', {'expression': 'document.activeElement.blur(); window.scrollTo(0, 0)'},
                      session)
+        if os.environ.get('PAGE_CHECK_MEDIA'):  # e.g. "print", to look at the print styles
+            browser.call('Emulation.setEmulatedMedia', {'media': os.environ['PAGE_CHECK_MEDIA']}, session)
+            dom['page_height'] = evaluate(browser, session, 'JSON.stringify(document.documentElement.scrollHeight)')
         height = min(int(dom['page_height']), 16000)
         browser.call('Emulation.setDeviceMetricsOverride',
                      {'width': 1280, 'height': height, 'deviceScaleFactor': 1, 'mobile': False}, session)

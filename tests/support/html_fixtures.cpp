@@ -20,14 +20,16 @@ cv::Mat world(const SyntheticScene& s) {
   cv::Mat m(s.height, w, CV_8UC3);
   for (int y = 0; y < s.height; ++y)
     for (int x = 0; x < w; ++x)
-      m.at<cv::Vec3b>(y, x) = cv::Vec3b(uint8_t(150 + 60 * y / s.height), uint8_t(120 + 40 * std::sin(x / 90.0)),
-                                        uint8_t(90 + 50 * x / w));
+      m.at<cv::Vec3b>(y, x) =
+          cv::Vec3b(uint8_t(150 + 60 * y / s.height), uint8_t(120 + 40 * std::sin(x / 90.0)),
+                    uint8_t(90 + 50 * x / w));
   cv::RNG rng(7);
   for (int i = 0; i < w / 18; ++i) {
     const cv::Point c(rng.uniform(0, w), rng.uniform(s.height / 3, s.height));
     const cv::Scalar colour(rng.uniform(30, 230), rng.uniform(30, 230), rng.uniform(30, 230));
     if (i % 2)
-      cv::rectangle(m, cv::Rect(c.x, c.y, rng.uniform(12, 40), rng.uniform(12, 50)), colour, cv::FILLED);
+      cv::rectangle(m, cv::Rect(c.x, c.y, rng.uniform(12, 40), rng.uniform(12, 50)), colour,
+                    cv::FILLED);
     else
       cv::circle(m, c, rng.uniform(6, 22), colour, cv::FILLED, cv::LINE_AA);
   }
@@ -37,19 +39,20 @@ cv::Mat world(const SyntheticScene& s) {
 }  // namespace
 
 cv::Mat SyntheticScene::render(int64_t frame) const {
-  static thread_local cv::Mat cached_world;
-  static thread_local const SyntheticScene* cached_for = nullptr;
-  if (cached_for != this || cached_world.empty()) cached_world = world(*this), cached_for = this;
+  if (world_cache_.empty()) world_cache_ = world(*this);
   const double offset = pan_px_per_frame * double(frame);
   cv::Mat out;
   const cv::Matx23d shift(1, 0, -offset, 0, 1, 0);
-  cv::warpAffine(cached_world, out, shift, {width, height}, cv::INTER_LINEAR, cv::BORDER_REPLICATE);
+  cv::warpAffine(world_cache_, out, shift, {width, height}, cv::INTER_LINEAR, cv::BORDER_REPLICATE);
   const cv::Point2d c = ball_centre(*this, frame);
   // The ball's colour drifts in the last third of the clip (what the
   // report's drift segment describes).
-  const double drift = frame > 2 * frame_count / 3 ? double(frame - 2 * frame_count / 3) / (frame_count / 3.0) : 0;
-  cv::circle(out, c, ball_radius, cv::Scalar(40 + 150 * drift, 60, 220 - 120 * drift), cv::FILLED, cv::LINE_AA);
-  cv::circle(out, c + cv::Point2d(-8, -8), ball_radius / 4, cv::Scalar(230, 230, 240), cv::FILLED, cv::LINE_AA);
+  const double drift =
+      frame > 2 * frame_count / 3 ? double(frame - 2 * frame_count / 3) / (frame_count / 3.0) : 0;
+  cv::circle(out, c, ball_radius, cv::Scalar(40 + 150 * drift, 60, 220 - 120 * drift), cv::FILLED,
+             cv::LINE_AA);
+  cv::circle(out, c + cv::Point2d(-8, -8), ball_radius / 4, cv::Scalar(230, 230, 240), cv::FILLED,
+             cv::LINE_AA);
   // Frames 118-136 carry a defect that motion cannot explain (what the
   // report's warp_error segment describes): a patch whose texture boils,
   // strongest at frame 127.
@@ -67,11 +70,12 @@ cv::Mat SyntheticScene::render(int64_t frame) const {
 
 cv::Rect SyntheticScene::ball_box(int64_t frame) const {
   const cv::Point2d c = ball_centre(*this, frame);
-  return cv::Rect(int(std::lround(c.x)) - ball_radius, int(std::lround(c.y)) - ball_radius, 2 * ball_radius,
-                  2 * ball_radius);
+  return cv::Rect(int(std::lround(c.x)) - ball_radius, int(std::lround(c.y)) - ball_radius,
+                  2 * ball_radius, 2 * ball_radius);
 }
 
-void SyntheticScene::make_pair(int64_t frame, FramePlanes& prev, FramePlanes& cur, FramePair& pair) const {
+void SyntheticScene::make_pair(int64_t frame, FramePlanes& prev, FramePlanes& cur,
+                               FramePair& pair) const {
   prev.index = frame - 1;
   prev.t_s = double(frame - 1) / fps;
   prev.bgr = render(frame - 1);
@@ -86,15 +90,19 @@ void SyntheticScene::make_pair(int64_t frame, FramePlanes& prev, FramePlanes& cu
   pair.valid.create(height, width, CV_8UC1);
   const cv::Point2d c_prev = ball_centre(*this, frame - 1), c_cur = ball_centre(*this, frame);
   const double r2 = double(ball_radius) * ball_radius;
-  auto in_ball = [&](double x, double y, cv::Point2d c) { return (x - c.x) * (x - c.x) + (y - c.y) * (y - c.y) <= r2; };
+  auto in_ball = [&](double x, double y, cv::Point2d c) {
+    return (x - c.x) * (x - c.x) + (y - c.y) * (y - c.y) <= r2;
+  };
   for (int y = 0; y < height; ++y)
     for (int x = 0; x < width; ++x) {
       const bool ball_now = in_ball(x, y, c_cur), ball_before = in_ball(x, y, c_prev);
       // Background moves left by the pan; the ball moves by its velocity.
-      const cv::Vec2f back = ball_now ? cv::Vec2f(-float(ball_px_per_frame.x), -float(ball_px_per_frame.y))
-                                      : cv::Vec2f(float(pan_px_per_frame), 0.f);
-      const cv::Vec2f fwd = ball_before ? cv::Vec2f(float(ball_px_per_frame.x), float(ball_px_per_frame.y))
-                                        : cv::Vec2f(-float(pan_px_per_frame), 0.f);
+      const cv::Vec2f back =
+          ball_now ? cv::Vec2f(-float(ball_px_per_frame.x), -float(ball_px_per_frame.y))
+                   : cv::Vec2f(float(pan_px_per_frame), 0.f);
+      const cv::Vec2f fwd = ball_before
+                                ? cv::Vec2f(float(ball_px_per_frame.x), float(ball_px_per_frame.y))
+                                : cv::Vec2f(-float(pan_px_per_frame), 0.f);
       pair.flow_backward.at<cv::Vec2f>(y, x) = back;
       pair.flow_forward.at<cv::Vec2f>(y, x) = fwd;
       // Occluded: background that the ball covered a frame ago, and the
@@ -105,8 +113,11 @@ void SyntheticScene::make_pair(int64_t frame, FramePlanes& prev, FramePlanes& cu
     }
   cv::Mat map(height, width, CV_32FC2);
   for (int y = 0; y < height; ++y)
-    for (int x = 0; x < width; ++x) map.at<cv::Vec2f>(y, x) = cv::Vec2f(float(x), float(y)) + pair.flow_backward.at<cv::Vec2f>(y, x);
-  cv::remap(prev.bgr, pair.warped_prev_bgr, map, cv::noArray(), cv::INTER_LINEAR, cv::BORDER_REPLICATE);
+    for (int x = 0; x < width; ++x)
+      map.at<cv::Vec2f>(y, x) =
+          cv::Vec2f(float(x), float(y)) + pair.flow_backward.at<cv::Vec2f>(y, x);
+  cv::remap(prev.bgr, pair.warped_prev_bgr, map, cv::noArray(), cv::INTER_LINEAR,
+            cv::BORDER_REPLICATE);
   pair.valid_fraction = cv::countNonZero(pair.valid) / double(width * height);
 }
 
@@ -125,14 +136,20 @@ Report synthetic_report(const SyntheticScene& scene, const std::string& clip_pat
   r.clip.pix_fmt = "yuv420p";
   r.settings = {{"preset", "balanced"}, {"working_long_side_px", scene.width}};
   const int n = scene.frame_count;
-  MetricSeries warp{"warp_error", {}}, occl{"occluded_pct", {}}, flicker{"flicker", {}}, drift{"drift", {}},
-      flash{"flash", {}};
+  MetricSeries warp{"warp_error", {}}, occl{"occluded_pct", {}}, flicker{"flicker", {}},
+      drift{"drift", {}}, flash{"flash", {}};
   for (int i = 0; i < n; ++i) {
     r.frame_times_s.push_back(i / scene.fps);
     const double wiggle = 0.5 + 0.5 * std::sin(i * 0.7);
-    warp.values.push_back(i == 0 ? kUndefined : 0.004 + 0.002 * wiggle + (i >= 118 && i <= 136 ? 0.05 * std::exp(-std::pow((i - 127) / 4.0, 2)) : 0));
+    warp.values.push_back(
+        i == 0 ? kUndefined
+               : 0.004 + 0.002 * wiggle +
+                     (i >= 118 && i <= 136 ? 0.05 * std::exp(-std::pow((i - 127) / 4.0, 2)) : 0));
     occl.values.push_back(i == 0 ? kUndefined : 3 + wiggle);
-    flicker.values.push_back(i == 0 ? kUndefined : 0.002 * std::sin(i * 0.3) + (i >= 200 && i <= 228 ? 0.02 * std::sin((i - 200) * 0.9) : 0));
+    flicker.values.push_back(
+        i == 0 ? kUndefined
+               : 0.002 * std::sin(i * 0.3) +
+                     (i >= 200 && i <= 228 ? 0.02 * std::sin((i - 200) * 0.9) : 0));
     drift.values.push_back(i > 2 * n / 3 ? 8.0 * (i - 2 * n / 3) / (n / 3.0) : 0.3 * wiggle);
     flash.values.push_back(i >= 58 && i <= 66 ? 4 : 0);
   }
@@ -158,29 +175,41 @@ Report synthetic_report(const SyntheticScene& scene, const std::string& clip_pat
     r.summary.metrics.push_back(m);
   }
   r.summary.coherence = 41.5;
-  r.summary.details["flash"] = {{"general_flashes", 3}, {"red_flashes", 0}, {"max_flashes_per_s", 4}, {"hazard", true}};
-  r.summary.details["flicker"] = {{"percent_flicker", 2.1}, {"flicker_index", 0.004}, {"dominant_hz", 4.3}};
+  r.summary.details["flash"] = {{"max_flashes_per_s", 4},
+                                {"general_max_flashes_per_s", 4},
+                                {"red_max_flashes_per_s", 0},
+                                {"hazard", true},
+                                {"limit_flashes_per_s", 3}};
+  r.summary.details["flicker"] = {
+      {"percent_flicker", 2.1}, {"flicker_index", 0.004}, {"dominant_hz", 4.3}};
   TrackedObject ball;
   ball.id = 1;
   ball.first_frame = 0;
   ball.last_frame = n - 1;
   ball.end_reason = "clip_end";
-  nlohmann::json boxes = nlohmann::json::array(), drift_rows = nlohmann::json::array();
-  for (int i = 0; i < n; ++i) {
+  // Sampled every 5 frames, laid out as the drift metric writes objects.
+  nlohmann::json frames = nlohmann::json::array(), boxes = nlohmann::json::array(),
+                 drift_values = nlohmann::json::array();
+  for (int i = 0; i < n; i += 5) {
     const cv::Rect b = scene.ball_box(i);
+    frames.push_back(i);
     boxes.push_back({i, b.x, b.y, b.width, b.height});
-    drift_rows.push_back({i, drift.values[i]});
+    drift_values.push_back(drift.values[i]);
   }
-  ball.detail = {{"boxes", boxes}, {"drift", drift_rows}, {"max_drift_de00", 7.3}, {"label", "<ball> & \"co\""}};
+  ball.detail = {{"kind", "moving"},          {"frames", frames},  {"boxes", boxes},
+                 {"drift", drift_values},     {"peak_drift", 7.3}, {"drift_rate_per_s", 0.61},
+                 {"label", "<ball> & \"co\""}};
   r.objects.push_back(ball);
   r.verdict.status = Verdict::reject;
   r.verdict.reasons = {"warp_error peak 0.056 >= 0.03 (reject) at 3.93-4.53 s",
-                       "drift 7.3 >= 5 (reject) at 8.33-9.97 s", "flash: 4 flashes in one second > 3 (review)"};
+                       "drift 7.3 >= 5 (reject) at 8.33-9.97 s",
+                       "flash: 4 flashes in one second > 3 (review)"};
   r.notes = {"Invented report for tests; the note's <tags> & \"quotes\" must stay text."};
   return r;
 }
 
-HtmlAssets synthetic_assets(const Report& report, const SyntheticScene& scene, const HtmlOptions& options) {
+HtmlAssets synthetic_assets(const Report& report, const SyntheticScene& scene,
+                            const HtmlOptions& options) {
   HtmlAssets assets;
   ThumbnailCollector thumbs;
   for (int i = 0; i < scene.frame_count; i += 1) {
@@ -200,10 +229,11 @@ HtmlAssets synthetic_assets(const Report& report, const SyntheticScene& scene, c
       const TrackedObject* o = nullptr;
       for (const auto& obj : report.objects)
         if (obj.id == look.object_id) o = &obj;
-      if (auto first = o ? object_first_box(*o) : std::nullopt) {
+      if (auto first = o ? object_first_box(*o, {scene.width, scene.height}) : std::nullopt) {
         const cv::Mat frame0 = scene.render(first->frame);
         cv::Mat crop;
-        cv::resize(frame0(first->box_px & cv::Rect(0, 0, frame0.cols, frame0.rows)), crop, {112, 112});
+        cv::resize(frame0(first->box_px & cv::Rect(0, 0, frame0.cols, frame0.rows)), crop,
+                   {112, 112});
         look.first_look = encode_jpeg(crop, options.jpeg_quality);
       }
     }

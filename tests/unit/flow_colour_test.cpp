@@ -19,8 +19,9 @@ using namespace framelint;
 namespace {
 ::testing::AssertionResult same(Rgb8 got, Rgb8 want) {
   if (got == want) return ::testing::AssertionSuccess();
-  return ::testing::AssertionFailure() << "got (" << int(got.r) << "," << int(got.g) << "," << int(got.b)
-                                       << ") want (" << int(want.r) << "," << int(want.g) << "," << int(want.b) << ")";
+  return ::testing::AssertionFailure()
+         << "got (" << int(got.r) << "," << int(got.g) << "," << int(got.b) << ") want ("
+         << int(want.r) << "," << int(want.g) << "," << int(want.b) << ")";
 }
 }  // namespace
 
@@ -28,15 +29,15 @@ TEST(FlowColour, WheelHasThePublishedSegments) {
   const auto& w = flow_colour_wheel();
   ASSERT_EQ(w.size(), 15u + 6 + 4 + 11 + 13 + 6);
   // Each segment starts on a primary or secondary colour.
-  EXPECT_TRUE(same(w[0], {255, 0, 0}));        // red
-  EXPECT_TRUE(same(w[15], {255, 255, 0}));     // yellow, after RY = 15
-  EXPECT_TRUE(same(w[21], {0, 255, 0}));       // green, after YG = 6
-  EXPECT_TRUE(same(w[25], {0, 255, 255}));     // cyan, after GC = 4
-  EXPECT_TRUE(same(w[36], {0, 0, 255}));       // blue, after CB = 11
-  EXPECT_TRUE(same(w[49], {255, 0, 255}));     // magenta, after BM = 13
+  EXPECT_TRUE(same(w[0], {255, 0, 0}));     // red
+  EXPECT_TRUE(same(w[15], {255, 255, 0}));  // yellow, after RY = 15
+  EXPECT_TRUE(same(w[21], {0, 255, 0}));    // green, after YG = 6
+  EXPECT_TRUE(same(w[25], {0, 255, 255}));  // cyan, after GC = 4
+  EXPECT_TRUE(same(w[36], {0, 0, 255}));    // blue, after CB = 11
+  EXPECT_TRUE(same(w[49], {255, 0, 255}));  // magenta, after BM = 13
   // Inside a segment one channel ramps by floor(255 i / n).
-  EXPECT_TRUE(same(w[1], {255, 17, 0}));        // RY i=1: 255/15 = 17
-  EXPECT_TRUE(same(w[54], {255, 0, 43}));       // MR i=5: 255 - floor(1275/6) = 255 - 212
+  EXPECT_TRUE(same(w[1], {255, 17, 0}));   // RY i=1: 255/15 = 17
+  EXPECT_TRUE(same(w[54], {255, 0, 43}));  // MR i=5: 255 - floor(1275/6) = 255 - 212
 }
 
 TEST(FlowColour, UnitVectorsAtTheFourAxes) {

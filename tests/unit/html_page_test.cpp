@@ -4,6 +4,9 @@
 // tests/support/html_fixtures.* (only the page writer is under test).
 #include <gtest/gtest.h>
 
+#include <unistd.h>
+
+#include <filesystem>
 #include <fstream>
 #include <regex>
 
@@ -42,7 +45,8 @@ struct PageFixture : ::testing::Test {
     static const Shared s = [] {
       Shared s;
       s.options.facts = {{"prompt", fixtures::kHostilePrompt}};
-      s.report = fixtures::synthetic_report(s.scene, std::string("clips/") + fixtures::kHostileClipName);
+      s.report =
+          fixtures::synthetic_report(s.scene, std::string("clips/") + fixtures::kHostileClipName);
       s.assets = fixtures::synthetic_assets(s.report, s.scene, s.options);
       s.html = render_clip_page(s.report, s.assets, s.options);
       return s;
@@ -70,7 +74,8 @@ TEST_F(PageFixture, InputStringsAreEscaped) {
   EXPECT_EQ(html.find("<script>alert"), std::string::npos);
   EXPECT_EQ(html.find("<b>box</b>"), std::string::npos);
   EXPECT_NE(html.find("&lt;img src=x onerror=alert(1)&gt;.mp4"), std::string::npos);
-  EXPECT_NE(html.find("A &quot;red&quot; ball &amp; a &lt;b&gt;box&lt;/b&gt;; it&#39;s"), std::string::npos);
+  EXPECT_NE(html.find("A &quot;red&quot; ball &amp; a &lt;b&gt;box&lt;/b&gt;; it&#39;s"),
+            std::string::npos);
   EXPECT_EQ(count(html, "<script"), 2u);  // the data block and the page script, nothing else
 }
 
@@ -82,19 +87,30 @@ TEST_F(PageFixture, SelfContainedWithAPolicyThatPinsItsOwnStyleAndScript) {
   const std::string script = between(html, "<script>", "</script>");
   ASSERT_FALSE(style.empty());
   ASSERT_FALSE(script.empty());
-  const std::string policy = between(html, "http-equiv=\"Content-Security-Policy\" content=\"", "\"");
+  const std::string policy =
+      between(html, "http-equiv=\"Content-Security-Policy\" content=\"", "\"");
   EXPECT_EQ(policy, content_security_policy(style, script));
-  EXPECT_EQ(html.find(" style=\""), std::string::npos) << "style attributes would need 'unsafe-inline'";
+  EXPECT_EQ(html.find(" style=\""), std::string::npos)
+      << "style attributes would need 'unsafe-inline'";
   EXPECT_EQ(count(html, "<style>"), 1u);
 }
 
 TEST_F(PageFixture, FlashesBringThePhotosensitiveCaution) {
   EXPECT_NE(html.find("screening aid, not a certification"), std::string::npos);
   EXPECT_NE(html.find("photosensitive epilepsy"), std::string::npos);
+  // A calm clip's flash summary still names the limit; that is not a flash.
   Report calm = report;
-  calm.summary.details.erase("flash");
+  calm.summary.details["flash"] = {{"max_flashes_per_s", 0},
+                                   {"general_max_flashes_per_s", 0},
+                                   {"red_max_flashes_per_s", 0},
+                                   {"hazard", false},
+                                   {"limit_flashes_per_s", 3}};
   for (auto& v : calm.find_series("flash")->values) v = 0;
-  EXPECT_EQ(render_clip_page(calm, assets, options).find("photosensitive epilepsy"), std::string::npos);
+  EXPECT_EQ(render_clip_page(calm, assets, options).find("photosensitive epilepsy"),
+            std::string::npos);
+  calm.find_series("flash")->values[70] = 1;  // one flash in a window: caution, no hazard
+  EXPECT_NE(render_clip_page(calm, assets, options).find("photosensitive epilepsy"),
+            std::string::npos);
 }
 
 TEST_F(PageFixture, TenSecondPageStaysSmall) {
@@ -112,7 +128,8 @@ TEST_F(PageFixture, DriftPanelShowsTheObjectsFirstAndCurrentLook) {
   EXPECT_FALSE(it->objects[0].current_look.empty());
   EXPECT_FALSE(it->current_with_boxes.empty());
   EXPECT_NE(html.find("Object #1: first look (frame\u00a00)"), std::string::npos);
-  EXPECT_NE(html.find("&lt;ball&gt; &amp; &quot;co&quot;"), std::string::npos);  // detail strings escaped
+  EXPECT_NE(html.find("&lt;ball&gt; &amp; &quot;co&quot;"),
+            std::string::npos);  // detail strings escaped
 }
 
 TEST_F(PageFixture, PageWithoutPicturesOrSegmentsStillRenders) {
@@ -129,7 +146,9 @@ TEST_F(PageFixture, PageWithoutPicturesOrSegmentsStillRenders) {
 
 TEST(PanelFrames, WorstFirstWithoutRepeatsAndCapped) {
   Report r;
-  auto seg = [&](int64_t peak, Severity s, int64_t len) { r.segments.push_back({"m", peak, peak + len, 0, 0, 1, peak, s}); };
+  auto seg = [&](int64_t peak, Severity s, int64_t len) {
+    r.segments.push_back({"m", peak, peak + len, 0, 0, 1, peak, s});
+  };
   seg(10, Severity::info, 50);
   seg(20, Severity::review, 2);
   seg(30, Severity::reject, 1);
@@ -148,7 +167,8 @@ TEST(ThumbnailCollector, KeepsABoundedEvenlySpacedStrip) {
   const auto& kept = thumbs.thumbnails();
   EXPECT_LE(kept.size(), 16u);
   EXPECT_GE(kept.size(), 8u);
-  for (size_t k = 0; k < kept.size(); ++k) EXPECT_EQ(kept[k].frame_index, int64_t(k) * thumbs.interval_frames());
+  for (size_t k = 0; k < kept.size(); ++k)
+    EXPECT_EQ(kept[k].frame_index, int64_t(k) * thumbs.interval_frames());
   EXPECT_EQ(kept[0].image.mime, "image/jpeg");
 }
 
@@ -157,11 +177,49 @@ TEST(ObjectBoxes, ToleratesMalformedDetail) {
   o.first_frame = 2;
   o.last_frame = 9;
   o.detail = {{"boxes", {{2, 1, 2, 3, 4}, "junk", {3, 1}, {5, 10, 20, 30, 40}, {6, 0, 0, -1, 4}}}};
-  ASSERT_EQ(object_boxes(o).size(), 2u);
-  EXPECT_EQ(object_box_at(o, 4), cv::Rect(1, 2, 3, 4));
-  EXPECT_EQ(object_box_at(o, 7), cv::Rect(10, 20, 30, 40));
-  EXPECT_FALSE(object_box_at(o, 1).has_value());
-  EXPECT_FALSE(object_box_at(o, 10).has_value());
+  const cv::Size size(100, 50);
+  ASSERT_EQ(object_boxes(o, size).size(), 2u);
+  EXPECT_EQ(object_box_at(o, 4, size), cv::Rect(1, 2, 3, 4));
+  EXPECT_EQ(object_box_at(o, 7, size), cv::Rect(10, 20, 30, 40));
+  EXPECT_FALSE(object_box_at(o, 1, size).has_value());
+  EXPECT_FALSE(object_box_at(o, 10, size).has_value());
   o.detail = {{"boxes", "not a list"}};
-  EXPECT_TRUE(object_boxes(o).empty());
+  EXPECT_TRUE(object_boxes(o, size).empty());
+}
+
+// The drift metric's own layout (analyzer/drift/drift_report.cpp): sampled
+// frames, boxes with nulls, fractions of the frame, drift aligned with frames.
+TEST(ObjectBoxes, ReadsTheDriftMetricsLayout) {
+  TrackedObject o;
+  o.first_frame = 10;
+  o.last_frame = 40;
+  o.detail = {
+      {"frames", {10, 20, 30}},
+      {"boxes", {{10, 5, 5, 10, 10}, {20, nullptr, nullptr, nullptr, nullptr}, {30, 7, 5, 10, 10}}},
+      {"boxes_frac", {{10, 0.1, 0.2, 0.2, 0.4}, {30, 0.5, 0.2, 0.2, 0.4}}},
+      {"drift", {0.0, nullptr, 2.5}}};
+  // Fractions win: they place the box on a frame of any size.
+  EXPECT_EQ(object_box_at(o, 12, {200, 100}), cv::Rect(20, 20, 40, 40));
+  EXPECT_EQ(object_box_at(o, 35, {100, 50}), cv::Rect(50, 10, 20, 20));
+  EXPECT_EQ(object_drift_at(o, 25), 0.0);
+  EXPECT_EQ(object_drift_at(o, 30), 2.5);
+  EXPECT_EQ(object_drift_samples(o).size(), 2u);
+  o.detail.erase("boxes_frac");
+  EXPECT_EQ(object_box_at(o, 35, {200, 100}), cv::Rect(7, 5, 10, 10));
+}
+
+TEST(WriteHtmlReport, UnreadableClipStillGetsAPageThatSaysWhy) {
+  fixtures::SyntheticScene scene;
+  const auto dir =
+      std::filesystem::temp_directory_path() / ("framelint-html-" + std::to_string(::getpid()));
+  std::filesystem::create_directories(dir);
+  Report r = fixtures::synthetic_report(scene, (dir / "gone.mp4").string());
+  const std::string page = (dir / "gone.html").string();
+  ASSERT_TRUE(write_html_report(r, page, AnalysisSettings{}, HtmlOptions{}, nullptr).ok());
+  std::ifstream in(page);
+  const std::string html((std::istreambuf_iterator<char>(in)), std::istreambuf_iterator<char>());
+  EXPECT_NE(html.find("Pictures are missing: "), std::string::npos);
+  EXPECT_NE(html.find("gone.mp4"), std::string::npos);
+  EXPECT_EQ(count(html, "class=\"seg-marker "), r.segments.size());
+  std::filesystem::remove_all(dir);
 }
