@@ -12,6 +12,7 @@
 // Also writes `luminance`, the frame's plain mean relative luminance.
 #include <cmath>
 
+#include "analyzer/metrics/flicker_statistics.h"
 #include "analyzer/metrics/image_error.h"
 #include "analyzer/metrics/metric.h"
 #include "analyzer/metrics/shot_boundaries.h"
@@ -67,6 +68,30 @@ class FlickerMetric final : public Metric {
       begin = end;
     }
     clear_across_boundaries(v, boundary);
+    add_statistics(track, boundary, report);
+  }
+
+ private:
+  // Clip-level percent flicker, flicker index (IES) and dominant frequency
+  // (analyzer/metrics/flicker_statistics.h) of the motion-compensated track,
+  // joined across shot boundaries (no step at a cut) so a cut's jump in
+  // level is not read as flicker.
+  static void add_statistics(const std::vector<double>& track, const std::vector<bool>& boundary,
+                             Report& report) {
+    std::vector<double> joined(track);
+    double offset = 0;
+    for (size_t t = 1; t < joined.size(); ++t) {
+      if (t < boundary.size() && boundary[t]) offset += track[t - 1] - track[t];
+      joined[t] = track[t] + offset;
+    }
+    const FlickerStatistics s = flicker_statistics(joined, report.frame_times_s, kMedianWindow_s);
+    auto number = [](double x) { return std::isnan(x) ? nlohmann::json() : nlohmann::json(x); };
+    report.summary.details["flicker"] = {
+        {"percent_flicker", number(s.percent_flicker)},
+        {"flicker_index", number(s.flicker_index)},
+        {"dominant_frequency_hz", number(s.dominant.frequency_hz)},
+        {"dominant_power_share", number(s.dominant.power_share)},
+        {"series", "motion-compensated mean relative luminance, slow change removed"}};
   }
 };
 
