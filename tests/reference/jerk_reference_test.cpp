@@ -1,0 +1,69 @@
+// jerk on real image content (opencv-doc examples/data/baboon.jpg and
+// fruits.jpg), panned by a camera path we know exactly: the flow, the
+// RANSAC camera fit and the metric run as in a real analysis.
+#include <gtest/gtest.h>
+
+#include <cmath>
+
+#include <opencv2/imgcodecs.hpp>
+
+#include "analyzer/segments/segmenter.h"
+#include "support/detectors_metrics.h"
+
+using namespace framelint;
+using namespace framelint::testing;
+
+namespace {
+
+const char* kData = "/usr/share/doc/opencv-doc/examples/data/";
+
+// A 256x192 view panning over the image at (3, 1) px per frame; frame
+// `displaced` (if >= 0) sits `offset` px further right.
+std::vector<FramePlanes> pan(const cv::Mat& image, double fps, int n, int displaced, int offset) {
+  std::vector<FramePlanes> frames;
+  for (int t = 0; t < n; ++t) {
+    const int x = 20 + 3 * t + (t == displaced ? offset : 0), y = 30 + t;
+    frames.push_back(planes_of(t, t / fps, image(cv::Rect(x, y, 256, 192)).clone()));
+  }
+  return frames;
+}
+
+}  // namespace
+
+// The jerk segment rule proposed for the default policy (docs/detectors.md):
+// enter at 5 diagonals/s^2 or the clip's median + 8 MAD-sigmas if higher.
+SegmentRule jerk_rule() {
+  SegmentRule rule;
+  rule.enter = 5;
+  rule.leave = 2;
+  rule.min_frames = 1;
+  rule.merge_gap_frames = 2;
+  rule.baseline_k = 8;
+  rule.review_peak = 5;
+  rule.reject_peak = 20;
+  return rule;
+}
+
+TEST(JerkReference, SmoothPanHasNoSegmentDisplacedFrameHasOneAtThatFrame) {
+  for (const char* name : {"baboon.jpg", "fruits.jpg"}) {
+    const cv::Mat image = cv::imread(std::string(kData) + name, cv::IMREAD_COLOR);
+    if (image.empty()) GTEST_SKIP() << "opencv-doc image " << name << " not installed";
+    auto smooth_metric = registered_metric("jerk");
+    const Report smooth = run_metric(*smooth_metric, pan(image, 24, 40, -1, 0));
+    const auto& sv = smooth.find_series("jerk")->values;
+    EXPECT_TRUE(find_segments("jerk", sv, smooth.frame_times_s, jerk_rule()).empty()) << name;
+
+    // Frame 20 displaced by 8 px on a 256x192 view (diagonal 320 px) at
+    // 24 fps: 2 * 8 * 24^2 / 320 = 28.8 diagonals/s^2 at frame 20.
+    auto jolt_metric = registered_metric("jerk");
+    const Report jolt = run_metric(*jolt_metric, pan(image, 24, 40, 20, 8));
+    const auto& jv = jolt.find_series("jerk")->values;
+    EXPECT_NEAR(jv[20], 28.8, 0.1 * 28.8) << name;
+    const auto segments = find_segments("jerk", jv, jolt.frame_times_s, jerk_rule());
+    ASSERT_EQ(segments.size(), 1u) << name;
+    EXPECT_EQ(segments[0].peak_frame, 20) << name;
+    EXPECT_LE(segments[0].start_frame, 20);
+    EXPECT_GE(segments[0].end_frame, 20);
+    EXPECT_EQ(segments[0].severity, Severity::reject);
+  }
+}
