@@ -48,6 +48,10 @@ class SwingTracker {
   // sample, or none. Each swing is reported at most once.
   Swing update(const SwingSample& s, const SwingRule& rule);
 
+  // The current swing: the extreme it left and the furthest value reached.
+  float origin() const { return origin_; }
+  float extreme() const { return extreme_; }
+
  private:
   bool qualifies(const SwingRule& rule) const;
 
