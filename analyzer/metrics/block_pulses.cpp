@@ -75,10 +75,20 @@ void BlockPulseTracker::add(int64_t frame, double t_s, std::span<const float> ch
       k.turn_t_s = t_s;
       k.turn_origin = k.swings.origin();
     }
-    if (k.open_pulse >= 0 && (turned || k.swings.extreme() != extreme_before)) {
+    if (k.open_pulse < 0) continue;
+    // The swing back is followed until it has come all the way back (as
+    // far as the first swing went) or the pulse time is up: a level that
+    // keeps drifting afterwards is not part of the pulse.
+    if (t_s - k.turn_t_s > max_pulse_s_ + 1e-9) {
+      k.open_pulse = -1;
+      continue;
+    }
+    if (turned || k.swings.extreme() != extreme_before) {
       Pulse& p = pulses_[k.open_pulse];
+      const float back = std::fabs(k.swings.extreme() - k.swings.origin());
       p.end_frame = frame;
-      p.amplitude = std::min<double>(k.open_first, std::fabs(k.swings.extreme() - k.swings.origin()));
+      p.amplitude = std::min(k.open_first, back);
+      if (back >= k.open_first) k.open_pulse = -1;
     }
   }
 }

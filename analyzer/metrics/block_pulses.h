@@ -39,7 +39,9 @@ struct Pulse {
 };
 
 // A pulse is recorded when the swing back is confirmed; while that swing
-// goes on, its amplitude and end frame follow it.
+// goes on - until it has come as far back as the first swing went, and for
+// at most max_pulse_s after it was confirmed - its amplitude and end frame
+// follow it.
 class BlockPulseTracker {
  public:
   BlockPulseTracker(int blocks, double min_swing, double max_pulse_s);

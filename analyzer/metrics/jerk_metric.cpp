@@ -7,8 +7,11 @@
 // steady handheld clip from flagging every frame.
 //
 // Pairs whose camera fit is weak (few RANSAC inliers: mostly independent
-// motion, a cut, a blank frame) have no trustworthy camera motion; the frames
-// that need them stay undefined rather than showing a fit failure as a jolt.
+// motion; few consistent flow vectors) or that the `cut` metric calls a cut
+// have no trustworthy camera motion; the frames that need them stay
+// undefined rather than showing a fit failure or a scene change as a jolt.
+// (A cut between two near-blank frames can fit an identity homography with
+// many inliers, hence the cut check.)
 #include <cmath>
 
 #include "analyzer/metrics/camera_path.h"
@@ -22,6 +25,13 @@ namespace {
 // at the working size) for the pair's camera motion to count. Half is the
 // usual sense of "dominant" motion (common practice).
 constexpr double kMinInlierFraction = 0.5;
+// Share of pixels passing the forward-backward check below which the flow,
+// and so the fit, is not trusted.
+constexpr double kMinValidFraction = 0.3;
+// The cut metric's value from which a pair counts as a cut (its scale:
+// sqrt(inconsistent share x histogram distance); 0.5 is where the pipeline's
+// tests put a cut).
+constexpr double kCutLevel = 0.5;
 
 class JerkMetric final : public Metric {
  public:
@@ -32,13 +42,17 @@ class JerkMetric final : public Metric {
   void observe_in_order(const FramePair& pair, std::span<double>) override {
     frame_size_ = pair.cur->bgr.size();
     if (steps_.empty()) steps_.emplace_back();  // frame 0 has no pair
-    const bool valid = pair.camera_inlier_fraction >= kMinInlierFraction;
+    const bool valid = pair.camera_inlier_fraction >= kMinInlierFraction &&
+                       pair.valid_fraction >= kMinValidFraction;
     steps_.push_back(camera_step(pair.camera_homography, frame_size_, pair.dt_s, valid));
   }
 
   void finish(Report& report) override {
     MetricSeries* series = report.find_series("jerk");
     if (!series) return;
+    if (const MetricSeries* cut = report.find_series("cut"))
+      for (size_t t = 1; t < steps_.size() && t < cut->values.size(); ++t)
+        if (cut->values[t] >= kCutLevel) steps_[t].valid = false;
     const std::vector<double> jerk = camera_jerk(steps_, frame_size_);
     for (size_t i = 0; i < series->values.size(); ++i)
       series->values[i] = i < jerk.size() ? jerk[i] : kUndefined;

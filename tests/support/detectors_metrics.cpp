@@ -27,7 +27,8 @@ PairFiller real_pairs(Preset preset) {
   };
 }
 
-Report run_metric(Metric& metric, const std::vector<FramePlanes>& frames, const PairFiller& fill) {
+Report run_metric(Metric& metric, const std::vector<FramePlanes>& frames, const PairFiller& fill,
+                  const std::function<void(Report&)>& before_finish) {
   Report report;
   const auto cols = metric.columns();
   for (const auto& c : cols) report.series.push_back({c, std::vector<double>(frames.size(), kUndefined)});
@@ -51,6 +52,7 @@ Report run_metric(Metric& metric, const std::vector<FramePlanes>& frames, const 
     }
     store(i);
   }
+  if (before_finish) before_finish(report);
   metric.finish(report);
   return report;
 }

@@ -25,8 +25,9 @@ PairFiller real_pairs(Preset preset = Preset::balanced);
 
 // Runs `metric` over the frames as the pipeline does (measure_first,
 // measure_pair, observe_in_order in order, finish) and returns the report
-// holding its columns.
+// holding its columns. `before_finish` may add other metrics' series.
 Report run_metric(Metric& metric, const std::vector<FramePlanes>& frames,
-                  const PairFiller& fill = real_pairs());
+                  const PairFiller& fill = real_pairs(),
+                  const std::function<void(Report&)>& before_finish = {});
 
 }  // namespace framelint::testing

@@ -20,7 +20,8 @@ const double kDiagonal = 400;
 // Frames at fps whose pair (t-1, t) moves the camera by step(t) (a
 // homography); inlier(t) is its fit quality.
 Report run_path(double fps, int n, const std::function<cv::Matx33d(int)>& step,
-                const std::function<double(int)>& inlier = [](int) { return 1.0; }) {
+                const std::function<double(int)>& inlier = [](int) { return 1.0; },
+                const std::function<void(Report&)>& before_finish = {}) {
   std::vector<FramePlanes> frames;
   for (int i = 0; i < n; ++i) frames.push_back(planes_of(i, i / fps, cv::Mat(kFrame, CV_8UC3, cv::Scalar::all(80))));
   auto metric = registered_metric("jerk");
@@ -28,7 +29,8 @@ Report run_path(double fps, int n, const std::function<cv::Matx33d(int)>& step,
   return run_metric(*metric, frames, [&](const FramePlanes&, const FramePlanes& cur, FramePair& p) {
     p.camera_homography = step(static_cast<int>(cur.index));
     p.camera_inlier_fraction = inlier(static_cast<int>(cur.index));
-  });
+    p.valid_fraction = 0.9;
+  }, before_finish);
 }
 
 cv::Matx33d shift(double dx, double dy) { return {1, 0, dx, 0, 1, dy, 0, 0, 1}; }
@@ -101,6 +103,21 @@ TEST(JerkMetric, WeakCameraFitsLeaveFramesUndefined) {
   EXPECT_TRUE(std::isnan(v[8]));  // needs pair 8
   EXPECT_FALSE(std::isnan(v[9]));
   EXPECT_EQ(r.summary.details.at("jerk").at("camera_fit_pairs"), 18);
+}
+
+TEST(JerkMetric, PairsTheCutMetricCallsACutLeaveFramesUndefined) {
+  // A jump between two blank frames can fit an identity homography with
+  // every sample an inlier; the cut series (0.5 and above) rules it out.
+  const Report r = run_path(24, 20, [](int t) { return t == 10 ? shift(0, 0) : shift(3, 0); },
+                            [](int) { return 1.0; }, [](Report& report) {
+                              std::vector<double> cut(20, 0.01);
+                              cut[10] = 0.7;
+                              report.series.push_back({"cut", cut});
+                            });
+  const auto& v = r.find_series("jerk")->values;
+  EXPECT_TRUE(std::isnan(v[9]));
+  EXPECT_TRUE(std::isnan(v[10]));
+  EXPECT_NEAR(v[11], 0, 1e-9);
 }
 
 TEST(CameraPath, HomographyToInfinityIsInvalid) {
