@@ -6,6 +6,26 @@
 
 namespace framelint {
 
+namespace {
+
+// The median change if at least three quarters of the pixels move the same
+// way (the quartile on the far side has the median's sign), else 0: a
+// brightness pulse lifts or lowers a whole region, while a mouth opening or
+// an object turning changes part of a block and leaves the rest.
+float uniform_change(std::vector<float>& diffs) {
+  const auto at = [&](size_t k) {
+    std::nth_element(diffs.begin(), diffs.begin() + k, diffs.end());
+    return diffs[k];
+  };
+  const size_t n = diffs.size();
+  const float median = at(n / 2);
+  if (median > 0) return at(n / 4) > 0 ? median : 0.0f;
+  if (median < 0) return at(n - 1 - n / 4) < 0 ? median : 0.0f;
+  return 0.0f;
+}
+
+}  // namespace
+
 std::vector<float> block_luminance_changes(const cv::Mat& cur, const cv::Mat& warped_prev,
                                            const cv::Mat& valid, int cols, int rows) {
   std::vector<float> out(static_cast<size_t>(cols) * rows, std::numeric_limits<float>::quiet_NaN());
@@ -24,9 +44,7 @@ std::vector<float> block_luminance_changes(const cv::Mat& cur, const cv::Mat& wa
       }
       const size_t area = static_cast<size_t>(y1 - y0) * (x1 - x0);
       if (diffs.empty() || 2 * diffs.size() < area) continue;
-      auto mid = diffs.begin() + diffs.size() / 2;
-      std::nth_element(diffs.begin(), mid, diffs.end());
-      out[static_cast<size_t>(by) * cols + bx] = *mid;
+      out[static_cast<size_t>(by) * cols + bx] = uniform_change(diffs);
     }
   }
   return out;

@@ -2,7 +2,10 @@
 // explain it. The frame is cut into a grid of blocks; for each pair, each
 // block's motion-compensated luminance change is the median over its
 // consistent pixels of Y_t - W(Y_{t-1}) (relative luminance; the median so a
-// few misaligned pixels at a moving edge do not count). The change common to
+// few misaligned pixels at a moving edge do not count), kept only when at
+// least three quarters of those pixels change the same way (a pulse of light
+// lifts or lowers a whole region; a mouth opening or a turning object
+// changes part of a block), else 0. The change common to
 // the whole frame (the median over blocks) is removed, as global flicker is
 // the `flicker` metric's business. Each block's changes add up to a level
 // (its brightness beyond what motion carries), whose peaks and valleys are

@@ -27,6 +27,18 @@ TEST(BlockChanges, MedianPerBlockOverValidPixelsOnly) {
   EXPECT_NEAR(c[3], 0.0, 1e-6);
 }
 
+TEST(BlockChanges, OnlyChangesShapedLikeLightCount) {
+  // 60% of a block darkens (a mouth opening, say) and the rest stays: the
+  // median moves, but a quarter of the pixels do not follow, so 0.
+  cv::Mat cur(32, 32, CV_32F, cv::Scalar(0.30)), prev = cur.clone();
+  cur(cv::Rect(0, 0, 32, 19)) -= 0.1;
+  EXPECT_EQ(block_luminance_changes(cur, prev, cv::Mat(), 1, 1)[0], 0.0f);
+  // The whole block darkening in proportion to its luminance counts.
+  cv::Mat textured(32, 32, CV_32F);
+  cv::randu(textured, 0.05, 0.6);
+  EXPECT_NEAR(block_luminance_changes(textured * 0.8, textured, cv::Mat(), 1, 1)[0], -0.065, 0.02);
+}
+
 TEST(BlockChanges, CommonChangeIsRemoved) {
   std::vector<float> c = {0.03f, 0.03f, 0.08f, NAN, 0.03f};
   EXPECT_FLOAT_EQ(remove_common_change(c), 0.03f);
