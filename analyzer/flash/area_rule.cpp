@@ -61,4 +61,49 @@ AreaResult max_flashes_over_area(const cv::Mat& flash_counts, cv::Size field) {
   return result;
 }
 
+cv::Mat cells_in_dense_fields(const cv::Mat& same_way01, const cv::Mat& other_way01,
+                              cv::Size field) {
+  const cv::Mat& mask01 = same_way01;
+  cv::Mat out = cv::Mat::zeros(mask01.size(), CV_8UC1);
+  field.width = std::min(field.width, mask01.cols);
+  field.height = std::min(field.height, mask01.rows);
+  const double limit = kAreaFraction * field.area();
+  if (cv::countNonZero(mask01) <= limit) return out;
+  cv::Mat sum, other;
+  cv::integral(mask01, sum, CV_32S);
+  cv::integral(other_way01, other, CV_32S);
+  // Field positions (top-left corners) where the rule is met...
+  const int px = mask01.cols - field.width + 1, py = mask01.rows - field.height + 1;
+  cv::Mat dense = cv::Mat::zeros(py, px, CV_8UC1);
+  const int w = field.width, h = field.height;
+  for (int y = 0; y < py; ++y) {
+    const int *top = sum.ptr<int>(y), *bottom = sum.ptr<int>(y + h);
+    const int *otop = other.ptr<int>(y), *obottom = other.ptr<int>(y + h);
+    uint8_t* d = dense.ptr<uint8_t>(y);
+    for (int x = 0; x < px; ++x) {
+      const int same = bottom[x + w] - bottom[x] - top[x + w] + top[x];
+      const int opposite = obottom[x + w] - obottom[x] - otop[x + w] + otop[x];
+      d[x] = same - opposite > limit;
+    }
+  }
+  // ...and the cells those fields cover: a cell (cx, cy) is covered when a
+  // dense corner lies in [cx - w + 1, cx] x [cy - h + 1, cy].
+  cv::Mat corners;
+  cv::integral(dense, corners, CV_32S);
+  for (int y = 0; y < mask01.rows; ++y) {
+    const int y0 = std::max(0, y - field.height + 1), y1 = std::min(py, y + 1);
+    const uint8_t* m = mask01.ptr<uint8_t>(y);
+    uint8_t* o = out.ptr<uint8_t>(y);
+    if (y0 >= y1) continue;
+    const int* top = corners.ptr<int>(y0);
+    const int* bottom = corners.ptr<int>(y1);
+    for (int x = 0; x < mask01.cols; ++x) {
+      if (!m[x]) continue;
+      const int x0 = std::max(0, x - field.width + 1), x1 = std::min(px, x + 1);
+      if (x0 < x1 && bottom[x1] - bottom[x0] - top[x1] + top[x0] > 0) o[x] = 1;
+    }
+  }
+  return out;
+}
+
 }  // namespace framelint::flash

@@ -34,4 +34,13 @@ struct AreaResult {
 // cells with at least n flashes cover more than kAreaFraction of it.
 AreaResult max_flashes_over_area(const cv::Mat& flash_counts, cv::Size field);
 
+// Concurrency: same_way01 (CV_8UC1, 0/1) marks cells that changed one way
+// at the same time, other_way01 those that changed the other way. Returns a
+// 0/1 mask of the same-way cells that lie in some position of `field` where
+// the same-way cells outnumber the other-way ones by more than
+// kAreaFraction of the field (a flash moves an area one way; texture
+// passing by moves as much up as down).
+cv::Mat cells_in_dense_fields(const cv::Mat& same_way01, const cv::Mat& other_way01,
+                              cv::Size field);
+
 }  // namespace framelint::flash

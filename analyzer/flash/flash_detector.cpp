@@ -10,8 +10,8 @@
 namespace framelint::flash {
 namespace {
 
-constexpr SwingRule kGeneralRule{kGeneralMinChange, false, kGeneralDarkerBelow, false};
-constexpr SwingRule kRedRule{kRedMinChange, true, 2.0f * kRedScale, true};
+const SwingRule kGeneralRule{kGeneralMinChange, false, kGeneralDarkerBelow, false};
+const SwingRule kRedRule{kRedMinChange, true, 2.0f * kRedScale, true};
 
 // Window edges: a transition exactly one second before t lies outside
 // (t - 1 s, t]; timestamps carry rounding from time bases, hence the margin.
@@ -43,66 +43,110 @@ FlashDetector::FlashDetector(cv::Size frame_size, int cells_per_axis) {
   grid_ = {std::clamp(frame_size.width, 1, cells_per_axis),
            std::clamp(frame_size.height, 1, cells_per_axis)};
   field_ = ten_degree_field(grid_);
-  general_.resize(grid_.area());
-  red_.resize(grid_.area());
-  general_transitions_ = cv::Mat::zeros(grid_, CV_32SC1);
-  red_transitions_ = cv::Mat::zeros(grid_, CV_32SC1);
+  init(general_, kGeneralRule);
+  init(red_, kRedRule);
 }
 
-void FlashDetector::expire(double t_s) {
-  int* general = general_transitions_.ptr<int>();
-  int* red = red_transitions_.ptr<int>();
-  while (!window_.empty() && window_.front().t_s <= t_s - kWindow_s + kTimeMargin_s) {
-    for (int i : window_.front().general_cells) --general[i];
-    for (int i : window_.front().red_cells) --red[i];
-    general_total_ -= static_cast<long>(window_.front().general_cells.size());
-    red_total_ -= static_cast<long>(window_.front().red_cells.size());
-    window_.pop_front();
+void FlashDetector::init(Kind& k, const SwingRule& rule) {
+  k.rule = rule;
+  k.trackers.resize(grid_.area());
+  k.direction = cv::Mat::zeros(grid_, CV_8SC1);
+  k.previous_direction = cv::Mat::zeros(grid_, CV_8SC1);
+  k.previous_credited = cv::Mat::zeros(grid_, CV_8UC1);
+  k.transitions = cv::Mat::zeros(grid_, CV_32SC1);
+}
+
+void FlashDetector::push(Kind& k, Stamped&& s) {
+  if (s.cells.empty()) return;
+  int* counts = k.transitions.ptr<int>();
+  for (int i : s.cells) ++counts[i];
+  k.total += static_cast<long>(s.cells.size());
+  k.window.push_back(std::move(s));
+}
+
+void FlashDetector::expire(Kind& k, double t_s) {
+  int* counts = k.transitions.ptr<int>();
+  while (!k.window.empty() && k.window.front().t_s <= t_s - kWindow_s + kTimeMargin_s) {
+    for (int i : k.window.front().cells) --counts[i];
+    k.total -= static_cast<long>(k.window.front().cells.size());
+    k.window.pop_front();
   }
+}
+
+// "The combined area of flashes occurring concurrently": a transition counts
+// only when, in some 10-degree field that contains it, the cells changing
+// the same way at the same time (in this frame, or in this frame and the
+// one before, so a modulation whose cells cross the threshold a frame apart
+// still counts as one event) outnumber those changing the other way by more than 25% of the
+// field. A camera panning over texture moves every cell, but as many up as
+// down at any moment: no transition of it counts.
+// A transition of the previous frame that was not credited then may be now
+// (stamped with its own time).
+void FlashDetector::credit_concurrent(Kind& k, double t_s) {
+  Stamped now{t_s, {}}, late{previous_t_s_, {}};
+  cv::Mat credited = cv::Mat::zeros(grid_, CV_8UC1);
+  const cv::Mat up = (k.direction == 1) / 255, down = (k.direction == -1) / 255;
+  const cv::Mat up2 = up | ((k.previous_direction == 1) / 255);
+  const cv::Mat down2 = down | ((k.previous_direction == -1) / 255);
+  for (int dir : {1, -1}) {
+    // This frame alone (an every-frame alternation goes up and down on
+    // consecutive frames) or with the one before.
+    const cv::Mat dense =
+        dir == 1 ? cells_in_dense_fields(up, down, field_) | cells_in_dense_fields(up2, down2, field_)
+                 : cells_in_dense_fields(down, up, field_) | cells_in_dense_fields(down2, up2, field_);
+    const int8_t* cur = k.direction.ptr<int8_t>();
+    const int8_t* prev = k.previous_direction.ptr<int8_t>();
+    const uint8_t* in = dense.ptr<uint8_t>();
+    uint8_t* was = k.previous_credited.ptr<uint8_t>();
+    uint8_t* is = credited.ptr<uint8_t>();
+    for (int i = 0; i < grid_.area(); ++i) {
+      if (!in[i]) continue;
+      if (cur[i] == dir) now.cells.push_back(i), is[i] = 1;
+      if (prev[i] == dir && !was[i] && has_previous_) late.cells.push_back(i), was[i] = 1;
+    }
+  }
+  push(k, std::move(late));
+  push(k, std::move(now));
+  k.previous_credited = credited;
+  std::swap(k.previous_direction, k.direction);
+}
+
+void FlashDetector::measure(const Kind& k, int& flashes, cv::Rect2d& where) {
+  if (k.total < least_total_for_hazard_check(field_)) return;
+  flash_counts_.create(grid_, CV_32SC1);
+  const int* in = k.transitions.ptr<int>();
+  int* counts = flash_counts_.ptr<int>();
+  for (int i = 0; i < grid_.area(); ++i) counts[i] = in[i] / 2;  // two transitions per flash
+  const AreaResult r = max_flashes_over_area(flash_counts_, field_);
+  flashes = r.flashes;
+  where = as_fractions(r.field, grid_);
 }
 
 FlashFrame FlashDetector::add_frame(double t_s, const cv::Mat& luminance, const cv::Mat& linear_bgr) {
-  expire(t_s);
   cv::resize(luminance, luminance_cells_, grid_, 0, 0, cv::INTER_AREA);
   cv::resize(linear_bgr, colour_cells_, grid_, 0, 0, cv::INTER_AREA);
-
-  Stamped stamped;
-  stamped.t_s = t_s;
   for (int y = 0; y < grid_.height; ++y) {
     const float* lum = luminance_cells_.ptr<float>(y);
     const cv::Vec3f* bgr = colour_cells_.ptr<cv::Vec3f>(y);
+    int8_t* general = general_.direction.ptr<int8_t>(y);
+    int8_t* red = red_.direction.ptr<int8_t>(y);
     for (int x = 0; x < grid_.width; ++x) {
       const int i = y * grid_.width + x;
-      if (general_[i].update({lum[x], false}, kGeneralRule) != Swing::none)
-        stamped.general_cells.push_back(i);
-      if (red_[i].update(red_sample(bgr[x][2], bgr[x][1], bgr[x][0]), kRedRule) != Swing::none)
-        stamped.red_cells.push_back(i);
+      general[x] = static_cast<int8_t>(general_.trackers[i].update({lum[x], false}, general_.rule));
+      red[x] = static_cast<int8_t>(
+          red_.trackers[i].update(red_sample(bgr[x][2], bgr[x][1], bgr[x][0]), red_.rule));
     }
   }
-  int* general = general_transitions_.ptr<int>();
-  int* red = red_transitions_.ptr<int>();
-  for (int i : stamped.general_cells) ++general[i];
-  for (int i : stamped.red_cells) ++red[i];
-  general_total_ += static_cast<long>(stamped.general_cells.size());
-  red_total_ += static_cast<long>(stamped.red_cells.size());
-  if (!stamped.general_cells.empty() || !stamped.red_cells.empty())
-    window_.push_back(std::move(stamped));
-
   FlashFrame out;
   out.t_s = t_s;
-  const long least = least_total_for_hazard_check(field_);
-  auto measure = [&](const cv::Mat& transitions, long total, int& flashes, cv::Rect2d& where) {
-    if (total < least) return;
-    flash_counts_.create(grid_, CV_32SC1);
-    const int* in = transitions.ptr<int>();
-    int* counts = flash_counts_.ptr<int>();
-    for (int i = 0; i < grid_.area(); ++i) counts[i] = in[i] / 2;  // two transitions per flash
-    const AreaResult r = max_flashes_over_area(flash_counts_, field_);
-    flashes = r.flashes;
-    where = as_fractions(r.field, grid_);
-  };
-  measure(general_transitions_, general_total_, out.general_flashes, out.general_field);
-  measure(red_transitions_, red_total_, out.red_flashes, out.red_field);
+  for (Kind* k : {&general_, &red_}) {
+    credit_concurrent(*k, t_s);
+    expire(*k, t_s);
+  }
+  measure(general_, out.general_flashes, out.general_field);
+  measure(red_, out.red_flashes, out.red_field);
+  previous_t_s_ = t_s;
+  has_previous_ = true;
   return out;
 }
 

@@ -26,10 +26,15 @@
 // frame that completes it. For a frame at time t, the one-second window is
 // (t - 1 s, t] and a cell's flashes in it are floor(transitions / 2): a flash
 // is two opposing transitions, so "N flashes per second" is a flash
-// frequency of N Hz (one dark-light-dark cycle per flash). Flashes in
-// different cells of the same window count as concurrent (conservative).
-// The frame's value is the largest n for which cells with >= n flashes cover
-// more than 25% of some 10-degree field; n > 3 is a hazard.
+// frequency of N Hz (one dark-light-dark cycle per flash). "Occurring
+// concurrently": a cell's transition is only counted when, in some
+// 10-degree field that contains it, cells changing the same way in the same
+// frame (or the one before) outnumber those changing the other way by more
+// than 25% of the field - a light flashing over an area changes it all one
+// way at once, while a camera panning over texture moves every cell but as
+// many up as down. The frame's value is the
+// largest n for which cells with >= n counted flashes cover more than 25%
+// of some 10-degree field; n > 3 is a hazard.
 //
 // This is a screening aid, not a certification.
 #pragma once
@@ -89,15 +94,29 @@ class FlashDetector {
  private:
   struct Stamped {
     double t_s = 0;
-    std::vector<int> general_cells, red_cells;  // cells with a transition at t_s
+    std::vector<int> cells;  // cells with a transition credited at t_s
   };
-  void expire(double t_s);
+  // One rule's state: the per-cell trackers, the last two frames'
+  // transition directions, and the transitions in the one-second window.
+  struct Kind {
+    SwingRule rule;
+    std::vector<SwingTracker> trackers;
+    cv::Mat direction, previous_direction;  // CV_8SC1: +1 up, -1 down, 0
+    cv::Mat previous_credited;              // CV_8UC1
+    cv::Mat transitions;                    // CV_32SC1
+    long total = 0;
+    std::deque<Stamped> window;
+  };
+  void init(Kind& k, const SwingRule& rule);
+  void credit_concurrent(Kind& k, double t_s);
+  void push(Kind& k, Stamped&& s);
+  void expire(Kind& k, double t_s);
+  void measure(const Kind& k, int& flashes, cv::Rect2d& where);
 
   cv::Size grid_, field_;
-  std::vector<SwingTracker> general_, red_;
-  std::deque<Stamped> window_;
-  cv::Mat general_transitions_, red_transitions_;  // CV_32SC1, in the window
-  long general_total_ = 0, red_total_ = 0;
+  Kind general_, red_;
+  double previous_t_s_ = 0;
+  bool has_previous_ = false;
   cv::Mat luminance_cells_, colour_cells_, flash_counts_;  // scratch
 };
 

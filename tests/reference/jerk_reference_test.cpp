@@ -8,6 +8,8 @@
 #include <opencv2/imgcodecs.hpp>
 
 #include "analyzer/segments/segmenter.h"
+#include "framelint/analysis.h"
+#include "support/synthetic_source.h"
 #include "support/detectors_metrics.h"
 
 using namespace framelint;
@@ -28,21 +30,11 @@ std::vector<FramePlanes> pan(const cv::Mat& image, double fps, int n, int displa
   return frames;
 }
 
-}  // namespace
+// The default policy's jerk rule: enter at 5 diagonals/s^2 or the clip's
+// median + 8 MAD-sigmas if higher, review from a peak of 5.
+SegmentRule jerk_rule() { return default_policy().segments.at("jerk"); }
 
-// The jerk segment rule proposed for the default policy (docs/detectors.md):
-// enter at 5 diagonals/s^2 or the clip's median + 8 MAD-sigmas if higher.
-SegmentRule jerk_rule() {
-  SegmentRule rule;
-  rule.enter = 5;
-  rule.leave = 2;
-  rule.min_frames = 1;
-  rule.merge_gap_frames = 2;
-  rule.baseline_k = 8;
-  rule.review_peak = 5;
-  rule.reject_peak = 20;
-  return rule;
-}
+}  // namespace
 
 TEST(JerkReference, SmoothPanHasNoSegmentDisplacedFrameHasOneAtThatFrame) {
   for (const char* name : {"baboon.jpg", "fruits.jpg"}) {
@@ -64,6 +56,45 @@ TEST(JerkReference, SmoothPanHasNoSegmentDisplacedFrameHasOneAtThatFrame) {
     EXPECT_EQ(segments[0].peak_frame, 20) << name;
     EXPECT_LE(segments[0].start_frame, 20);
     EXPECT_GE(segments[0].end_frame, 20);
-    EXPECT_EQ(segments[0].severity, Severity::reject);
+    EXPECT_EQ(segments[0].severity, Severity::review);
   }
+}
+
+// End to end through analyze_source (no decoder: frames made in memory from
+// the opencv-doc image), with the default policy: the displaced frame is a
+// jerk segment at frame 20, a region lit on two frames is a flicker_local
+// segment there, and the clean pan has neither.
+TEST(DetectorsEndToEnd, JoltAndLocalPulseOnARealImagePan) {
+  const cv::Mat image = cv::imread(std::string(kData) + "baboon.jpg", cv::IMREAD_COLOR);
+  if (image.empty()) GTEST_SKIP() << "opencv-doc image baboon.jpg not installed";
+  auto run = [&](bool defects) {
+    fixtures::SyntheticSource source(40, 24, [&](int64_t t) {
+      const int x = 20 + 3 * static_cast<int>(t) + (defects && t == 20 ? 8 : 0);
+      cv::Mat f = image(cv::Rect(x, 30 + static_cast<int>(t), 256, 192)).clone();
+      if (defects && (t == 30 || t == 31)) f(cv::Rect(96, 72, 64, 48)) += cv::Scalar::all(45);
+      return f;
+    });
+    auto report = analyze_source(source, "pan", AnalysisSettings{}, default_policy());
+    EXPECT_TRUE(report.ok()) << (report.ok() ? "" : report.error().message());
+    return report.ok() ? std::move(report.value()) : Report{};
+  };
+  auto of = [](const Report& r, const std::string& metric) {
+    std::vector<Segment> out;
+    for (const auto& s : r.segments)
+      if (s.metric == metric) out.push_back(s);
+    return out;
+  };
+  const Report clean = run(false);
+  EXPECT_TRUE(of(clean, "jerk").empty());
+  EXPECT_TRUE(of(clean, "flicker_local").empty());
+  EXPECT_TRUE(of(clean, "flash").empty()) << clean.summary.details.at("flash").dump();
+  const Report bad = run(true);
+  const auto jerk = of(bad, "jerk");
+  ASSERT_EQ(jerk.size(), 1u);
+  EXPECT_EQ(jerk[0].peak_frame, 20);
+  const auto local = of(bad, "flicker_local");
+  ASSERT_EQ(local.size(), 1u);
+  EXPECT_LE(local[0].start_frame, 30);
+  EXPECT_GE(local[0].end_frame, 32);
+  EXPECT_LE(local[0].end_frame, 33);
 }

@@ -8,6 +8,8 @@
 #include <algorithm>
 #include <functional>
 
+#include <opencv2/imgproc.hpp>
+
 #include "analyzer/flash/area_rule.h"
 #include "analyzer/flash/flash_detector.h"
 #include "support/detectors_planes.h"
@@ -222,4 +224,20 @@ TEST(FlashDetector, SlowFadesAreNotFlashes) {
     return cv::Mat(kSize, CV_8UC3, cv::Scalar::all(v));
   });
   EXPECT_EQ(max_general(f), 0);
+}
+
+TEST(FlashDetector, APanOverHighContrastTextureIsNotAFlash) {
+  // Every cell of a panned black/white texture changes by far more than 0.1
+  // several times a second, but never most of a field the same way at once:
+  // no concurrent flashing area ("combined area of flashes occurring
+  // concurrently").
+  cv::Mat texture(240, 2000, CV_8UC3);
+  cv::randu(texture, 0, 256);
+  cv::resize(texture, texture, cv::Size(), 1, 1);
+  cv::threshold(texture, texture, 127, 255, cv::THRESH_BINARY);
+  cv::Mat wide;
+  cv::resize(texture, wide, cv::Size(4000, 240), 0, 0, cv::INTER_NEAREST);  // 2 px wide stripes
+  const auto f = run(30, 3, kSize, [&](int i) { return wide(cv::Rect(7 * i, 0, 320, 240)).clone(); });
+  EXPECT_FALSE(any_hazard(f));
+  EXPECT_LE(max_general(f), 1);
 }
