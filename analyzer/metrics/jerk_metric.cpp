@@ -8,7 +8,8 @@
 //
 // Pairs whose camera fit is weak (few RANSAC inliers: mostly independent
 // motion; few consistent flow vectors) or that the `cut` metric calls a cut
-// have no trustworthy camera motion; the frames that need them stay
+// (a shot boundary, analyzer/metrics/shot_boundaries.h) have no trustworthy
+// camera motion; the frames that need them stay
 // undefined rather than showing a fit failure or a scene change as a jolt.
 // (A cut between two near-blank frames can fit an identity homography with
 // many inliers, hence the cut check.)
@@ -17,6 +18,7 @@
 #include "analyzer/metrics/camera_path.h"
 #include "analyzer/metrics/metric.h"
 #include "analyzer/metrics/series_math.h"
+#include "analyzer/metrics/shot_boundaries.h"
 
 namespace framelint {
 namespace {
@@ -28,10 +30,6 @@ constexpr double kMinInlierFraction = 0.5;
 // Share of pixels passing the forward-backward check below which the flow,
 // and so the fit, is not trusted.
 constexpr double kMinValidFraction = 0.3;
-// The cut metric's value from which a pair counts as a cut (its scale:
-// sqrt(inconsistent share x histogram distance); 0.5 is where the pipeline's
-// tests put a cut).
-constexpr double kCutLevel = 0.5;
 
 class JerkMetric final : public Metric {
  public:
@@ -50,9 +48,9 @@ class JerkMetric final : public Metric {
   void finish(Report& report) override {
     MetricSeries* series = report.find_series("jerk");
     if (!series) return;
-    if (const MetricSeries* cut = report.find_series("cut"))
-      for (size_t t = 1; t < steps_.size() && t < cut->values.size(); ++t)
-        if (cut->values[t] >= kCutLevel) steps_[t].valid = false;
+    const std::vector<bool> boundary = shot_boundaries(report);
+    for (size_t t = 1; t < steps_.size() && t < boundary.size(); ++t)
+      if (boundary[t]) steps_[t].valid = false;
     const std::vector<double> jerk = camera_jerk(steps_, frame_size_);
     for (size_t i = 0; i < series->values.size(); ++i)
       series->values[i] = i < jerk.size() ? jerk[i] : kUndefined;

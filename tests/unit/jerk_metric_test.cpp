@@ -107,7 +107,8 @@ TEST(JerkMetric, WeakCameraFitsLeaveFramesUndefined) {
 
 TEST(JerkMetric, PairsTheCutMetricCallsACutLeaveFramesUndefined) {
   // A jump between two blank frames can fit an identity homography with
-  // every sample an inlier; the cut series (0.5 and above) rules it out.
+  // every sample an inlier; a shot boundary (cut >= kShotBoundaryCut) rules
+  // it out.
   const Report r = run_path(24, 20, [](int t) { return t == 10 ? shift(0, 0) : shift(3, 0); },
                             [](int) { return 1.0; }, [](Report& report) {
                               std::vector<double> cut(20, 0.01);
