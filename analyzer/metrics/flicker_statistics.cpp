@@ -114,16 +114,19 @@ DominantFrequency dominant_frequency(std::span<const double> values,
 }
 
 FlickerStatistics flicker_statistics(std::span<const double> track,
-                                     std::span<const double> times_s, double median_window_s) {
+                                     std::span<const double> times_s, double median_window_s,
+                                     double level) {
   FlickerStatistics out{kNaN, kNaN, {kNaN, 0}};
   const double dt = median_frame_interval_s(times_s);
   if (track.empty() || dt <= 0) return out;
   const int half = std::max(1, static_cast<int>(std::lround(median_window_s / 2 / dt)));
   const std::vector<double> median = running_median(track, half);
-  const std::vector<double> defined = defined_values(track);
-  double level = 0;
-  for (double v : defined) level += v;
-  level /= std::max<size_t>(1, defined.size());
+  if (std::isnan(level)) {
+    const std::vector<double> defined = defined_values(track);
+    level = 0;
+    for (double v : defined) level += v;
+    level /= std::max<size_t>(1, defined.size());
+  }
   // Near the ends the running median's window is one-sided and lags a
   // ramp; only frames with a full centred window count, unless the clip is
   // too short to have any.
@@ -134,8 +137,18 @@ FlickerStatistics flicker_statistics(std::span<const double> track,
     fast[i] = track[i] - median[i];
     recentred[i] = level + fast[i];
   }
-  out.percent_flicker = percent_flicker(recentred);
-  out.flicker_index = flicker_index(recentred);
+  // A clip is not one clean cycle: a missed cut or a fade's edge can put a
+  // single frame far off. The extremes are taken as the 2nd and 98th
+  // percentiles (for a sinusoid, 0.996 of the true swing), and levels below
+  // zero, which light cannot have, are clipped.
+  const std::vector<double> defined_fast = defined_values(recentred);
+  if (defined_fast.empty()) return out;
+  const double lo = std::max(0.0, quantile(defined_fast, 0.02));
+  const double hi = std::max(0.0, quantile(defined_fast, 0.98));
+  out.percent_flicker = percent_flicker(std::vector<double>{lo, hi});
+  std::vector<double> clipped;
+  for (double v : defined_fast) clipped.push_back(std::clamp(v, lo, hi));
+  out.flicker_index = flicker_index(clipped);
   out.dominant = dominant_frequency(fast, times_s);
   return out;
 }

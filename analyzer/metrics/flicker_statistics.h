@@ -21,6 +21,7 @@
 // = percent flicker / 200.
 #pragma once
 
+#include <limits>
 #include <span>
 
 namespace framelint {
@@ -51,14 +52,21 @@ DominantFrequency dominant_frequency(std::span<const double> values,
 // flicker index are taken of the fast part re-centred on the track's mean
 // level, so a fade or a pan from shade to sun is not counted as flicker.
 // Frames within half a median window of either end, where the window is
-// one-sided, are left out (unless that would leave nothing).
+// one-sided, are left out (unless that would leave nothing). Over a whole
+// clip the extremes are the 2nd and 98th percentiles (a sinusoid's are
+// 0.996 of its swing) and values are clipped to them and to >= 0, so one
+// frame far off (a missed cut, the edge of a fade) cannot dominate.
 struct FlickerStatistics {
   double percent_flicker = 0;
   double flicker_index = 0;
   DominantFrequency dominant;
 };
+// `level`: the clip's mean brightness to re-centre on; NaN takes the mean of
+// the track (pass the plain mean luminance when the track is a running sum
+// of changes whose absolute level may drift).
 FlickerStatistics flicker_statistics(std::span<const double> track,
                                      std::span<const double> times_s,
-                                     double median_window_s = 1.0);
+                                     double median_window_s = 1.0,
+                                     double level = std::numeric_limits<double>::quiet_NaN());
 
 }  // namespace framelint
