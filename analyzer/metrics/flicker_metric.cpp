@@ -12,6 +12,7 @@
 // Also writes `luminance`, the frame's plain mean relative luminance.
 #include <cmath>
 
+#include "analyzer/metrics/flicker_statistics.h"
 #include "analyzer/metrics/image_error.h"
 #include "analyzer/metrics/metric.h"
 #include "analyzer/metrics/shot_boundaries.h"
@@ -67,6 +68,36 @@ class FlickerMetric final : public Metric {
       begin = end;
     }
     clear_across_boundaries(v, boundary);
+    add_statistics(track, boundary, luminance->values, report);
+  }
+
+ private:
+  // Clip-level percent flicker, flicker index (IES) and dominant frequency
+  // (analyzer/metrics/flicker_statistics.h) of the motion-compensated track,
+  // joined across shot boundaries (no step at a cut) so a cut's jump in
+  // level is not read as flicker.
+  static void add_statistics(const std::vector<double>& track, const std::vector<bool>& boundary,
+                             const std::vector<double>& luminance, Report& report) {
+    std::vector<double> joined(track);
+    double offset = 0;
+    for (size_t t = 1; t < joined.size(); ++t) {
+      if (t < boundary.size() && boundary[t]) offset += track[t - 1] - track[t];
+      joined[t] = track[t] + offset;
+    }
+    // Re-centred on the plain mean luminance: the track is a running sum of
+    // motion-compensated changes, exact in its swings but not in its level.
+    const std::vector<double> plain = defined_values(luminance);
+    double level = 0;
+    for (double v : plain) level += v / static_cast<double>(plain.size());
+    const FlickerStatistics s =
+        flicker_statistics(joined, report.frame_times_s, kMedianWindow_s, level);
+    auto number = [](double x) { return std::isnan(x) ? nlohmann::json() : nlohmann::json(x); };
+    report.summary.details["flicker"] = {
+        {"percent_flicker", number(s.percent_flicker)},
+        {"flicker_index", number(s.flicker_index)},
+        {"dominant_frequency_hz", number(s.dominant.frequency_hz)},
+        {"dominant_power_share", number(s.dominant.power_share)},
+        {"series", "motion-compensated mean relative luminance, slow change removed"}};
   }
 };
 

@@ -12,6 +12,9 @@ std::unique_ptr<Metric> make_warp_error_long_metric(const AnalysisSettings&);
 std::unique_ptr<Metric> make_flicker_metric(const AnalysisSettings&);
 std::unique_ptr<Metric> make_freeze_metric(const AnalysisSettings&);
 std::unique_ptr<Metric> make_cut_metric(const AnalysisSettings&);
+std::unique_ptr<Metric> make_flash_metric(const AnalysisSettings&);
+std::unique_ptr<Metric> make_jerk_metric(const AnalysisSettings&);
+std::unique_ptr<Metric> make_flicker_local_metric(const AnalysisSettings&);
 
 using MetricFactory = std::unique_ptr<Metric> (*)(const AnalysisSettings&);
 
@@ -21,6 +24,9 @@ static const MetricFactory kMetricTable[] = {
     make_flicker_metric,
     make_freeze_metric,
     make_cut_metric,
+    make_flash_metric,
+    make_jerk_metric,
+    make_flicker_local_metric,
 };
 
 std::vector<std::unique_ptr<Metric>> make_metrics(const AnalysisSettings& settings) {

@@ -1,0 +1,77 @@
+// Local flicker: regions whose brightness pulses while the motion does not
+// explain it. The frame is cut into a grid of blocks; for each pair, each
+// block's motion-compensated luminance change is the median over its
+// consistent pixels of Y_t - W(Y_{t-1}) (relative luminance; the median so a
+// few misaligned pixels at a moving edge do not count), kept only when at
+// least three quarters of those pixels change the same way (a pulse of light
+// lifts or lowers a whole region; a mouth opening or a turning object
+// changes part of a block), else 0. The change common to
+// the whole frame (the median over blocks) is removed, as global flicker is
+// the `flicker` metric's business. Each block's changes add up to a level
+// (its brightness beyond what motion carries), whose peaks and valleys are
+// followed with hysteresis (analyzer/flash/swing_tracker.h): a block that
+// swings by at least `min_swing` one way and then at least `min_swing` back
+// within `max_pulse_s` pulses, with amplitude the smaller of the two swings.
+#pragma once
+
+#include <cstdint>
+#include <span>
+#include <vector>
+
+#include <opencv2/core.hpp>
+
+#include "analyzer/flash/swing_tracker.h"
+
+namespace framelint {
+
+// Block b = row * cols + col. Blocks with fewer than half their pixels valid
+// are NaN (unknown this pair).
+std::vector<float> block_luminance_changes(const cv::Mat& cur_luminance,
+                                           const cv::Mat& warped_prev_luminance,
+                                           const cv::Mat& valid, int cols, int rows);
+
+// Subtracts the median of the known changes from each (the frame's common
+// change); returns that median (0 when nothing is known).
+float remove_common_change(std::span<float> changes);
+
+struct Pulse {
+  int block = 0;
+  int64_t start_frame = 0;  // frame where the first swing was confirmed
+  int64_t end_frame = 0;    // frame where the swing back was confirmed
+  double amplitude = 0;     // smaller of the two swings, relative luminance
+};
+
+// A pulse is recorded when the swing back is confirmed; while that swing
+// goes on - until it has come as far back as the first swing went, and for
+// at most max_pulse_s after it was confirmed - its amplitude and end frame
+// follow it.
+class BlockPulseTracker {
+ public:
+  BlockPulseTracker(int blocks, double min_swing, double max_pulse_s);
+
+  // One pair's block changes (NaN = unknown) ending at `frame`, time t_s.
+  void add(int64_t frame, double t_s, std::span<const float> changes);
+
+  // Every pulse so far, in the order they were confirmed.
+  const std::vector<Pulse>& pulses() const { return pulses_; }
+
+ private:
+  struct Block {
+    flash::SwingTracker swings;
+    float level = 0;
+    bool started = false;
+    bool has_turn = false;  // a swing was confirmed before
+    int64_t turn_frame = 0;
+    double turn_t_s = 0;
+    float turn_origin = 0;  // origin of that swing
+    int open_pulse = -1;    // pulse whose swing back is still going on
+    float open_first = 0;   // that pulse's first swing
+  };
+
+  std::vector<Block> blocks_;
+  std::vector<Pulse> pulses_;
+  flash::SwingRule rule_;
+  double max_pulse_s_;
+};
+
+}  // namespace framelint

@@ -1,0 +1,107 @@
+// flicker_local: regions that pulse in brightness while motion does not
+// explain it (analyzer/metrics/block_pulses.h says how pulses are found).
+// Per frame: the amplitude of the strongest block pulse that spans the frame
+// (from the frame where its first swing was confirmed to the frame where the
+// swing back was), in relative luminance, 0 where no block pulses; undefined
+// for frame 0. We chose the amplitude over the share of the frame that
+// pulses because it reads the same whatever the grid: the share is in
+// summary.flicker_local.details (max_area_pct), with the blocks involved.
+//
+// Frame-rate dependence: pulses are confirmed on swings of the accumulated
+// level, so a pulse spread over several frames at 60 fps counts like the
+// same pulse in one frame at 8 fps; the pulse window is in seconds.
+#include <algorithm>
+#include <cmath>
+#include <map>
+
+#include "analyzer/metrics/block_pulses.h"
+#include "analyzer/metrics/metric.h"
+
+namespace framelint {
+namespace {
+
+constexpr int kGridCols = 16, kGridRows = 16;
+// A swing of 0.02 in relative luminance is ~10% of a mid grey's (Y = 0.2)
+// luminance, a clearly visible step (Weber fractions of a few percent are
+// visible: common practice). Pulses: out and back within half a second,
+// i.e. pulse rates of 1 Hz and faster.
+constexpr double kMinSwing = 0.02;
+constexpr double kMaxPulse_s = 0.5;
+
+class FlickerLocalMetric final : public Metric {
+ public:
+  std::vector<std::string> columns() const override { return {"flicker_local"}; }
+  bool needs_in_order() const override { return true; }
+  void measure_pair(const FramePair&, std::span<double>) const override {}
+
+  void observe_in_order(const FramePair& pair, std::span<double>) override {
+    std::vector<float> changes =
+        block_luminance_changes(pair.cur->luminance, pair.warped_prev_luminance, pair.valid,
+                                kGridCols, kGridRows);
+    remove_common_change(changes);
+    tracker_.add(pair.cur->index, pair.cur->t_s, changes);
+    block_size_ = {pair.cur->luminance.cols / kGridCols, pair.cur->luminance.rows / kGridRows};
+  }
+
+  void finish(Report& report) override {
+    MetricSeries* series = report.find_series("flicker_local");
+    if (!series) return;
+    const std::vector<Pulse>& pulses = tracker_.pulses();
+    auto& v = series->values;
+    const size_t n = v.size();
+    std::vector<int> blocks_pulsing(n, 0);
+    for (size_t i = 1; i < n; ++i) v[i] = 0;
+    for (const Pulse& p : pulses)
+      for (int64_t f = std::max<int64_t>(1, p.start_frame); f <= p.end_frame && f < static_cast<int64_t>(n); ++f) {
+        v[f] = std::max(v[f], p.amplitude);
+        ++blocks_pulsing[f];  // a block counts once per pulse at a frame
+      }
+    report.summary.details["flicker_local"] = details(pulses, blocks_pulsing);
+  }
+
+ private:
+  nlohmann::json details(const std::vector<Pulse>& pulses, const std::vector<int>& blocks_pulsing) const {
+    struct BlockSummary {
+      int pulses = 0;
+      double max_amplitude = 0;
+    };
+    std::map<int, BlockSummary> by_block;
+    for (const Pulse& p : pulses) {
+      auto& s = by_block[p.block];
+      ++s.pulses;
+      s.max_amplitude = std::max(s.max_amplitude, p.amplitude);
+    }
+    std::vector<std::pair<int, BlockSummary>> ranked(by_block.begin(), by_block.end());
+    std::sort(ranked.begin(), ranked.end(), [](const auto& a, const auto& b) {
+      return a.second.pulses != b.second.pulses ? a.second.pulses > b.second.pulses
+                                                : a.second.max_amplitude > b.second.max_amplitude;
+    });
+    nlohmann::json blocks = nlohmann::json::array();
+    for (size_t i = 0; i < ranked.size() && i < 12; ++i)
+      blocks.push_back({{"row", ranked[i].first / kGridCols},
+                        {"col", ranked[i].first % kGridCols},
+                        {"pulses", ranked[i].second.pulses},
+                        {"max_amplitude", ranked[i].second.max_amplitude}});
+    const int most = blocks_pulsing.empty() ? 0 : *std::max_element(blocks_pulsing.begin(), blocks_pulsing.end());
+    return {{"units", "relative luminance (amplitude of the strongest block pulse)"},
+            {"grid", {kGridCols, kGridRows}},
+            {"block_px", {block_size_.width, block_size_.height}},
+            {"min_swing", kMinSwing},
+            {"max_pulse_s", kMaxPulse_s},
+            {"pulses", pulses.size()},
+            {"blocks_involved", by_block.size()},
+            {"max_area_pct", 100.0 * most / (kGridCols * kGridRows)},
+            {"blocks", blocks}};
+  }
+
+  BlockPulseTracker tracker_{kGridCols * kGridRows, kMinSwing, kMaxPulse_s};
+  cv::Size block_size_;
+};
+
+}  // namespace
+
+std::unique_ptr<Metric> make_flicker_local_metric(const AnalysisSettings&) {
+  return std::make_unique<FlickerLocalMetric>();
+}
+
+}  // namespace framelint

@@ -1,0 +1,91 @@
+// jerk: spikes in the acceleration of the dominant (camera) motion.
+// From each pair's camera homography (RANSAC on the flow, in FramePair) the
+// camera path's acceleration at every frame, in frame diagonals per second
+// squared (analyzer/metrics/camera_path.h has the formula and its frame-rate
+// dependence). Spikes become segments by the policy's rule for "jerk", whose
+// baseline (median + k MAD of the clip's own series) keeps a shaky but
+// steady handheld clip from flagging every frame.
+//
+// Pairs whose camera fit is weak (few RANSAC inliers: mostly independent
+// motion; few consistent flow vectors) or that the `cut` metric calls a cut
+// (a shot boundary, analyzer/metrics/shot_boundaries.h) have no trustworthy
+// camera motion; the frames that need them stay
+// undefined rather than showing a fit failure or a scene change as a jolt.
+// (A cut between two near-blank frames can fit an identity homography with
+// many inliers, hence the cut check.)
+#include <cmath>
+
+#include "analyzer/metrics/camera_path.h"
+#include "analyzer/metrics/metric.h"
+#include "analyzer/metrics/series_math.h"
+#include "analyzer/metrics/shot_boundaries.h"
+
+namespace framelint {
+namespace {
+
+// Share of flow samples that must agree with the fitted homography (at 1 px
+// at the working size) for the pair's camera motion to count. Half is the
+// usual sense of "dominant" motion (common practice).
+constexpr double kMinInlierFraction = 0.5;
+// Share of pixels passing the forward-backward check below which the flow,
+// and so the fit, is not trusted.
+constexpr double kMinValidFraction = 0.3;
+
+class JerkMetric final : public Metric {
+ public:
+  std::vector<std::string> columns() const override { return {"jerk"}; }
+  bool needs_in_order() const override { return true; }
+  void measure_pair(const FramePair&, std::span<double>) const override {}
+
+  void observe_in_order(const FramePair& pair, std::span<double>) override {
+    frame_size_ = pair.cur->bgr.size();
+    if (steps_.empty()) steps_.emplace_back();  // frame 0 has no pair
+    const bool valid = pair.camera_inlier_fraction >= kMinInlierFraction &&
+                       pair.valid_fraction >= kMinValidFraction;
+    steps_.push_back(camera_step(pair.camera_homography, frame_size_, pair.dt_s, valid));
+  }
+
+  void finish(Report& report) override {
+    MetricSeries* series = report.find_series("jerk");
+    if (!series) return;
+    const std::vector<bool> boundary = shot_boundaries(report);
+    for (size_t t = 1; t < steps_.size() && t < boundary.size(); ++t)
+      if (boundary[t]) steps_[t].valid = false;
+    const std::vector<double> jerk = camera_jerk(steps_, frame_size_);
+    for (size_t i = 0; i < series->values.size(); ++i)
+      series->values[i] = i < jerk.size() ? jerk[i] : kUndefined;
+    report.summary.details["jerk"] = details(series->values, report.frame_times_s);
+  }
+
+ private:
+  nlohmann::json details(const std::vector<double>& jerk, const std::vector<double>& t) const {
+    int fitted = 0;
+    for (size_t i = 1; i < steps_.size(); ++i) fitted += steps_[i].valid ? 1 : 0;
+    nlohmann::json out = {
+        {"units", "frame diagonals per second squared"},
+        {"camera_fit_pairs", fitted},
+        {"pairs", steps_.empty() ? 0 : static_cast<int>(steps_.size()) - 1}};
+    const std::vector<double> defined = defined_values(jerk);
+    if (defined.empty()) return out;
+    size_t peak = 0;
+    for (size_t i = 0; i < jerk.size(); ++i)
+      if (!std::isnan(jerk[i]) && (std::isnan(jerk[peak]) || jerk[i] > jerk[peak])) peak = i;
+    out["median"] = quantile(defined, 0.5);
+    out["mad"] = median_absolute_deviation(defined);
+    out["peak"] = jerk[peak];
+    out["peak_frame"] = peak;
+    if (peak < t.size()) out["peak_s"] = t[peak];
+    return out;
+  }
+
+  cv::Size frame_size_;
+  std::vector<CameraStep> steps_;
+};
+
+}  // namespace
+
+std::unique_ptr<Metric> make_jerk_metric(const AnalysisSettings&) {
+  return std::make_unique<JerkMetric>();
+}
+
+}  // namespace framelint

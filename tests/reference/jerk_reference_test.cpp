@@ -1,0 +1,100 @@
+// jerk on real image content (opencv-doc examples/data/baboon.jpg and
+// fruits.jpg), panned by a camera path we know exactly: the flow, the
+// RANSAC camera fit and the metric run as in a real analysis.
+#include <gtest/gtest.h>
+
+#include <cmath>
+
+#include <opencv2/imgcodecs.hpp>
+
+#include "analyzer/segments/segmenter.h"
+#include "framelint/analysis.h"
+#include "support/synthetic_source.h"
+#include "support/detectors_metrics.h"
+
+using namespace framelint;
+using namespace framelint::testing;
+
+namespace {
+
+const char* kData = "/usr/share/doc/opencv-doc/examples/data/";
+
+// A 256x192 view panning over the image at (3, 1) px per frame; frame
+// `displaced` (if >= 0) sits `offset` px further right.
+std::vector<FramePlanes> pan(const cv::Mat& image, double fps, int n, int displaced, int offset) {
+  std::vector<FramePlanes> frames;
+  for (int t = 0; t < n; ++t) {
+    const int x = 20 + 3 * t + (t == displaced ? offset : 0), y = 30 + t;
+    frames.push_back(planes_of(t, t / fps, image(cv::Rect(x, y, 256, 192)).clone()));
+  }
+  return frames;
+}
+
+// The default policy's jerk rule: enter at 5 diagonals/s^2 or the clip's
+// median + 8 MAD-sigmas if higher, review from a peak of 5.
+SegmentRule jerk_rule() { return default_policy().segments.at("jerk"); }
+
+}  // namespace
+
+TEST(JerkReference, SmoothPanHasNoSegmentDisplacedFrameHasOneAtThatFrame) {
+  for (const char* name : {"baboon.jpg", "fruits.jpg"}) {
+    const cv::Mat image = cv::imread(std::string(kData) + name, cv::IMREAD_COLOR);
+    if (image.empty()) GTEST_SKIP() << "opencv-doc image " << name << " not installed";
+    auto smooth_metric = registered_metric("jerk");
+    const Report smooth = run_metric(*smooth_metric, pan(image, 24, 40, -1, 0));
+    const auto& sv = smooth.find_series("jerk")->values;
+    EXPECT_TRUE(find_segments("jerk", sv, smooth.frame_times_s, jerk_rule()).empty()) << name;
+
+    // Frame 20 displaced by 8 px on a 256x192 view (diagonal 320 px) at
+    // 24 fps: 2 * 8 * 24^2 / 320 = 28.8 diagonals/s^2 at frame 20.
+    auto jolt_metric = registered_metric("jerk");
+    const Report jolt = run_metric(*jolt_metric, pan(image, 24, 40, 20, 8));
+    const auto& jv = jolt.find_series("jerk")->values;
+    EXPECT_NEAR(jv[20], 28.8, 0.1 * 28.8) << name;
+    const auto segments = find_segments("jerk", jv, jolt.frame_times_s, jerk_rule());
+    ASSERT_EQ(segments.size(), 1u) << name;
+    EXPECT_EQ(segments[0].peak_frame, 20) << name;
+    EXPECT_LE(segments[0].start_frame, 20);
+    EXPECT_GE(segments[0].end_frame, 20);
+    EXPECT_EQ(segments[0].severity, Severity::review);
+  }
+}
+
+// End to end through analyze_source (no decoder: frames made in memory from
+// the opencv-doc image), with the default policy: the displaced frame is a
+// jerk segment at frame 20, a region lit on two frames is a flicker_local
+// segment there, and the clean pan has neither.
+TEST(DetectorsEndToEnd, JoltAndLocalPulseOnARealImagePan) {
+  const cv::Mat image = cv::imread(std::string(kData) + "baboon.jpg", cv::IMREAD_COLOR);
+  if (image.empty()) GTEST_SKIP() << "opencv-doc image baboon.jpg not installed";
+  auto run = [&](bool defects) {
+    fixtures::SyntheticSource source(40, 24, [&](int64_t t) {
+      const int x = 20 + 3 * static_cast<int>(t) + (defects && t == 20 ? 8 : 0);
+      cv::Mat f = image(cv::Rect(x, 30 + static_cast<int>(t), 256, 192)).clone();
+      if (defects && (t == 30 || t == 31)) f(cv::Rect(96, 72, 64, 48)) += cv::Scalar::all(45);
+      return f;
+    });
+    auto report = analyze_source(source, "pan", AnalysisSettings{}, default_policy());
+    EXPECT_TRUE(report.ok()) << (report.ok() ? "" : report.error().message());
+    return report.ok() ? std::move(report.value()) : Report{};
+  };
+  auto of = [](const Report& r, const std::string& metric) {
+    std::vector<Segment> out;
+    for (const auto& s : r.segments)
+      if (s.metric == metric) out.push_back(s);
+    return out;
+  };
+  const Report clean = run(false);
+  EXPECT_TRUE(of(clean, "jerk").empty());
+  EXPECT_TRUE(of(clean, "flicker_local").empty());
+  EXPECT_TRUE(of(clean, "flash").empty()) << clean.summary.details.at("flash").dump();
+  const Report bad = run(true);
+  const auto jerk = of(bad, "jerk");
+  ASSERT_EQ(jerk.size(), 1u);
+  EXPECT_EQ(jerk[0].peak_frame, 20);
+  const auto local = of(bad, "flicker_local");
+  ASSERT_EQ(local.size(), 1u);
+  EXPECT_LE(local[0].start_frame, 30);
+  EXPECT_GE(local[0].end_frame, 32);
+  EXPECT_LE(local[0].end_frame, 33);
+}
