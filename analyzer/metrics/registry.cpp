@@ -12,6 +12,7 @@ std::unique_ptr<Metric> make_warp_error_long_metric(const AnalysisSettings&);
 std::unique_ptr<Metric> make_flicker_metric(const AnalysisSettings&);
 std::unique_ptr<Metric> make_freeze_metric(const AnalysisSettings&);
 std::unique_ptr<Metric> make_cut_metric(const AnalysisSettings&);
+std::unique_ptr<Metric> make_drift_metric(const AnalysisSettings&);
 
 using MetricFactory = std::unique_ptr<Metric> (*)(const AnalysisSettings&);
 
@@ -21,6 +22,7 @@ static const MetricFactory kMetricTable[] = {
     make_flicker_metric,
     make_freeze_metric,
     make_cut_metric,
+    make_drift_metric,
 };
 
 std::vector<std::unique_ptr<Metric>> make_metrics(const AnalysisSettings& settings) {
