@@ -34,6 +34,7 @@ struct DriftParams {
   // Times (seconds).
   double proposal_interval_s = 0.5;  // how often new objects are looked for
   double point_pull_time_s = 0.3;    // points relax toward their object's motion
+  double probation_s = 0.4;          // a new moving object's support is checked once then
   double vanish_after_s = 0.3;       // missing without occlusion this long -> vanished
   double lost_after_s = 2.0;         // occluded this long -> lost
 

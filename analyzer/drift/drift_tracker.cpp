@@ -206,6 +206,7 @@ void DriftTracker::propose(const FramePair& pair, bool shot_start) {
 // Points whose window lies wholly on the object: their reference look holds
 // no background, so they anchor the alignment (reference_alignment.h).
 void mark_interior_points(std::vector<TrackPoint>& points, int spacing) {
+  if (points.empty()) return;
   std::set<std::pair<int, int>> nodes;
   auto node = [spacing](cv::Point2f p) {
     return std::pair<int, int>(static_cast<int>(std::lround(p.x / spacing)),
@@ -225,6 +226,8 @@ void DriftTracker::add_object(const RegionProposal& region, ObjectKind kind,
   object.id = next_id_++;
   object.kind = kind;
   object.first_frame = object.last_frame = object.last_seen_frame = pair.prev->index;
+  object.first_t_s = pair.prev->t_s;
+  object.confirmed = kind == ObjectKind::scene;
   object.camera_at_reference = camera_path_prev_;
   object.points.resize(region.points.size());
   cv::Point2f sum(0, 0);

@@ -25,6 +25,10 @@
 
 namespace framelint::drift {
 
+// Marks the points whose four grid neighbours (at `spacing`) are also
+// points of the object: their windows hold no background.
+void mark_interior_points(std::vector<TrackPoint>& points, int spacing);
+
 // Appearance of an object's visible points, summed for means.
 struct AppearanceSums {
   double pred[3] = {0, 0, 0};  // L*, a*, b* of the reference, illumination applied
@@ -96,6 +100,7 @@ class DriftTracker {
   void fit_object_motion(const FramePair& pair, ObjectTrack& object);
   double object_scale(const ObjectTrack& object);
   void observe_points(const FramePair& pair, ObjectTrack& object, PointCounts& counts);
+  void confirm_support(const FramePair& pair, ObjectTrack& object);
   void decide_state(const FramePair& pair, ObjectTrack& object, const PointCounts& counts,
                     const ObjectLook& look);
   bool point_present(const TrackPoint& point, const cv::Vec3f& predicted, const cv::Vec3f& cur,

@@ -60,6 +60,8 @@ struct ObjectTrack {
   ObjectKind kind = ObjectKind::moving;
   int64_t first_frame = 0, last_frame = 0;
   int64_t last_seen_frame = 0;  // last frame with enough visible support
+  double first_t_s = 0;
+  bool confirmed = false;  // its support was checked once after a short probation
   cv::Matx33d camera_at_reference = cv::Matx33d::eye();  // shot camera path at first frame
   cv::Point2f ref_centroid;
   float ref_extent_px = 0;  // larger side of the reference box

@@ -212,6 +212,7 @@ ObjectSample DriftTracker::update_object(const FramePair& pair, ObjectTrack& obj
   all_ = AppearanceSums{}, interior_ = AppearanceSums{};
   PointCounts counts;
   observe_points(pair, object, counts);
+  confirm_support(pair, object);
   const int reference_count = static_cast<int>(object.points.size());
   sample.visible_fraction = static_cast<float>(counts.visible) / std::max(1, reference_count);
   sample.box = counts.box;
@@ -247,6 +248,55 @@ ObjectSample DriftTracker::update_object(const FramePair& pair, ObjectTrack& obj
   }
   decide_state(pair, object, counts, look);
   return sample;
+}
+
+// A moving region found by its motion in one frame pair carries a fringe of
+// background: flow is smeared across the object's edge, so background next
+// to its leading edge seems to move with it. After a short probation the
+// points that do not look like their reference any more (they now show the
+// object, not the background they started on) leave the object for good.
+void DriftTracker::confirm_support(const FramePair& pair, ObjectTrack& object) {
+  if (object.confirmed || pair.cur->t_s - object.first_t_s < params_.probation_s) return;
+  object.confirmed = true;
+  // The object's own gray pattern, reference against now (least squares
+  // gain and offset over its followed points), and each point's departure
+  // from it: a fringe point started on background and now shows the object.
+  double n = 0, sr = 0, sn = 0, srr = 0, srn = 0;
+  for (const auto& p : object.points) {
+    if (p.state != PointState::tracked) continue;
+    const double r = p.ref_coarse_gray, now = cur_features_.coarse_gray(p.pos);
+    n += 1, sr += r, sn += now, srr += r * r, srn += r * now;
+  }
+  if (n < params_.min_mover_points) return;
+  const double var = srr - sr * sr / n;
+  const double gain = var > 1e-9 ? (srn - sr * sn / n) / var : 1.0;
+  const double offset = (sn - gain * sr) / n;
+  ratios_.clear();
+  for (const auto& p : object.points) {
+    if (p.state != PointState::tracked) continue;
+    const double r = cur_features_.coarse_gray(p.pos) - (gain * p.ref_coarse_gray + offset);
+    ratios_.push_back(static_cast<float>(std::abs(r)));
+  }
+  auto mid = ratios_.begin() + static_cast<std::ptrdiff_t>(ratios_.size() / 2);
+  std::nth_element(ratios_.begin(), mid, ratios_.end());
+  const double limit = std::max(0.03, 3.0 * 1.4826 * *mid);
+  const auto keeps = [&](const TrackPoint& p) {
+    if (p.state != PointState::tracked || !p.present) return false;
+    const double r = cur_features_.coarse_gray(p.pos) - (gain * p.ref_coarse_gray + offset);
+    return std::abs(r) <= limit;
+  };
+  const auto kept = std::count_if(object.points.begin(), object.points.end(), keeps);
+  if (kept < std::max<std::ptrdiff_t>(params_.min_mover_points, object.points.size() * 3 / 10)) return;
+  std::erase_if(object.points, [&](const TrackPoint& p) { return !keeps(p); });
+  cv::Point2f sum(0, 0);
+  cv::Rect2f box(object.points.front().ref_pos, cv::Size2f(0, 0));
+  for (const auto& p : object.points) {
+    sum += p.ref_pos;
+    box |= cv::Rect2f(p.ref_pos, cv::Size2f(1, 1));
+  }
+  object.ref_centroid = sum * (1.0f / static_cast<float>(object.points.size()));
+  object.ref_extent_px = std::max(box.width, box.height);
+  mark_interior_points(object.points, params_.object_step_px);
 }
 
 void DriftTracker::decide_state(const FramePair& pair, ObjectTrack& object,

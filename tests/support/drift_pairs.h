@@ -1,44 +1,33 @@
-// Test support for drift: frame pairs built the way the pipeline builds them
-// (OpenCV DIS flow both ways, the Sundaram et al. 2010 forward-backward
-// check, a RANSAC homography of the camera motion), a driver that runs a
-// Metric over frames in pipeline order, and frame sources for real footage.
+// Test support for drift: runs the drift metric over frames made in memory
+// with the pipeline's own pair builder (DIS flow both ways, the Sundaram et
+// al. 2010 forward-backward check, the RANSAC camera homography), in the
+// order the pipeline uses; and paths to opencv-doc sample data.
 #pragma once
 
-#include <memory>
-#include <optional>
 #include <string>
 #include <vector>
 
 #include <opencv2/core.hpp>
 
-#include "analyzer/metrics/frame_pair.h"
-#include "analyzer/metrics/metric.h"
+#include "framelint/analysis.h"
 #include "framelint/report.h"
 
 namespace framelint::test {
 
-FramePlanes make_planes(int64_t index, double t_s, const cv::Mat& bgr);
+// measure_first, then per pair measure_pair and observe_in_order, then
+// finish, like analyze_source; frame i is at i / fps. The report holds the
+// drift columns and objects only (no segmenter, no other metric).
+Report run_drift_on_frames(const std::vector<cv::Mat>& frames, double fps,
+                           const AnalysisSettings& settings = {});
 
-class TestPairBuilder {
- public:
-  TestPairBuilder();
-  ~TestPairBuilder();
-  void build(const FramePlanes& prev, const FramePlanes& cur, FramePair& pair);
-
- private:
-  struct Impl;
-  std::unique_ptr<Impl> impl_;
-};
-
-// Runs `metric` over the frames like the pipeline: measure_first, then per
-// pair measure_pair and observe_in_order, then finish. Frame i is at i / fps.
-Report run_metric_on_frames(Metric& metric, const std::vector<cv::Mat>& frames, double fps);
-
-// Decodes the first `max_frames` frames of a video with the ffmpeg CLI,
-// scaled to `long_side` (even sizes). Empty when ffmpeg or the file is missing.
-std::vector<cv::Mat> read_video_frames(const std::string& path, int max_frames, int long_side);
-
-// opencv-doc sample data folder, or "" when absent.
+// opencv-doc sample data file, or "" when absent.
 std::string opencv_sample(const std::string& name);
+
+// The object whose first box overlaps `where` most (intersection over the
+// object's box), or nullptr.
+const TrackedObject* object_at(const Report& report, const cv::Rect2f& where, int64_t frame);
+
+// Value of an object's sampled series `key` at the sample nearest `frame`.
+double object_value(const TrackedObject& object, const std::string& key, int64_t frame);
 
 }  // namespace framelint::test
