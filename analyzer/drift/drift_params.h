@@ -24,38 +24,40 @@ struct DriftParams {
   float min_mover_speed_px_s = 8;   // residual speed that marks a moving region
   float min_mover_step_px = 0.35f;  // ... and never below flow noise per frame
   float ransac_inlier_px = 2;       // similarity fit inlier distance
-  float slide_outlier_px = 12;      // a point this far off its object's motion has slid
+  float slide_outlier_px = 6;       // a point this far off its object's motion has slid
   float scene_slide_px = 3;         // ... for the static scene, which moves rigidly
 
   // Counts.
   int max_objects = 8;
-  int min_mover_points = 10;  // smaller moving components are fragments
+  int min_mover_points = 25;  // smaller moving components are fragments (~0.4% of the frame)
+  int min_points_for_scale_alignment = 60;
 
   // Times (seconds).
   double proposal_interval_s = 0.5;  // how often new objects are looked for
   double point_pull_time_s = 0.3;    // points relax toward their object's motion
   double probation_s = 0.4;          // a new moving object's support is checked once then
+  double unreliable_end_s = 1.0;     // an object no longer measurable ends (lost) after this
+  // Continuity: larger changes within this window are tracking breaks.
+  double continuity_window_s = 0.5;
+  double max_colour_jump_de00 = 8;
+  double max_size_jump_log = std::log(1.2);
+  double max_structure_jump = 0.25;
   double vanish_after_s = 0.3;       // missing without occlusion this long -> vanished
   double lost_after_s = 2.0;         // occluded this long -> lost
 
   // Appearance thresholds.
-  float point_structure_match = 0.5f;  // per-point gradient-histogram distance
-  float point_colour_match_de00 = 20;  // per-point CIEDE2000, untextured points
+  float point_gray_tolerance = 0.05f;  // a point matches its reference gray this well
   float reacquire_colour_de00 = 12;    // a hidden point comes back only this close
-  // An object shows itself while the gray pattern of its points correlates
-  // with the reference this well (a faded-out object shows the background's
-  // pattern: about 0); a flat object until its colour is this far off.
-  double min_pattern_correlation = 0.4;
-  double flat_object_gone_de00 = 35;
   float textured_mass = 2.0f;  // mean |gradient| (gray levels/px) of a textured window
   float cut_valid_fraction = 0.3f;
   float cut_histogram_distance = 0.35f;
 
   // The combined drift scale: each aspect divided by the level at which a
   // reviewer sees a clear departure, so drift 1.0 = "clearly visible".
-  double colour_unit_de00 = 10;    // CIEDE2000 of mean colour
-  double structure_unit = 0.4;     // gradient-orientation measure distance
-  double size_unit_log = std::log(1.25);  // 25% larger or 20% smaller
+  double colour_unit_de00 = 20;    // CIEDE2000 of mean colour
+  double structure_unit = 0.6;     // gradient-orientation measure distance
+  double size_unit_log = std::log(1.25);  // 25% larger or 20% smaller within the size window
+  double size_window_s = 2.0;
 
   static DriftParams for_frame(int width, int height, int max_objects) {
     DriftParams p;

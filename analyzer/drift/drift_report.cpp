@@ -15,6 +15,25 @@ nlohmann::json number_or_null(double v, double unit) {
   return std::round(v / unit) * unit;
 }
 
+// Where a stretch of drift began: the last sample before it reached the
+// enter level at which the drift was still at its baseline (the median
+// since the previous stretch, plus 0.05). A slow departure is reported from
+// its onset, not from the moment it crossed the enter level.
+size_t onset(const std::vector<ObjectSample>& h, size_t floor_from, size_t crossing) {
+  std::vector<double> before;
+  for (size_t i = floor_from; i < crossing; ++i) {
+    if (std::isfinite(h[i].drift)) before.push_back(h[i].drift);
+  }
+  if (before.empty()) return crossing;
+  std::nth_element(before.begin(), before.begin() + static_cast<std::ptrdiff_t>(before.size() / 2),
+                   before.end());
+  const double baseline = before[before.size() / 2] + 0.05;
+  for (size_t i = crossing; i-- > floor_from;) {
+    if (std::isfinite(h[i].drift) && h[i].drift <= baseline) return i;
+  }
+  return floor_from;
+}
+
 // Indices into the history to write out: about kSamplesPerSecond per second,
 // at most kMaxSamples, always the first, the last and the peak.
 std::vector<size_t> sample_indices(const ObjectTrack& object, size_t peak) {
@@ -34,22 +53,24 @@ std::vector<size_t> sample_indices(const ObjectTrack& object, size_t peak) {
 }
 
 nlohmann::json object_segments(const ObjectTrack& object, const ObjectSegmentRule& rule) {
-  struct Open {
+  struct Stretch {
     size_t start = 0, end = 0, peak = 0;
   };
-  std::vector<Open> found;
+  std::vector<Stretch> found;
   const auto& h = object.history;
   bool open = false;
-  Open cur;
+  Stretch cur;
+  size_t floor_from = 0;  // where the previous stretch ended
   for (size_t i = 0; i < h.size(); ++i) {
     const double v = h[i].drift;
     if (!std::isfinite(v)) continue;  // hidden: neither opens nor closes
     if (!open && v >= rule.enter) {
       open = true;
-      cur = {i, i, i};
+      cur = {onset(h, floor_from, i), i, i};
     } else if (open && v < rule.leave) {
       open = false;
       found.push_back(cur);
+      floor_from = i;
       continue;
     }
     if (open) {
@@ -58,9 +79,10 @@ nlohmann::json object_segments(const ObjectTrack& object, const ObjectSegmentRul
     }
   }
   if (open) found.push_back(cur);
-  std::vector<Open> merged;
+  std::vector<Stretch> merged;
   for (const auto& s : found) {
-    if (!merged.empty() && h[s.start].frame - h[merged.back().end].frame <= rule.merge_gap_frames + 1) {
+    if (!merged.empty() &&
+        h[s.start].frame - h[merged.back().end].frame <= rule.merge_gap_frames + 1) {
       auto& last = merged.back();
       last.end = s.end;
       if (h[s.peak].drift > h[last.peak].drift) last.peak = s.peak;
@@ -116,7 +138,8 @@ TrackedObject to_tracked_object(const ObjectTrack& object, int frame_width, int 
   nlohmann::json frames = nlohmann::json::array(), boxes = nlohmann::json::array(),
                  boxes_frac = nlohmann::json::array(), drift = nlohmann::json::array(),
                  colour = nlohmann::json::array(), structure = nlohmann::json::array(),
-                 size = nlohmann::json::array(), visible = nlohmann::json::array();
+                 size = nlohmann::json::array(), size_window = nlohmann::json::array(),
+                 visible = nlohmann::json::array();
   std::vector<double> t, drift_values, colour_values;
   const double w = std::max(1, frame_width), hgt = std::max(1, frame_height);
   for (size_t i : sample_indices(object, peak)) {
@@ -131,6 +154,7 @@ TrackedObject to_tracked_object(const ObjectTrack& object, int frame_width, int 
     colour.push_back(number_or_null(s.color_de00, 1e-3));
     structure.push_back(number_or_null(s.structure, 1e-4));
     size.push_back(number_or_null(s.size_pct, 1e-2));
+    size_window.push_back(number_or_null(s.size_window_pct, 1e-2));
     visible.push_back(number_or_null(100.0 * s.visible_fraction, 0.1));
     t.push_back(s.t_s);
     drift_values.push_back(s.drift);
@@ -147,6 +171,7 @@ TrackedObject to_tracked_object(const ObjectTrack& object, int frame_width, int 
       {"color_de00", std::move(colour)},
       {"structure", std::move(structure)},
       {"size_pct", std::move(size)},
+      {"size_window_pct", std::move(size_window)},
       {"visible_pct", std::move(visible)},
       {"peak_drift", h.empty() ? nlohmann::json(nullptr) : number_or_null(h[peak].drift, 1e-4)},
       {"peak_frame", h.empty() ? nlohmann::json(nullptr) : nlohmann::json(h[peak].frame)},

@@ -52,10 +52,9 @@ FrameDrift DriftTracker::step(const FramePair& pair) {
   std::swap(prev_features_, cur_features_);
   if (prev_features_.frame_index() != pair.prev->index) {
     prev_features_.compute(pair.prev->index, pair.prev->gray, pair.prev->bgr,
-                           params_.window_radius_px, params_.histogram_radius_px);
+                           params_.window_radius_px);
   }
-  cur_features_.compute(pair.cur->index, pair.cur->gray, pair.cur->bgr, params_.window_radius_px,
-                        params_.histogram_radius_px);
+  cur_features_.compute(pair.cur->index, pair.cur->gray, pair.cur->bgr, params_.window_radius_px);
 
   if (shot_active_ && is_cut(pair)) {
     end_shot(pair);
@@ -84,7 +83,7 @@ FrameDrift DriftTracker::step(const FramePair& pair) {
       result.drift = sample.drift;
       result.color_de00 = sample.color_de00;
       result.structure = sample.structure;
-      result.size_pct = sample.size_pct;
+      result.size_pct = sample.size_window_pct;
       result.object_id = object.id;
     }
   }
@@ -142,7 +141,7 @@ void DriftTracker::seed_point(cv::Point2f p, TrackPoint& point) const {
   point.present = true;
   point.ref_rgb = illumination_prev_.invert(prev_features_.colour(p));
   point.ref_gray = prev_features_.gray(p);
-  point.ref_coarse_gray = prev_features_.coarse_gray(p);
+  point.ref_slope = sample_gray_gradient(prev_features_.magnitude(), p) / 255.0f;
   const float mass = prev_features_.local_histogram(p, params_.histogram_radius_px, params_.histogram_stride_px, 0, point.ref_hist);
   const int samples = 2 * params_.histogram_radius_px / params_.histogram_stride_px + 1;
   point.textured = mass >= params_.textured_mass * samples * samples;
@@ -177,12 +176,12 @@ void DriftTracker::propose(const FramePair& pair, bool shot_start) {
   const NodeGrid grid = NodeGrid::for_frame(frame.bgr.cols, frame.bgr.rows, params_.object_step_px);
   const float threshold =
       std::max(params_.min_mover_step_px, params_.min_mover_speed_px_s * static_cast<float>(pair.dt_s));
-  mark_moving_nodes(pair, grid, threshold, moving_nodes_);
+  mark_moving_nodes(pair, grid, threshold, motion_masks_);
   mark_covered_nodes(grid, covered_nodes_);
 
   int free_slots = max_objects_ - active_count();
   for (const auto& region :
-       propose_moving_regions(pair, moving_nodes_, covered_nodes_, grid, params_.min_mover_points)) {
+       propose_moving_regions(pair, motion_masks_, covered_nodes_, grid, params_.min_mover_points)) {
     if (free_slots <= 0) break;
     add_object(region, ObjectKind::moving, pair);
     --free_slots;
@@ -192,7 +191,7 @@ void DriftTracker::propose(const FramePair& pair, bool shot_start) {
   int scene_slots = std::min(free_slots, max_objects_ - reserve - active_count());
   if (scene_slots > 0) {
     mark_covered_nodes(grid, covered_nodes_);
-    for (const auto& cell : propose_scene_cells(prev_features_.magnitude(), moving_nodes_,
+    for (const auto& cell : propose_scene_cells(prev_features_.magnitude(), motion_masks_.flow,
                                                 covered_nodes_, grid, 0.5f)) {
       if (scene_slots <= 0) break;
       add_object(cell, ObjectKind::scene, pair);
@@ -244,7 +243,7 @@ void DriftTracker::add_object(const RegionProposal& region, ObjectKind kind,
   first.frame = pair.prev->index;
   first.t_s = pair.prev->t_s;
   first.box = cv::Rect2f(region.box);
-  first.drift = first.color_de00 = first.structure = first.size_pct = 0;
+  first.drift = first.color_de00 = first.structure = first.size_pct = first.size_window_pct = 0;
   first.visible_fraction = 1;
   object.history.push_back(first);
   objects_.push_back(std::move(object));
@@ -273,6 +272,7 @@ void DriftTracker::advect(const FramePair& pair, std::vector<TrackPoint>& points
     if (p.state != PointState::tracked) continue;
     const cv::Vec2f f = sample_flow(pair.flow_forward, p.pos);
     const cv::Point2f moved(p.pos.x + f[0], p.pos.y + f[1]);
+    p.flow_step = cv::Point2f(f[0], f[1]);
     if (!inside(frame, moved)) {
       p.pos = moved;
       p.state = PointState::outside;

@@ -35,15 +35,14 @@ struct AppearanceSums {
   double now[3] = {0, 0, 0};   // L*, a*, b* seen now
   OrientationHistogram ref_hist{}, cur_hist{};
   float ref_mass = 0;
-  // Gray levels (reference, now) for the pattern correlation.
-  double g_ref = 0, g_now = 0, g_ref2 = 0, g_now2 = 0, g_cross = 0;
   int count = 0;
   void add(const TrackPoint& p, const cv::Vec3f& predicted, const cv::Vec3f& cur,
-           const OrientationHistogram& hist, float gray_now);
-  // Pearson correlation of the points' gray levels, reference against now:
-  // whether the object still shows its own pattern (invariant to a
-  // brightness or contrast change). NaN when the reference is flat.
-  double pattern_correlation() const;
+           const OrientationHistogram& hist);
+};
+
+// An object's gray levels now = gain * reference + offset.
+struct GrayFit {
+  double gain = 1, offset = 0;
 };
 
 // What became of an object's points this frame.
@@ -59,8 +58,8 @@ struct PointCounts {
 
 // How an object looks this frame against its reference.
 struct ObjectLook {
-  double pattern_correlation = 0;  // NaN for a flat object
   double colour_de00 = 0;
+  cv::Vec3f colour_now, colour_ref;  // mean CIELAB now, and of the reference
   bool measured = false;
 };
 
@@ -103,8 +102,13 @@ class DriftTracker {
   void confirm_support(const FramePair& pair, ObjectTrack& object);
   void decide_state(const FramePair& pair, ObjectTrack& object, const PointCounts& counts,
                     const ObjectLook& look);
-  bool point_present(const TrackPoint& point, const cv::Vec3f& predicted, const cv::Vec3f& cur,
-                     const OrientationHistogram& hist) const;
+  bool looks_like_itself(const PointCounts& counts) const;
+  bool breaks_continuity(const ObjectTrack& object, const ObjectSample& now) const;
+  GrayFit fit_object_gray(const ObjectTrack& object) const;
+  bool behind_other_object(const ObjectTrack& object, const cv::Rect2f& box) const;
+  static float last_size_pct(const ObjectTrack& object);
+  float size_change_over_window(const ObjectTrack& object, const ObjectSample& now) const;
+  bool point_present(const TrackPoint& point, const GrayFit& fit) const;
   bool is_cut(const FramePair& pair);
   void mark_covered_nodes(const NodeGrid& grid, cv::Mat& covered) const;
   int active_count() const;
@@ -134,7 +138,8 @@ class DriftTracker {
   std::vector<uint8_t> inliers_;
   std::vector<float> ratios_;
   AppearanceSums all_, interior_;
-  cv::Mat moving_nodes_, covered_nodes_, hist_prev_, hist_cur_;
+  MotionMasks motion_masks_;
+  cv::Mat covered_nodes_, hist_prev_, hist_cur_;
 };
 
 }  // namespace framelint::drift

@@ -9,14 +9,11 @@
 namespace framelint::drift {
 
 void FrameFeatures::compute(int64_t frame_index, const cv::Mat& gray, const cv::Mat& bgr,
-                            int window_radius, int coarse_radius) {
+                            int window_radius) {
   frame_index_ = frame_index;
   const int side = 2 * window_radius + 1;
   cv::blur(bgr, window_colour_, cv::Size(side, side), cv::Point(-1, -1), cv::BORDER_REPLICATE);
   cv::blur(gray, window_gray_, cv::Size(side, side), cv::Point(-1, -1), cv::BORDER_REPLICATE);
-  const int coarse_side = 2 * coarse_radius + 1;
-  cv::blur(gray, coarse_gray_, cv::Size(coarse_side, coarse_side), cv::Point(-1, -1),
-           cv::BORDER_REPLICATE);
   // sigma 1 smoothing keeps the orientation of fine texture but removes the
   // pixel noise and block edges of compressed video (common practice).
   cv::GaussianBlur(gray, smoothed_, cv::Size(5, 5), 1.0, 1.0, cv::BORDER_REPLICATE);
@@ -29,8 +26,6 @@ void FrameFeatures::compute(int64_t frame_index, const cv::Mat& gray, const cv::
 cv::Vec3f FrameFeatures::colour(cv::Point2f p) const { return sample_colour(window_colour_, p); }
 
 float FrameFeatures::gray(cv::Point2f p) const { return sample_gray(window_gray_, p); }
-
-float FrameFeatures::coarse_gray(cv::Point2f p) const { return sample_gray(coarse_gray_, p); }
 
 float FrameFeatures::local_histogram(cv::Point2f p, int radius, int stride, float rotation_rad,
                                      OrientationHistogram& out) const {

@@ -20,8 +20,7 @@ class FrameFeatures {
  public:
   // Recomputes the planes for a frame (gray CV_8UC1, bgr CV_8UC3) with
   // windows of (2 * radius + 1) pixels; buffers are reused.
-  void compute(int64_t frame_index, const cv::Mat& gray, const cv::Mat& bgr, int window_radius,
-               int coarse_radius);
+  void compute(int64_t frame_index, const cv::Mat& gray, const cv::Mat& bgr, int window_radius);
 
   int64_t frame_index() const { return frame_index_; }
   const cv::Mat& magnitude() const { return magnitude_; }
@@ -31,9 +30,6 @@ class FrameFeatures {
   // sRGB in [0,1], B, G, R; and the window-mean gray level in [0,1].
   cv::Vec3f colour(cv::Point2f p) const;
   float gray(cv::Point2f p) const;
-  // Gray level averaged over the wider histogram window: the object's
-  // pattern at a scale where a point a few pixels off still reads the same.
-  float coarse_gray(cv::Point2f p) const;
 
   // Histogram over the (2r+1)^2 window centred on `p`, read every `stride`
   // pixels, with orientations measured relative to `rotation_rad` (the
@@ -44,7 +40,7 @@ class FrameFeatures {
 
  private:
   int64_t frame_index_ = -1;
-  cv::Mat smoothed_, gx_, gy_, magnitude_, angle_, window_colour_, window_gray_, coarse_gray_;
+  cv::Mat smoothed_, gx_, gy_, magnitude_, angle_, window_colour_, window_gray_;
 };
 
 // Generalised Hellinger distance between two non-negative measures, after

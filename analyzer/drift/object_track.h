@@ -28,13 +28,17 @@ struct TrackPoint {
   // illumination of the shot's first frame (see IlluminationMap::invert).
   cv::Vec3f ref_rgb;
   float ref_gray = 0;  // window-mean gray level at reference, for re-anchoring
-  float ref_coarse_gray = 0;  // wider-window gray level, for the pattern test
+  float ref_slope = 0;  // gray-level gradient magnitude at reference, per pixel, in [0,1] units
   float ref_mass = 0;  // total gradient magnitude of the reference window
   OrientationHistogram ref_hist{};
   PointState state = PointState::tracked;
   bool textured = false;
   bool interior = false;  // all four grid neighbours belong to the object too
   bool present = true;  // appearance still matches the reference
+  // During a new object's probation: how far its flow steps fell from the
+  // object's own motion and from the camera's (summed, pixels).
+  cv::Point2f flow_step;
+  float own_motion_error = 0, camera_motion_error = 0;
 };
 
 enum class ObjectKind { moving, scene };
@@ -51,8 +55,10 @@ struct ObjectSample {
   float drift = kNotMeasured;
   float color_de00 = kNotMeasured;
   float structure = kNotMeasured;
-  float size_pct = kNotMeasured;
+  float size_pct = kNotMeasured;         // scale against the first look, camera removed
+  float size_window_pct = kNotMeasured;  // scale change over the size window
   float visible_fraction = 0;  // share of its reference points seen now
+  cv::Vec3f colour_now, colour_ref;  // mean CIELAB (L*, a*, b*) now and of the reference
 };
 
 struct ObjectTrack {
@@ -62,6 +68,8 @@ struct ObjectTrack {
   int64_t last_seen_frame = 0;  // last frame with enough visible support
   double first_t_s = 0;
   bool confirmed = false;  // its support was checked once after a short probation
+  bool unreliable = false;  // a tracking break was seen: no longer measured
+  double unreliable_since_s = 0;
   cv::Matx33d camera_at_reference = cv::Matx33d::eye();  // shot camera path at first frame
   cv::Point2f ref_centroid;
   float ref_extent_px = 0;  // larger side of the reference box

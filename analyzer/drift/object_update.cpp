@@ -31,10 +31,7 @@ bool valid_at(const cv::Mat& valid, cv::Point2f p) {
 }  // namespace
 
 void AppearanceSums::add(const TrackPoint& p, const cv::Vec3f& predicted, const cv::Vec3f& cur,
-                         const OrientationHistogram& hist, float gray_now) {
-  const double r = p.ref_coarse_gray;
-  g_ref += r, g_now += gray_now;
-  g_ref2 += r * r, g_now2 += gray_now * gray_now, g_cross += r * gray_now;
+                         const OrientationHistogram& hist) {
   const color::Lab lp = lab_of(predicted), lc = lab_of(cur);
   pred[0] += lp.l, pred[1] += lp.a, pred[2] += lp.b;
   now[0] += lc.l, now[1] += lc.a, now[2] += lc.b;
@@ -43,25 +40,48 @@ void AppearanceSums::add(const TrackPoint& p, const cv::Vec3f& predicted, const 
   ++count;
 }
 
-double AppearanceSums::pattern_correlation() const {
-  if (count < 3) return std::nan("");
-  const double n = count;
-  const double var_ref = g_ref2 / n - (g_ref / n) * (g_ref / n);
-  const double var_now = g_now2 / n - (g_now / n) * (g_now / n);
-  constexpr double kFlat = 0.02 * 0.02;  // about 5 gray levels of spread
-  if (var_ref < kFlat) return std::nan("");
-  if (var_now <= 1e-12) return 0;
-  return (g_cross / n - (g_ref / n) * (g_now / n)) / std::sqrt(var_ref * var_now);
+
+
+// The object shows itself while most of its followed points show their own
+// material (a faded-out or replaced object shows something else).
+bool DriftTracker::looks_like_itself(const PointCounts& counts) const {
+  return counts.tracked >= 3 && counts.visible * 2 >= counts.tracked;
 }
 
-bool DriftTracker::point_present(const TrackPoint& point, const cv::Vec3f& predicted,
-                                 const cv::Vec3f& cur, const OrientationHistogram& hist) const {
-  if (point.textured) {
-    return histogram_distance(point.ref_hist.data(), hist.data(), point.ref_mass, contrast_gain_) <
-           params_.point_structure_match;
+bool DriftTracker::behind_other_object(const ObjectTrack& object, const cv::Rect2f& box) const {
+  if (box.area() <= 0) return false;
+  for (const auto& other : objects_) {
+    if (&other == &object || other.ended || other.kind != ObjectKind::moving || other.history.empty()) continue;
+    if ((other.history.back().box & box).area() > 0.3f * box.area()) return true;
   }
-  return color::ciede2000(lab_of(predicted), lab_of(cur)) < params_.point_colour_match_de00;
+  return false;
 }
+
+// Size change over the last `size_window_s` (against the measured sample
+// nearest that far back, or the first look for a younger object), in %.
+// Size is read over a window, not against the first look: in real footage
+// an object walking away from a static camera shrinks by a third over a
+// few seconds by perspective alone (opencv-doc vtest.avi), while a size
+// defect in a generated clip is a change within a second or two.
+float DriftTracker::size_change_over_window(const ObjectTrack& object,
+                                            const ObjectSample& now) const {
+  const ObjectSample* then = nullptr;
+  for (auto it = object.history.rbegin(); it != object.history.rend(); ++it) {
+    if (!std::isfinite(it->size_pct)) continue;
+    then = &*it;
+    if (now.t_s - it->t_s >= params_.size_window_s) break;
+  }
+  if (!then) return now.size_pct;
+  return static_cast<float>(100.0 * ((1.0 + now.size_pct / 100.0) / (1.0 + then->size_pct / 100.0) - 1.0));
+}
+
+float DriftTracker::last_size_pct(const ObjectTrack& object) {
+  for (auto it = object.history.rbegin(); it != object.history.rend(); ++it) {
+    if (std::isfinite(it->size_pct)) return it->size_pct;
+  }
+  return 0;
+}
+
 
 void DriftTracker::fit_object_motion(const FramePair& pair, ObjectTrack& object) {
   // Re-anchor the tracked points on their reference look (interior points
@@ -78,6 +98,11 @@ void DriftTracker::fit_object_motion(const FramePair& pair, ObjectTrack& object)
   AlignmentLimits limits;
   limits.max_shift_px = 2.0f * params_.px_scale;
   limits.max_rim_px = 1.0f * params_.px_scale;
+  // Scale is aligned only on objects with a large textured interior; on a
+  // small articulated figure (a walking person at 512 px) it follows the
+  // limbs and swings by a fifth within a second; the flow's scale is used.
+  limits.max_scale_rim_px =
+      interior_tracked >= params_.min_points_for_scale_alignment ? 0.5f * params_.px_scale : 0.0f;
   Similarity correction;
   if (align_to_reference(cur_features_.window_gray(), aligned_, templates_, limits, correction)) {
     for (auto& p : object.points) {
@@ -100,7 +125,19 @@ void DriftTracker::fit_object_motion(const FramePair& pair, ObjectTrack& object)
     return;
   }
   const uint32_t seed = static_cast<uint32_t>(object.id * 7919 + pair.cur->index);
+  const Similarity motion_before = object.motion;
   fit_similarity(src_, dst_, params_.ransac_inlier_px, seed, object.motion, inliers_);
+  if (!object.confirmed) {
+    // Probation: does each point move with the object or with the camera?
+    for (size_t k = 0; k < src_.size(); ++k) {
+      TrackPoint& p = object.points[src_index_[k]];
+      const cv::Point2f from = dst_[k] - p.flow_step;
+      const cv::Point2f own = object.motion.apply(src_[k]) - motion_before.apply(src_[k]);
+      const cv::Point2f camera = apply_homography(pair.camera_homography, from) - from;
+      p.own_motion_error += static_cast<float>(cv::norm(p.flow_step - own));
+      p.camera_motion_error += static_cast<float>(cv::norm(p.flow_step - camera));
+    }
+  }
   // A point far off its object's motion has slid onto something else (an
   // occluder dragged it along): it leaves its chain. The static scene moves
   // rigidly with the camera; moving objects may bend (limbs).
@@ -108,7 +145,7 @@ void DriftTracker::fit_object_motion(const FramePair& pair, ObjectTrack& object)
       object.kind == ObjectKind::scene
           ? params_.scene_slide_px
           : std::max(params_.slide_outlier_px,
-                     0.3f * object.ref_extent_px * static_cast<float>(object.motion.scale()));
+                     0.15f * object.ref_extent_px * static_cast<float>(object.motion.scale()));
   // Each tracked point is also pulled toward where the object's motion puts
   // it, with a time constant in seconds (frame-rate independent): flow
   // errors that differ from point to point (DIS smooths motion boundaries,
@@ -152,10 +189,68 @@ double DriftTracker::object_scale(const ObjectTrack& object) {
   return *mid;
 }
 
+// The object's gray pattern now against its reference, over its followed
+// points: least-squares gain and offset (the object may get brighter or
+// lose contrast as a whole), the gain held to [0.5, 2] so that a faded-out
+// object over flat background does not fit with gain 0.
+GrayFit DriftTracker::fit_object_gray(const ObjectTrack& object) const {
+  double n = 0, sr = 0, sn = 0, srr = 0, srn = 0;
+  int interior = 0;
+  for (const auto& p : object.points) interior += p.interior && p.state == PointState::tracked;
+  const bool interior_only = interior >= 8;
+  for (const auto& p : object.points) {
+    if (p.state != PointState::tracked || (interior_only && !p.interior)) continue;
+    const double r = p.ref_gray, now = cur_features_.gray(p.pos);
+    n += 1, sr += r, sn += now, srr += r * r, srn += r * now;
+  }
+  GrayFit fit;
+  if (n < 3) return fit;
+  const double var = srr - sr * sr / n;
+  if (var > 1e-6 * n) fit.gain = std::clamp((srn - sr * sn / n) / var, 0.5, 2.0);
+  fit.offset = (sn - fit.gain * sr) / n;
+  return fit;
+}
+
+// A point shows its own material when its window-mean gray level matches
+// the reference under the object's gain and offset, within a tolerance that
+// allows for a pixel and a half of misregistration on its local gradient.
+// Drift is a gradual departure. A jump within half a second (the object's
+// colour moves by more than 8 CIEDE2000, its size by 20%, its structure by
+// 0.25) is what a tracking break looks like: the points were handed over
+// to another object in a crossing, or slid off behind an occluder. From
+// then on the object is not measured (an abrupt change of the picture is
+// the warp-error metric's to flag).
+bool DriftTracker::breaks_continuity(const ObjectTrack& object, const ObjectSample& now) const {
+  if (!object.confirmed) return false;  // the probation settles the point set first
+  const ObjectSample* prior = nullptr;
+  for (auto it = object.history.rbegin(); it != object.history.rend(); ++it) {
+    if (!std::isfinite(it->drift)) continue;
+    prior = &*it;
+    if (now.t_s - it->t_s >= params_.continuity_window_s) break;
+  }
+  if (!prior) return false;
+  const double span = std::clamp((now.t_s - prior->t_s) / params_.continuity_window_s, 1.0, 1.5);
+  // The colour then, rebased on this frame's reference points (the visible
+  // subset may differ), against the colour now.
+  const cv::Vec3f then = now.colour_ref + (prior->colour_now - prior->colour_ref);
+  const double colour = color::ciede2000({now.colour_now[0], now.colour_now[1], now.colour_now[2]},
+                                         {then[0], then[1], then[2]});
+  const double size = std::abs(std::log1p(now.size_pct / 100.0) - std::log1p(prior->size_pct / 100.0));
+  return colour > params_.max_colour_jump_de00 * span ||
+         size > params_.max_size_jump_log * span ||
+         std::abs(now.structure - prior->structure) > params_.max_structure_jump * span;
+}
+
+bool DriftTracker::point_present(const TrackPoint& p, const GrayFit& fit) const {
+  const double residual = cur_features_.gray(p.pos) - (fit.gain * p.ref_gray + fit.offset);
+  return std::abs(residual) <= params_.point_gray_tolerance + 1.5 * p.ref_slope;
+}
+
 void DriftTracker::observe_points(const FramePair& pair, ObjectTrack& object, PointCounts& counts) {
   const cv::Mat& frame = pair.cur->bgr;
   const float rotation = static_cast<float>(object.motion.rotation_rad());
   counts = PointCounts{};
+  const GrayFit fit = fit_object_gray(object);
   OrientationHistogram hist;
   float x0 = 1e9f, y0 = 1e9f, x1 = -1e9f, y1 = -1e9f;
   for (auto& p : object.points) {
@@ -176,11 +271,9 @@ void DriftTracker::observe_points(const FramePair& pair, ObjectTrack& object, Po
     }
     const cv::Vec3f predicted = illumination_cur_.apply(p.ref_rgb);
     const cv::Vec3f cur = cur_features_.colour(p.pos);
-    cur_features_.local_histogram(p.pos, params_.histogram_radius_px, params_.histogram_stride_px,
-                                  rotation, hist);
-    p.present = point_present(p, predicted, cur, hist);
+    p.present = point_present(p, fit);
     if (was_hidden) {
-      // Re-acquired only when both its structure and its colour match.
+      // Re-acquired only when both its gray pattern and its colour match.
       const bool colour_match = color::ciede2000(lab_of(predicted), lab_of(cur)) <
                                 params_.reacquire_colour_de00;
       if (!p.present || !colour_match) {
@@ -191,9 +284,10 @@ void DriftTracker::observe_points(const FramePair& pair, ObjectTrack& object, Po
     }
     ++counts.tracked;
     p.present ? ++counts.visible : ++counts.absent;
-    const float gray_now = cur_features_.coarse_gray(p.pos);
-    all_.add(p, predicted, cur, hist, gray_now);
-    if (p.interior) interior_.add(p, predicted, cur, hist, gray_now);
+    cur_features_.local_histogram(p.pos, params_.histogram_radius_px, params_.histogram_stride_px,
+                                  rotation, hist);
+    all_.add(p, predicted, cur, hist);
+    if (p.interior) interior_.add(p, predicted, cur, hist);
   }
   if (x1 >= x0) {
     const float pad = 0.5f * params_.object_step_px;
@@ -217,34 +311,54 @@ ObjectSample DriftTracker::update_object(const FramePair& pair, ObjectTrack& obj
   sample.visible_fraction = static_cast<float>(counts.visible) / std::max(1, reference_count);
   sample.box = counts.box;
   ObjectLook look;
-  if (counts.tracked >= std::max(3, reference_count / 10)) {
+  const AppearanceSums& s = interior_.count >= std::max(8, counts.tracked / 3) ? interior_ : all_;
+  if (counts.tracked >= std::max(3, reference_count / 10) && s.count > 0) {
     // Interior points see no background in their window; use them when
     // there are enough.
-    const AppearanceSums& s = interior_.count >= std::max(8, counts.tracked / 3) ? interior_ : all_;
     look.measured = true;
-    look.pattern_correlation = s.pattern_correlation();
     const double n = s.count;
     const color::Lab pred{s.pred[0] / n, s.pred[1] / n, s.pred[2] / n};
     const color::Lab now{s.now[0] / n, s.now[1] / n, s.now[2] / n};
-    sample.color_de00 = static_cast<float>(color::ciede2000(pred, now));
-    look.colour_de00 = sample.color_de00;
+    look.colour_de00 = color::ciede2000(pred, now);
+    look.colour_now = cv::Vec3f(static_cast<float>(now.l), static_cast<float>(now.a),
+                                static_cast<float>(now.b));
+    look.colour_ref = cv::Vec3f(static_cast<float>(pred.l), static_cast<float>(pred.a),
+                                static_cast<float>(pred.b));
+  }
+  // Drift is read only while the object is followed well: most of its
+  // points in view are tracked and look like their reference, and together
+  // they show the object's own pattern. Otherwise (crossing, partial
+  // occlusion, a point set disturbed by an occluder) the frame is left
+  // unmeasured: tracking trouble must not read as drift.
+  const int inside_count = reference_count - counts.outside;
+  if (!object.unreliable && look.measured && counts.visible * 2 >= inside_count &&
+      looks_like_itself(counts)) {
+    sample.color_de00 = static_cast<float>(look.colour_de00);
+    sample.colour_now = look.colour_now;
+    sample.colour_ref = look.colour_ref;
     sample.structure =
         histogram_distance(s.ref_hist.data(), s.cur_hist.data(), s.ref_mass, contrast_gain_);
     // Size: the object's own scale against the camera's local scale at the
     // object, so a zoom or dolly is not size drift. Needs a spread of
     // visible points; otherwise the last value holds.
-    float size_pct = object.history.empty() ? 0.f : object.history.back().size_pct;
+    float size_pct = last_size_pct(object);
     if (std::isfinite(scale) && counts.tracked >= std::max(6, reference_count * 3 / 10)) {
       const cv::Matx33d camera = camera_path_cur_ * object.camera_at_reference.inv();
       const double camera_scale = std::max(1e-3, local_scale(camera, object.ref_centroid));
       size_pct = static_cast<float>(100.0 * (scale / camera_scale - 1.0));
     }
-    if (!std::isfinite(size_pct)) size_pct = 0;
-    sample.size_pct = size_pct;
-    const double size_log = std::abs(std::log1p(size_pct / 100.0));
+    sample.size_pct = std::isfinite(size_pct) ? size_pct : 0.f;
+    sample.size_window_pct = size_change_over_window(object, sample);
+    const double size_log = std::abs(std::log1p(sample.size_window_pct / 100.0));
     sample.drift = static_cast<float>(std::max({sample.color_de00 / params_.colour_unit_de00,
                                                 sample.structure / params_.structure_unit,
                                                 size_log / params_.size_unit_log}));
+    if (breaks_continuity(object, sample)) {
+      object.unreliable = true;
+      object.unreliable_since_s = sample.t_s;
+      sample = ObjectSample{sample.frame, sample.t_s, sample.box};
+      sample.visible_fraction = static_cast<float>(counts.visible) / std::max(1, reference_count);
+    }
   }
   decide_state(pair, object, counts, look);
   return sample;
@@ -258,32 +372,11 @@ ObjectSample DriftTracker::update_object(const FramePair& pair, ObjectTrack& obj
 void DriftTracker::confirm_support(const FramePair& pair, ObjectTrack& object) {
   if (object.confirmed || pair.cur->t_s - object.first_t_s < params_.probation_s) return;
   object.confirmed = true;
-  // The object's own gray pattern, reference against now (least squares
-  // gain and offset over its followed points), and each point's departure
-  // from it: a fringe point started on background and now shows the object.
-  double n = 0, sr = 0, sn = 0, srr = 0, srn = 0;
-  for (const auto& p : object.points) {
-    if (p.state != PointState::tracked) continue;
-    const double r = p.ref_coarse_gray, now = cur_features_.coarse_gray(p.pos);
-    n += 1, sr += r, sn += now, srr += r * r, srn += r * now;
-  }
-  if (n < params_.min_mover_points) return;
-  const double var = srr - sr * sr / n;
-  const double gain = var > 1e-9 ? (srn - sr * sn / n) / var : 1.0;
-  const double offset = (sn - gain * sr) / n;
-  ratios_.clear();
-  for (const auto& p : object.points) {
-    if (p.state != PointState::tracked) continue;
-    const double r = cur_features_.coarse_gray(p.pos) - (gain * p.ref_coarse_gray + offset);
-    ratios_.push_back(static_cast<float>(std::abs(r)));
-  }
-  auto mid = ratios_.begin() + static_cast<std::ptrdiff_t>(ratios_.size() / 2);
-  std::nth_element(ratios_.begin(), mid, ratios_.end());
-  const double limit = std::max(0.03, 3.0 * 1.4826 * *mid);
-  const auto keeps = [&](const TrackPoint& p) {
-    if (p.state != PointState::tracked || !p.present) return false;
-    const double r = cur_features_.coarse_gray(p.pos) - (gain * p.ref_coarse_gray + offset);
-    return std::abs(r) <= limit;
+  // Kept: followed, looking like its reference, and moving with the object
+  // rather than with the camera over the probation.
+  const auto keeps = [](const TrackPoint& p) {
+    return p.state == PointState::tracked && p.present &&
+           p.own_motion_error < p.camera_motion_error;
   };
   const auto kept = std::count_if(object.points.begin(), object.points.end(), keeps);
   if (kept < std::max<std::ptrdiff_t>(params_.min_mover_points, object.points.size() * 3 / 10)) return;
@@ -312,19 +405,23 @@ void DriftTracker::decide_state(const FramePair& pair, ObjectTrack& object,
   // Seen: enough of its points are followed and they still show the
   // object's own pattern (for a flat object: roughly its own colour).
   const bool enough = counts.tracked >= std::max(3, inside_count / 5);
-  const bool looks_itself =
-      look.measured && (std::isnan(look.pattern_correlation)
-                            ? look.colour_de00 < params_.flat_object_gone_de00
-                            : look.pattern_correlation >= params_.min_pattern_correlation);
-  if (enough && looks_itself) {
+  if (object.unreliable && pair.cur->t_s - object.unreliable_since_s >= params_.unreliable_end_s) {
+    object.ended = true;
+    object.end_reason = "lost";
+    object.last_frame = pair.cur->index;
+    return;
+  }
+  if (enough && looks_like_itself(counts)) {
     object.missing_s = object.occluded_s = 0;
     object.last_seen_frame = pair.cur->index;
     return;
   }
-  // Not seen. Followed but showing something else, or new content appears
-  // where it was: it is gone. Hidden behind something that was visible
-  // before (the occlusion mask passes there): occluded.
-  if (enough || counts.absent + counts.revealed > counts.covered) {
+  // Not seen. Behind another followed object, or behind something that was
+  // visible before (the occlusion mask passes where it should be): occluded.
+  // Followed but showing something else, or new content appears where it
+  // was: it is gone.
+  const bool gone = enough || counts.absent + counts.revealed > counts.covered;
+  if (gone && !behind_other_object(object, counts.box)) {
     object.missing_s += pair.dt_s;
   } else {
     object.occluded_s += pair.dt_s;

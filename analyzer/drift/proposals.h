@@ -26,11 +26,16 @@ struct NodeGrid {
 };
 
 // Marks nodes (CV_8U, 255) whose forward flow departs from the camera
-// homography by more than `threshold_px` and whose flow passes the
-// forward-backward check. Isolated nodes (fewer than two moving neighbours)
-// are flow noise and are cleared.
+// homography by more than `threshold_px`, whose flow passes the
+// forward-backward check, and whose cell changed once the camera motion is
+// compensated (the flow alone marks a halo around a moving object).
+// Isolated nodes (fewer than two moving neighbours) are noise and cleared.
+struct MotionMasks {
+  cv::Mat flow;  // flow departs from the camera (with the halo the flow smears)
+  cv::Mat core;  // ... and the picture changed there: the moving object itself
+};
 void mark_moving_nodes(const FramePair& pair, const NodeGrid& grid, float threshold_px,
-                       cv::Mat& moving);
+                       MotionMasks& masks);
 
 struct RegionProposal {
   std::vector<cv::Point2f> points;  // reference positions in the previous frame
@@ -38,14 +43,15 @@ struct RegionProposal {
   float score = 0;                  // nodes for movers, texture for scene cells
 };
 
-// Connected moving regions (8-connected after closing one-node gaps, which
-// merges fragments of one object), largest first. Regions touching the
+// Connected moving regions (cores 8-connected after closing one-node gaps,
+// which merges fragments of one object; then grown by a node and with their
+// holes filled, within the flow's mask), largest first. Regions touching the
 // frame edge are left for later, when they are fully in view (the reference
 // is the first full view); regions mostly covered by `covered` nodes are
 // already followed; regions over 40% of the frame are a camera-motion misfit.
 // Each region keeps only the nodes its own fitted motion explains clearly
 // better than the camera's (flow is smeared across motion boundaries).
-std::vector<RegionProposal> propose_moving_regions(const FramePair& pair, const cv::Mat& moving,
+std::vector<RegionProposal> propose_moving_regions(const FramePair& pair, const MotionMasks& masks,
                                                    const cv::Mat& covered, const NodeGrid& grid,
                                                    int min_nodes);
 

@@ -11,6 +11,9 @@ namespace {
 constexpr int kParams = 6;  // dx, dy, scale, rotation (about the centroid), gain, offset
 constexpr int kIterations = 3;
 constexpr double kHuberDelta = 0.04;  // gray level in [0,1]
+// Weight of the gain prior per point, in squared gray level per unit gain:
+// a gain off by 0.2 costs as much as a 0.045 residual at every point.
+constexpr double kGainPrior = 0.05;
 
 }  // namespace
 
@@ -31,11 +34,11 @@ bool align_to_reference(const cv::Mat& gray, std::span<const cv::Point2f> positi
   // all four geometric parameters are in pixels at the object's rim.
   const double radius = std::sqrt(radius2 / static_cast<double>(n));
   if (radius < 1) return false;
-  double dx = 0, dy = 0, s = 0, r = 0, gain = 1, offset = 0;
+  double dx = 0, dy = 0, sc = 0, r = 0, gain = 1, offset = 0;
   auto warp = [&](cv::Point2f p) {
     const double qx = (p.x - centre.x) / radius, qy = (p.y - centre.y) / radius;
-    return cv::Point2f(static_cast<float>(p.x + dx + s * qx - r * qy),
-                       static_cast<float>(p.y + dy + s * qy + r * qx));
+    return cv::Point2f(static_cast<float>(p.x + dx + sc * qx - r * qy),
+                       static_cast<float>(p.y + dy + sc * qy + r * qx));
   };
   for (int iter = 0; iter < kIterations; ++iter) {
     cv::Matx<double, kParams, kParams> h = cv::Matx<double, kParams, kParams>::zeros();
@@ -55,18 +58,24 @@ bool align_to_reference(const cv::Mat& gray, std::span<const cv::Point2f> positi
     }
     // Levenberg damping keeps untextured objects where the flow put them.
     for (int d = 0; d < 4; ++d) h(d, d) += 1e-3 * h(d, d) + 1e-9;
+    // A prior holds the gain near 1: with the gain free, shrinking every
+    // point onto a flat patch and setting the gain to 0 would match any
+    // template (a degenerate fit that made walking people collapse).
+    const double prior = kGainPrior * static_cast<double>(n);
+    h(4, 4) += prior;
+    g[4] += prior * (gain - 1.0);
     cv::Vec<double, kParams> step;
     if (!cv::solve(h, -g, step, cv::DECOMP_CHOLESKY)) return false;
-    dx += step[0], dy += step[1], s += step[2], r += step[3], gain += step[4], offset += step[5];
+    dx += step[0], dy += step[1], sc += step[2], r += step[3], offset += step[5];
+    gain = std::clamp(gain + step[4], 0.5, 2.0);
   }
-  if (!std::isfinite(dx + dy + s + r)) return false;
+  if (!std::isfinite(dx + dy + sc + r)) return false;
   const double length = std::hypot(dx, dy);
   if (length > limits.max_shift_px) dx *= limits.max_shift_px / length, dy *= limits.max_shift_px / length;
-  const double max_rim = limits.max_rim_px;
-  s = std::clamp(s, -max_rim, max_rim);
-  r = std::clamp(r, -max_rim, max_rim);
-  // p' = p + d + (s q - r perp(q)) / R with q = p - c, as x' = [a -b; b a] x + t.
-  correction.a = 1 + s / radius;
+  r = std::clamp<double>(r, -limits.max_rim_px, limits.max_rim_px);
+  sc = std::clamp<double>(sc, -limits.max_scale_rim_px, limits.max_scale_rim_px);
+  // p' = p + d + (sc q + r perp(q)) / R with q = p - c, as x' = [a -b; b a] x + t.
+  correction.a = 1 + sc / radius;
   correction.b = r / radius;
   correction.tx = dx + centre.x - (correction.a * centre.x - correction.b * centre.y);
   correction.ty = dy + centre.y - (correction.b * centre.x + correction.a * centre.y);

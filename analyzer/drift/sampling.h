@@ -54,6 +54,13 @@ inline float sample_gray(const cv::Mat& gray, cv::Point2f p) {
   return (top * (1 - t.fy) + bottom * t.fy) / 255.0f;
 }
 
+// CV_32FC1 value at p (nearest pixel; for slowly varying planes).
+inline float sample_gray_gradient(const cv::Mat& plane, cv::Point2f p) {
+  const int x = std::clamp(static_cast<int>(std::lround(p.x)), 0, plane.cols - 1);
+  const int y = std::clamp(static_cast<int>(std::lround(p.y)), 0, plane.rows - 1);
+  return plane.at<float>(y, x);
+}
+
 inline bool inside(const cv::Mat& m, cv::Point2f p) {
   return p.x >= 0 && p.y >= 0 && p.x <= m.cols - 1 && p.y <= m.rows - 1;
 }

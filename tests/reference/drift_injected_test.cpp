@@ -82,9 +82,8 @@ TEST(DriftInjected, HueRampOnMovingPatchIsColourDrift) {
   EXPECT_LT(object_value(o, "color_de00", 10), 1.5) << "before the injection";
   ASSERT_FALSE(o.detail["drift_segments"].empty());
   const int64_t start = o.detail["drift_segments"][0]["start_frame"];
-  EXPECT_GE(start, 12);
-  EXPECT_LE(start, 18);
-  EXPECT_GE(o.detail["peak_drift"].get<double>(), 2.0);
+  EXPECT_NEAR(start, 12, 4);
+  EXPECT_GE(o.detail["peak_drift"].get<double>(), kReview);
   EXPECT_LT(peak_drift_except(r, o.id), kSegmentEnter);
   EXPECT_GT(o.detail["color_de00_rate_per_s"].get<double>(), 3.0);
 }
@@ -134,8 +133,7 @@ TEST(DriftInjected, PatchShrinkingBy30PercentIsReported) {
   ASSERT_FALSE(o.detail["drift_segments"].empty());
   EXPECT_GE(o.detail["drift_segments"][0]["peak"].get<double>(), kReview);
   const int64_t start = o.detail["drift_segments"][0]["start_frame"];
-  EXPECT_GE(start, 12);
-  EXPECT_LE(start, 26);
+  EXPECT_NEAR(start, 12, 6);
 }
 
 // The patch fades out (opacity 1 -> 0 over frames 15-30) in the middle of the
@@ -189,7 +187,7 @@ TEST(DriftInjected, ColourDriftIsComparableAcrossFrameRates) {
     const Report r = run_drift_on_frames(render_scene(scene), fps);
     const TrackedObject& o = patch_object(r, s);
     final_de.push_back(object_value(o, "color_de00", static_cast<int64_t>(3.2 * fps)));
-    ASSERT_FALSE(o.detail["drift_segments"].empty()) << fps << " fps";
+      ASSERT_FALSE(o.detail["drift_segments"].empty()) << fps << " fps";
     onset_s.push_back(o.detail["drift_segments"][0]["start_s"].get<double>());
   }
   EXPECT_NEAR(final_de[0], final_de[1], 0.1 * final_de[1]);
