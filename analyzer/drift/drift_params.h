@@ -56,7 +56,7 @@ struct DriftParams {
   // reviewer sees a clear departure, so drift 1.0 = "clearly visible".
   double colour_unit_de00 = 20;    // CIEDE2000 of mean colour
   double structure_unit = 0.6;     // gradient-orientation measure distance
-  double size_unit_log = std::log(1.25);  // 25% larger or 20% smaller within the size window
+  double size_unit_log = std::log(1.3);  // 30% larger or 23% smaller within the size window
   double size_window_s = 2.0;
 
   static DriftParams for_frame(int width, int height, int max_objects) {

@@ -100,8 +100,7 @@ class DriftTracker {
   double object_scale(const ObjectTrack& object);
   void observe_points(const FramePair& pair, ObjectTrack& object, PointCounts& counts);
   void confirm_support(const FramePair& pair, ObjectTrack& object);
-  void decide_state(const FramePair& pair, ObjectTrack& object, const PointCounts& counts,
-                    const ObjectLook& look);
+  void decide_state(const FramePair& pair, ObjectTrack& object, const PointCounts& counts);
   bool looks_like_itself(const PointCounts& counts) const;
   bool breaks_continuity(const ObjectTrack& object, const ObjectSample& now) const;
   GrayFit fit_object_gray(const ObjectTrack& object) const;
