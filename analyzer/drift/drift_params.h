@@ -12,8 +12,7 @@ namespace framelint::drift {
 struct DriftParams {
   // Geometry (working pixels, already scaled to the frame).
   float px_scale = 1;            // long side / 512
-  int object_step_px = 5;        // grid spacing of points on moving objects
-  int scene_step_px = 10;        // grid spacing of points on static scene cells
+  int object_step_px = 5;        // grid spacing of points on objects (scene cells: twice)
   int anchor_step_px = 16;       // grid spacing of illumination anchors
   int window_radius_px = 2;      // window-mean colour and gray: (2r+1)^2 window
   // Local gradient-orientation histograms: a wider window, read every
@@ -48,7 +47,6 @@ struct DriftParams {
   // Appearance thresholds.
   float point_gray_tolerance = 0.05f;  // a point matches its reference gray this well
   float reacquire_colour_de00 = 12;    // a hidden point comes back only this close
-  float textured_mass = 2.0f;  // mean |gradient| (gray levels/px) of a textured window
   float cut_valid_fraction = 0.3f;
   float cut_histogram_distance = 0.35f;
 
@@ -64,7 +62,6 @@ struct DriftParams {
     p.px_scale = static_cast<float>(std::max(width, height)) / 512.0f;
     auto scaled = [&](int v) { return std::max(2, static_cast<int>(std::lround(v * p.px_scale))); };
     p.object_step_px = scaled(5);
-    p.scene_step_px = scaled(10);
     p.anchor_step_px = scaled(16);
     p.window_radius_px = std::max(1, p.object_step_px / 2);
     p.histogram_radius_px = 2 * p.window_radius_px + 1;

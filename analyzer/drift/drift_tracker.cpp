@@ -143,8 +143,6 @@ void DriftTracker::seed_point(cv::Point2f p, TrackPoint& point) const {
   point.ref_gray = prev_features_.gray(p);
   point.ref_slope = sample_gray_gradient(prev_features_.magnitude(), p) / 255.0f;
   const float mass = prev_features_.local_histogram(p, params_.histogram_radius_px, params_.histogram_stride_px, 0, point.ref_hist);
-  const int samples = 2 * params_.histogram_radius_px / params_.histogram_stride_px + 1;
-  point.textured = mass >= params_.textured_mass * samples * samples;
   // Like the colour, the gradient reference is kept in the contrast of the
   // shot's first frame.
   const float to_shot = 1.0f / std::max(0.2f, illumination_prev_.mean_gain());

@@ -32,7 +32,6 @@ struct TrackPoint {
   float ref_mass = 0;  // total gradient magnitude of the reference window
   OrientationHistogram ref_hist{};
   PointState state = PointState::tracked;
-  bool textured = false;
   bool interior = false;  // all four grid neighbours belong to the object too
   bool present = true;  // appearance still matches the reference
   // During a new object's probation: how far its flow steps fell from the
