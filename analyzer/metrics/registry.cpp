@@ -15,6 +15,7 @@ std::unique_ptr<Metric> make_cut_metric(const AnalysisSettings&);
 std::unique_ptr<Metric> make_flash_metric(const AnalysisSettings&);
 std::unique_ptr<Metric> make_jerk_metric(const AnalysisSettings&);
 std::unique_ptr<Metric> make_flicker_local_metric(const AnalysisSettings&);
+std::unique_ptr<Metric> make_drift_metric(const AnalysisSettings&);
 
 using MetricFactory = std::unique_ptr<Metric> (*)(const AnalysisSettings&);
 
@@ -27,6 +28,7 @@ static const MetricFactory kMetricTable[] = {
     make_flash_metric,
     make_jerk_metric,
     make_flicker_local_metric,
+    make_drift_metric,
 };
 
 std::vector<std::unique_ptr<Metric>> make_metrics(const AnalysisSettings& settings) {

@@ -1,0 +1,144 @@
+// Follows objects through a clip by the optical flow already computed for
+// each frame pair and measures how far each departs from its own first look
+// (colour, structure, size). Fed one FramePair at a time, in frame order.
+//
+// Method (docs/drift.md): material points on a grid, advected by the forward
+// flow and dropped from their chain where the forward-backward check fails;
+// objects are groups of points (regions moving apart from the camera, and
+// textured cells of the static scene); the global illumination change is
+// fitted over all points and removed; each object's colour, gradient
+// structure and size are compared with the same points' reference.
+#pragma once
+
+#include <cstdint>
+#include <limits>
+#include <vector>
+
+#include <opencv2/core.hpp>
+
+#include "analyzer/drift/drift_params.h"
+#include "analyzer/drift/frame_features.h"
+#include "analyzer/drift/illumination_fit.h"
+#include "analyzer/drift/object_track.h"
+#include "analyzer/drift/proposals.h"
+#include "analyzer/metrics/frame_pair.h"
+
+namespace framelint::drift {
+
+// Marks the points whose four grid neighbours (at `spacing`) are also
+// points of the object: their windows hold no background.
+void mark_interior_points(std::vector<TrackPoint>& points, int spacing);
+
+// Appearance of an object's visible points, summed for means.
+struct AppearanceSums {
+  double pred[3] = {0, 0, 0};  // L*, a*, b* of the reference, illumination applied
+  double now[3] = {0, 0, 0};   // L*, a*, b* seen now
+  OrientationHistogram ref_hist{}, cur_hist{};
+  float ref_mass = 0;
+  int count = 0;
+  void add(const TrackPoint& p, const cv::Vec3f& predicted, const cv::Vec3f& cur,
+           const OrientationHistogram& hist);
+};
+
+// An object's gray levels now = gain * reference + offset.
+struct GrayFit {
+  double gain = 1, offset = 0;
+};
+
+// What became of an object's points this frame.
+struct PointCounts {
+  int tracked = 0;   // followed, or re-acquired
+  int visible = 0;   // tracked and looking like their reference
+  int absent = 0;    // tracked but looking like something else
+  int covered = 0;   // hidden behind content that was visible before
+  int revealed = 0;  // hidden, and new content appears at their place
+  int outside = 0;   // out of the frame
+  cv::Rect2f box;
+};
+
+// How an object looks this frame against its reference.
+struct ObjectLook {
+  double colour_de00 = 0;
+  cv::Vec3f colour_now, colour_ref;  // mean CIELAB now, and of the reference
+  bool measured = false;
+};
+
+// The worst object of one frame.
+struct FrameDrift {
+  double drift = std::numeric_limits<double>::quiet_NaN();
+  double color_de00 = std::numeric_limits<double>::quiet_NaN();
+  double structure = std::numeric_limits<double>::quiet_NaN();
+  double size_pct = std::numeric_limits<double>::quiet_NaN();
+  int object_id = 0;
+  bool cut = false;
+};
+
+class DriftTracker {
+ public:
+  explicit DriftTracker(int max_objects);
+
+  FrameDrift step(const FramePair& pair);
+  // Ends every object still followed ("clip_end").
+  void finish();
+
+  // Every object, ended ones included, in order of creation.
+  const std::vector<ObjectTrack>& objects() const { return objects_; }
+
+ private:
+  void start_shot(const FramePair& pair);
+  void end_shot(const FramePair& pair);
+  void propose(const FramePair& pair, bool shot_start);
+  void add_object(const RegionProposal& region, ObjectKind kind, const FramePair& pair);
+  void seed_point(cv::Point2f p, TrackPoint& point) const;
+  void top_up_anchors(const FramePair& pair);
+  void advect(const FramePair& pair, std::vector<TrackPoint>& points) const;
+  void fit_global_illumination();
+  // Fits motion, predicts and re-acquires hidden points, measures appearance,
+  // decides whether the object goes on. Returns the sample for this frame.
+  ObjectSample update_object(const FramePair& pair, ObjectTrack& object);
+  void fit_object_motion(const FramePair& pair, ObjectTrack& object);
+  double object_scale(const ObjectTrack& object);
+  void observe_points(const FramePair& pair, ObjectTrack& object, PointCounts& counts);
+  void confirm_support(const FramePair& pair, ObjectTrack& object);
+  void decide_state(const FramePair& pair, ObjectTrack& object, const PointCounts& counts);
+  bool looks_like_itself(const PointCounts& counts) const;
+  bool breaks_continuity(const ObjectTrack& object, const ObjectSample& now) const;
+  GrayFit fit_object_gray(const ObjectTrack& object) const;
+  bool behind_other_object(const ObjectTrack& object, const cv::Rect2f& box) const;
+  static float last_size_pct(const ObjectTrack& object);
+  float size_change_over_window(const ObjectTrack& object, const ObjectSample& now) const;
+  bool point_present(const TrackPoint& point, const GrayFit& fit) const;
+  bool is_cut(const FramePair& pair);
+  void mark_covered_nodes(const NodeGrid& grid, cv::Mat& covered) const;
+  int active_count() const;
+
+  int max_objects_;
+  DriftParams params_;
+  bool params_ready_ = false;
+  bool shot_active_ = false;
+  int next_id_ = 1;
+  double last_proposal_t_s_ = 0;
+
+  FrameFeatures prev_features_, cur_features_;
+  cv::Matx33d camera_path_prev_ = cv::Matx33d::eye();  // shot start -> previous frame
+  cv::Matx33d camera_path_cur_ = cv::Matx33d::eye();
+  IlluminationMap illumination_prev_, illumination_cur_;
+  float contrast_gain_ = 1;
+
+  std::vector<ObjectTrack> objects_;
+  std::vector<TrackPoint> anchors_;  // illumination anchors, in no object
+
+  // Scratch reused every frame (no steady-state allocation).
+  std::vector<cv::Vec3f> fit_ref_, fit_cur_;
+  std::vector<float> fit_scratch_;
+  std::vector<cv::Point2f> src_, dst_, aligned_;
+  std::vector<float> templates_;
+  std::vector<int> src_index_;
+  std::vector<uint8_t> inliers_;
+  std::vector<float> ratios_;
+  AppearanceSums all_, interior_;
+  MotionMasks motion_masks_;
+  cv::Mat covered_nodes_, hist_prev_, hist_cur_;
+};
+
+}  // namespace framelint::drift

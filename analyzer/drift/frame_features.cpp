@@ -1,0 +1,71 @@
+#include "analyzer/drift/frame_features.h"
+
+#include <cmath>
+
+#include <opencv2/imgproc.hpp>
+
+#include "analyzer/drift/sampling.h"
+
+namespace framelint::drift {
+
+void FrameFeatures::compute(int64_t frame_index, const cv::Mat& gray, const cv::Mat& bgr,
+                            int window_radius) {
+  frame_index_ = frame_index;
+  const int side = 2 * window_radius + 1;
+  cv::blur(bgr, window_colour_, cv::Size(side, side), cv::Point(-1, -1), cv::BORDER_REPLICATE);
+  cv::blur(gray, window_gray_, cv::Size(side, side), cv::Point(-1, -1), cv::BORDER_REPLICATE);
+  // sigma 1 smoothing keeps the orientation of fine texture but removes the
+  // pixel noise and block edges of compressed video (common practice).
+  cv::GaussianBlur(gray, smoothed_, cv::Size(5, 5), 1.0, 1.0, cv::BORDER_REPLICATE);
+  // Sobel scaled by 1/8 gives gray levels per pixel.
+  cv::Sobel(smoothed_, gx_, CV_32F, 1, 0, 3, 1.0 / 8.0, 0, cv::BORDER_REPLICATE);
+  cv::Sobel(smoothed_, gy_, CV_32F, 0, 1, 3, 1.0 / 8.0, 0, cv::BORDER_REPLICATE);
+  cv::cartToPolar(gx_, gy_, magnitude_, angle_, false);
+}
+
+cv::Vec3f FrameFeatures::colour(cv::Point2f p) const { return sample_colour(window_colour_, p); }
+
+float FrameFeatures::gray(cv::Point2f p) const { return sample_gray(window_gray_, p); }
+
+float FrameFeatures::local_histogram(cv::Point2f p, int radius, int stride, float rotation_rad,
+                                     OrientationHistogram& out) const {
+  out.fill(0.f);
+  const int cx = static_cast<int>(std::lround(p.x));
+  const int cy = static_cast<int>(std::lround(p.y));
+  const int x0 = std::max(0, cx - radius), x1 = std::min(magnitude_.cols - 1, cx + radius);
+  const int y0 = std::max(0, cy - radius), y1 = std::min(magnitude_.rows - 1, cy + radius);
+  constexpr float kBinsPerRad = kOrientationBins / (2.0f * static_cast<float>(M_PI));
+  const float shift = rotation_rad * kBinsPerRad;
+  float total = 0;
+  for (int y = y0; y <= y1; y += stride) {
+    const float* mag = magnitude_.ptr<float>(y);
+    const float* ang = angle_.ptr<float>(y);
+    for (int x = x0; x <= x1; x += stride) {
+      const float m = mag[x];
+      if (m <= 0) continue;
+      float pos = ang[x] * kBinsPerRad - shift;
+      pos -= kOrientationBins * std::floor(pos / kOrientationBins);
+      const int lo = static_cast<int>(pos) % kOrientationBins;
+      const float frac = pos - std::floor(pos);
+      out[lo] += m * (1.0f - frac);
+      out[(lo + 1) % kOrientationBins] += m * frac;
+      total += m;
+    }
+  }
+  return total;
+}
+
+float histogram_distance(const float* reference, const float* current, float reference_mass,
+                         float current_scale) {
+  if (reference_mass <= 0) return 0;
+  const float inv_ref = 1.0f / reference_mass;
+  const float inv_cur = 1.0f / (reference_mass * std::max(current_scale, 1e-6f));
+  float sum = 0;
+  for (int i = 0; i < kOrientationBins; ++i) {
+    const float d = std::sqrt(reference[i] * inv_ref) - std::sqrt(current[i] * inv_cur);
+    sum += d * d;
+  }
+  return std::sqrt(0.5f * sum);
+}
+
+}  // namespace framelint::drift

@@ -1,0 +1,198 @@
+// Drift on real images moved by known motions: opencv-doc baboon.jpg is the
+// scene (the camera pans over it by a sub-pixel translation), and a crop of
+// opencv-doc fruits.jpg is an object moving across it, into which known
+// changes are injected. Outside sources: the photographs (real texture and
+// colour statistics), OpenCV's DIS optical flow through the pipeline's pair
+// builder, and CIEDE2000 (Sharma et al. 2005, checked against their Table 1
+// in tests/unit/color_ciede2000_test.cpp) for the injected colour change.
+//
+// Reading the checks: drift 1.0 is the review level of the default policy
+// (docs/drift.md), 0.35 the level where a drift segment opens.
+#include <gtest/gtest.h>
+
+#include <cmath>
+
+#include <opencv2/imgproc.hpp>
+
+#include "analyzer/color/color_space.h"
+#include "support/drift_pairs.h"
+#include "support/drift_scenes.h"
+
+namespace framelint::test {
+namespace {
+
+constexpr double kSegmentEnter = 0.35;
+constexpr double kReview = 1.0;
+
+struct Scene {
+  DriftScene scene;
+  bool ok = false;
+  double fps = 12;
+  // Where the patch is at frame 0, for finding its object.
+  cv::Rect2f patch_at_start() const {
+    return {scene.patch_start.x, scene.patch_start.y, static_cast<float>(scene.patch.cols),
+            static_cast<float>(scene.patch.rows)};
+  }
+};
+
+Scene base_scene() {
+  Scene s;
+  cv::Mat bg = load_sample_image("baboon.jpg");
+  cv::Mat fruits = load_sample_image("fruits.jpg");
+  if (bg.empty() || fruits.empty()) return s;
+  cv::resize(bg, s.scene.background, cv::Size(), 1.25, 1.25, cv::INTER_AREA);
+  s.scene.patch = fruits(cv::Rect(150, 120, 80, 72)).clone();
+  s.ok = true;
+  return s;
+}
+
+const TrackedObject& patch_object(const Report& r, const Scene& s) {
+  const TrackedObject* o = object_at(r, s.patch_at_start(), 0);
+  if (!o) throw std::runtime_error("no object was proposed on the moving patch");
+  return *o;
+}
+
+double peak_drift_except(const Report& r, int id) {
+  double peak = 0;
+  for (const auto& o : r.objects) {
+    if (o.id != id && o.detail["peak_drift"].is_number()) peak = std::max(peak, o.detail["peak_drift"].get<double>());
+  }
+  return peak;
+}
+
+#define REQUIRE_SCENE(s) \
+  if (!(s).ok) GTEST_SKIP() << "opencv-doc baboon.jpg / fruits.jpg not installed"
+
+// A hue rotation of 40 degrees (CIELAB a*b* plane) ramps in over frames
+// 12-36 of the moving patch. Its measured colour drift must match the
+// injected CIEDE2000 between the patch's mean colours before and after,
+// within 15%, and its drift segment must open within 6 frames (0.5 s) of the
+// start of the injection; the static scene must stay below segment level.
+TEST(DriftInjected, HueRampOnMovingPatchIsColourDrift) {
+  Scene s = base_scene();
+  REQUIRE_SCENE(s);
+  s.scene.patch_state = [](int frame) { return PatchState{40.0 * ramp(frame, 12, 36), 1, 1}; };
+  const Report r = run_drift_on_frames(render_scene(s.scene), s.fps);
+  const double injected = mean_colour_de00(s.scene.patch, rotate_hue(s.scene.patch, 40));
+  const TrackedObject& o = patch_object(r, s);
+  EXPECT_EQ(o.detail["kind"], "moving");
+  for (int frame : {36, 40, 44}) {
+    EXPECT_NEAR(object_value(o, "color_de00", frame), injected, 0.15 * injected) << "frame " << frame;
+  }
+  EXPECT_LT(object_value(o, "color_de00", 10), 1.5) << "before the injection";
+  ASSERT_FALSE(o.detail["drift_segments"].empty());
+  const int64_t start = o.detail["drift_segments"][0]["start_frame"];
+  EXPECT_NEAR(start, 12, 4);
+  EXPECT_GE(o.detail["peak_drift"].get<double>(), kReview);
+  EXPECT_LT(peak_drift_except(r, o.id), kSegmentEnter);
+  EXPECT_GT(o.detail["color_de00_rate_per_s"].get<double>(), 3.0);
+}
+
+// A brightness ramp of the whole frame (linear-light gain 1.0 -> 0.55,
+// i.e. about -0.85 EV, over frames 8-40) together with a colour cast
+// (blue gain down to 0.8): every surface changes the same way, so nothing
+// may drift.
+TEST(DriftInjected, GlobalBrightnessAndColourRampIsNotDrift) {
+  Scene s = base_scene();
+  REQUIRE_SCENE(s);
+  s.scene.frame_filter = [](int frame, cv::Mat& bgr) {
+    const double k = ramp(frame, 8, 40);
+    const double gain[3] = {(1 - 0.45 * k) * (1 - 0.2 * k), 1 - 0.45 * k, 1 - 0.45 * k};
+    uchar lut[3][256];
+    for (int c = 0; c < 3; ++c) {
+      for (int v = 0; v < 256; ++v) {
+        const double lin = color::srgb_to_linear(v / 255.0) * gain[c];
+        lut[c][v] = cv::saturate_cast<uchar>(color::linear_to_srgb(lin) * 255.0 + 0.5);
+      }
+    }
+    for (int y = 0; y < bgr.rows; ++y) {
+      for (auto* p = bgr.ptr<cv::Vec3b>(y), *end = p + bgr.cols; p != end; ++p) {
+        for (int c = 0; c < 3; ++c) (*p)[c] = lut[c][(*p)[c]];
+      }
+    }
+  };
+  const Report r = run_drift_on_frames(render_scene(s.scene), s.fps);
+  ASSERT_GE(r.objects.size(), 2u);
+  for (const auto& o : r.objects) {
+    EXPECT_LT(o.detail["peak_drift"].get<double>(), kSegmentEnter) << "object " << o.id;
+    EXPECT_TRUE(o.detail["drift_segments"].empty()) << "object " << o.id;
+  }
+}
+
+// The patch shrinks to 70% of its size (about its centre) over frames 12-36
+// while it moves; the camera does not zoom. Reported as size drift of about
+// -30% and a drift segment above the review level.
+TEST(DriftInjected, PatchShrinkingBy30PercentIsReported) {
+  Scene s = base_scene();
+  REQUIRE_SCENE(s);
+  s.scene.patch_state = [](int frame) { return PatchState{0, 1.0 - 0.3 * ramp(frame, 12, 36), 1}; };
+  const Report r = run_drift_on_frames(render_scene(s.scene), s.fps);
+  const TrackedObject& o = patch_object(r, s);
+  EXPECT_NEAR(object_value(o, "size_pct", 40), -30.0, 6.0);
+  EXPECT_NEAR(object_value(o, "size_pct", 10), 0.0, 4.0);
+  ASSERT_FALSE(o.detail["drift_segments"].empty());
+  EXPECT_GE(o.detail["drift_segments"][0]["peak"].get<double>(), kReview);
+  const int64_t start = o.detail["drift_segments"][0]["start_frame"];
+  EXPECT_NEAR(start, 12, 6);
+}
+
+// The patch fades out (opacity 1 -> 0 over frames 15-30) in the middle of the
+// frame: it vanished.
+TEST(DriftInjected, PatchFadingOutInsideTheFrameVanishes) {
+  Scene s = base_scene();
+  REQUIRE_SCENE(s);
+  s.scene.patch_state = [](int frame) { return PatchState{0, 1, 1.0 - ramp(frame, 15, 30)}; };
+  const Report r = run_drift_on_frames(render_scene(s.scene), s.fps);
+  const TrackedObject& o = patch_object(r, s);
+  EXPECT_TRUE(o.vanished);
+  EXPECT_EQ(o.end_reason, "vanished");
+  EXPECT_GE(o.last_frame, 15);
+  EXPECT_LE(o.last_frame, 30);
+}
+
+// The patch walks out through the right edge: it ends normally.
+TEST(DriftInjected, PatchWalkingOutOfTheFrameEndsAsLeftFrame) {
+  Scene s = base_scene();
+  REQUIRE_SCENE(s);
+  s.scene.patch_start = {260, 140};
+  s.scene.patch_px_per_frame = {6.0f, 0.5f};
+  const Report r = run_drift_on_frames(render_scene(s.scene), s.fps);
+  const TrackedObject& o = patch_object(r, s);
+  EXPECT_FALSE(o.vanished);
+  EXPECT_EQ(o.end_reason, "left_frame");
+  // Its left edge passes the frame's right edge (480 px) at frame 37.
+  EXPECT_GE(o.last_frame, 25);
+  EXPECT_LE(o.last_frame, 38);
+  EXPECT_LT(o.detail["peak_drift"].get<double>(), kSegmentEnter);
+}
+
+// The same injected hue ramp rendered at 8 and 24 fps (same motion per
+// second, same timing in seconds) reads the same colour drift and the same
+// onset in seconds: drift compares a look with the reference, and its
+// timing constants are in seconds.
+TEST(DriftInjected, ColourDriftIsComparableAcrossFrameRates) {
+  Scene s = base_scene();
+  REQUIRE_SCENE(s);
+  std::vector<double> final_de, onset_s;
+  for (double fps : {8.0, 24.0}) {
+    DriftScene scene = s.scene;
+    const double per_frame = 12.0 / fps;  // the 12 fps scene's motion per frame, rescaled
+    scene.frames = static_cast<int>(4.0 * fps);
+    scene.camera_px_per_frame *= static_cast<float>(per_frame);
+    scene.patch_px_per_frame *= static_cast<float>(per_frame);
+    scene.patch_state = [fps](int frame) {
+      const double t = frame / fps;
+      return PatchState{40.0 * std::clamp((t - 1.0) / 2.0, 0.0, 1.0), 1, 1};
+    };
+    const Report r = run_drift_on_frames(render_scene(scene), fps);
+    const TrackedObject& o = patch_object(r, s);
+    final_de.push_back(object_value(o, "color_de00", static_cast<int64_t>(3.2 * fps)));
+      ASSERT_FALSE(o.detail["drift_segments"].empty()) << fps << " fps";
+    onset_s.push_back(o.detail["drift_segments"][0]["start_s"].get<double>());
+  }
+  EXPECT_NEAR(final_de[0], final_de[1], 0.1 * final_de[1]);
+  EXPECT_NEAR(onset_s[0], onset_s[1], 0.25);
+}
+
+}  // namespace
+}  // namespace framelint::test
