@@ -77,7 +77,13 @@ double ActiveDefect::progress(const FrameContext& ctx) const {
 double ActiveDefect::pulse(const FrameContext& ctx) const {
   const double hz = spec_.hz > 0 ? spec_.hz : default_hz(spec_.cls);
   if (hz >= ctx.nominal_fps / 2) return (covered_ - 1) % 2 == 0 ? 1.0 : -1.0;  // every other frame
-  const double phase = hz * (ctx.t_s - first_t_s_);
+  // Time since the first frame, snapped to the frame grid when it sits on
+  // it: containers round timestamps (Matroska to 1 ms), and a phase that is
+  // a whole number in exact arithmetic (3 Hz at 12 fps) must not land just
+  // below it.
+  double elapsed_frames = (ctx.t_s - first_t_s_) * ctx.nominal_fps;
+  if (std::fabs(elapsed_frames - std::round(elapsed_frames)) < 0.05) elapsed_frames = std::round(elapsed_frames);
+  const double phase = hz * elapsed_frames / ctx.nominal_fps + 1e-9;
   if (spec_.sine) return std::sin(2 * CV_PI * phase);
   return phase - std::floor(phase) < 0.5 ? 1.0 : -1.0;
 }
