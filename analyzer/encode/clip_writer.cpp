@@ -12,7 +12,7 @@ extern "C" {
 #include <libswscale/swscale.h>
 }
 
-#include "analyzer/encode/libav_util.h"
+#include "analyzer/decode/libav_util.h"
 #include "framelint/clip_writer.h"
 
 namespace framelint {
@@ -30,7 +30,18 @@ bool h264_encoder_available() { return avcodec_find_encoder_by_name("libx264") !
 
 namespace {
 
-using namespace encode;
+using decode::av_error_text;
+using decode::CodecPtr;
+using decode::FramePtr;
+using decode::PacketPtr;
+using decode::SwsPtr;
+
+// Output contexts are freed, not closed like inputs; the writer closes the
+// file (pb) itself before.
+struct OutputFormatFree {
+  void operator()(AVFormatContext* f) const { avformat_free_context(f); }
+};
+using OutputFormatPtr = std::unique_ptr<AVFormatContext, OutputFormatFree>;
 
 constexpr AVRational kTimeBase{1, 90000};
 
@@ -194,7 +205,7 @@ class LibavClipWriter final : public ClipWriter {
   }
 
   Error av_failure(const std::string& step, int err) const {
-    return output_error(final_path_, step + " failed: " + libav_error_text(err));
+    return output_error(final_path_, step + " failed: " + av_error_text(err));
   }
 
   void close_all() {
@@ -212,11 +223,11 @@ class LibavClipWriter final : public ClipWriter {
   int64_t frames_ = 0, last_pts_ = 0;
   bool finished_ = false;
   const AVOutputFormat* fmt_ctx_for_flags_ = nullptr;
-  CodecContextPtr enc_;
+  CodecPtr enc_;
   OutputFormatPtr fmt_;
   FramePtr frame_;
   PacketPtr packet_;
-  SwsContextPtr sws_;
+  SwsPtr sws_;
   AVStream* stream_ = nullptr;
 };
 

@@ -8,10 +8,11 @@
 
 #include <opencv2/imgproc.hpp>
 
+#include "support/clips.h"
 #include "support/inject_clips.h"
 
 using namespace framelint;
-namespace ft = framelint::testing;
+namespace ft = framelint::test;
 
 namespace {
 
@@ -55,8 +56,9 @@ void expect_times_agree(const std::string& path, const std::vector<double>& writ
 }  // namespace
 
 TEST(ClipWriterReference, Ffv1KeepsTimesAndExactPixels) {
-  if (!ft::tool_available("ffprobe")) GTEST_SKIP() << "ffprobe is not installed";
-  const std::string dir = ft::fresh_temp_dir("writer-ffv1");
+  FRAMELINT_SKIP_WITHOUT_TOOL("ffprobe");
+  const ft::TempDir temp;
+  const std::string dir = temp.path().string();
   const auto times = irregular_times();
   auto path = write_clip(dir + "/clip.mp4", VideoCodec::ffv1, {80, 48}, times);
   ASSERT_TRUE(path.ok()) << path.error().message();
@@ -70,9 +72,10 @@ TEST(ClipWriterReference, Ffv1KeepsTimesAndExactPixels) {
 }
 
 TEST(ClipWriterReference, H264KeepsTimesAndQuality) {
-  if (!ft::tool_available("ffprobe")) GTEST_SKIP() << "ffprobe is not installed";
+  FRAMELINT_SKIP_WITHOUT_TOOL("ffprobe");
   if (!h264_encoder_available()) GTEST_SKIP() << "libav has no libx264 encoder";
-  const std::string dir = ft::fresh_temp_dir("writer-h264");
+  const ft::TempDir temp;
+  const std::string dir = temp.path().string();
   const auto times = irregular_times();
   auto path = write_clip(dir + "/clip.mkv", VideoCodec::h264, {96, 64}, times);
   ASSERT_TRUE(path.ok()) << path.error().message();
@@ -89,7 +92,8 @@ TEST(ClipWriterReference, H264KeepsTimesAndQuality) {
 
 TEST(ClipWriterReference, CrfTradesSizeForQualityAndOddSizesWork) {
   if (!h264_encoder_available()) GTEST_SKIP() << "libav has no libx264 encoder";
-  const std::string dir = ft::fresh_temp_dir("writer-crf");
+  const ft::TempDir temp;
+  const std::string dir = temp.path().string();
   const std::vector<double> times = {0, 0.04, 0.08, 0.12, 0.16, 0.2};
   auto fine = write_clip(dir + "/fine.mp4", VideoCodec::h264, {96, 64}, times, 5);
   auto coarse = write_clip(dir + "/coarse.mp4", VideoCodec::h264, {96, 64}, times, 40);
@@ -104,7 +108,8 @@ TEST(ClipWriterReference, CrfTradesSizeForQualityAndOddSizesWork) {
 }
 
 TEST(ClipWriterReference, BadCallsAreErrorsNamingTheFile) {
-  const std::string dir = ft::fresh_temp_dir("writer-bad");
+  const ft::TempDir temp;
+  const std::string dir = temp.path().string();
   ClipWriterOptions options;
   options.codec = VideoCodec::ffv1;
   auto missing_dir = ClipWriter::create(dir + "/no/such/folder/x.mkv", 32, 32, options);

@@ -9,7 +9,7 @@
 #include "framelint/clip_source.h"
 #include "framelint/clip_writer.h"
 #include "framelint/inject.h"
-#include "support/inject_clips.h"
+#include "support/clips.h"
 
 namespace framelint::accuracy {
 namespace fs = std::filesystem;
@@ -30,7 +30,7 @@ std::string gunzipped(const SetOptions& o, const std::string& name) {
   const std::string gz = std::string(kOpencvHtml) + "/" + name + ".gz";
   const std::string out = o.work_dir + "/sources/" + name;
   if (fs::exists(out)) return out;
-  if (!fs::exists(gz) || !testing::tool_available("gzip")) return "";
+  if (!fs::exists(gz) || !test::have_tool("gzip")) return "";
   fs::create_directories(o.work_dir + "/sources");
   const std::string tmp = out + ".part";
   if (std::system(("gzip -dc '" + gz + "' > '" + tmp + "'").c_str()) != 0) return "";
@@ -44,9 +44,9 @@ Expected<std::string> render_lavfi(const SetOptions& o, const BaseSource& s, int
   if (fs::exists(out)) return out;
   fs::create_directories(o.work_dir + "/sources");
   const std::string tmp = o.work_dir + "/sources/.part-" + s.name + ".mkv";
-  const std::string command = "ffmpeg -v error -y -f lavfi -i '" + s.path + "' -frames:v " + std::to_string(frames) +
-                              " -c:v ffv1 -pix_fmt bgr0 '" + tmp + "'";
-  if (std::system(command.c_str()) != 0) return input_error(s.path, "ffmpeg could not render this lavfi source");
+  const std::string failed =
+      test::make_lavfi_clip(tmp, s.path, {"-frames:v", std::to_string(frames), "-c:v", "ffv1", "-pix_fmt", "bgr0"});
+  if (!failed.empty()) return input_error(s.path, "ffmpeg could not render this lavfi source: " + failed);
   fs::rename(tmp, out);
   return out;
 }
@@ -112,7 +112,7 @@ std::vector<BaseSource> available_sources(const SetOptions& o) {
     if (!o.base_names.empty() && std::find(o.base_names.begin(), o.base_names.end(), s.name) == o.base_names.end())
       continue;
     if (s.lavfi) {
-      if (!testing::tool_available("ffmpeg")) {
+      if (!test::have_tool("ffmpeg")) {
         say(o, "skipping " + s.name + ": the ffmpeg tool is not installed");
         continue;
       }

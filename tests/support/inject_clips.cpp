@@ -1,22 +1,13 @@
 #include "support/inject_clips.h"
 
 #include <cmath>
-#include <cstdio>
-#include <filesystem>
 
 #include <opencv2/imgproc.hpp>
 
 #include "analyzer/color/relative_luminance.h"
+#include "support/decode_read.h"
 
-namespace framelint::testing {
-
-std::string fresh_temp_dir(const std::string& name) {
-  const auto dir = std::filesystem::temp_directory_path() / ("framelint-test-" + name);
-  std::error_code ec;
-  std::filesystem::remove_all(dir, ec);
-  std::filesystem::create_directories(dir);
-  return dir.string();
-}
+namespace framelint::test {
 
 cv::Mat synthetic_frame(cv::Size size, int index, double pan_px_per_frame) {
   cv::Mat frame(size, CV_8UC3);
@@ -47,21 +38,15 @@ Expected<std::string> write_synthetic_clip(const std::string& path, cv::Size siz
   return (*writer)->path();
 }
 
-Expected<ReadClip> read_whole_clip(const std::string& path) {
+Expected<DecodedClip> read_whole_clip(const std::string& path) {
   SourceOptions options;
   options.working_long_side = 0;
-  auto source = ClipSource::open(path, options);
-  if (!source) return source.error();
-  ReadClip clip;
-  for (;;) {
-    DecodedFrame frame;
-    auto got = (*source)->read(frame);
-    if (!got) return got.error();
-    if (!*got) break;
-    frame.bgr = frame.bgr.clone();
-    clip.frames.push_back(std::move(frame));
-  }
-  clip.stream = (*source)->stream_facts();
+  DecodedClip clip;
+  const ReadClip read = read_clip(path, options, [&](const DecodedFrame& frame) {
+    clip.frames.push_back({frame.index, frame.t_s, frame.bgr.clone()});
+  });
+  if (read.error) return *read.error;
+  clip.stream = read.facts;
   return clip;
 }
 
@@ -78,22 +63,4 @@ bool same_pixels(const cv::Mat& a, const cv::Mat& b) {
   return cv::countNonZero(diff.reshape(1)) == 0;
 }
 
-bool tool_available(const std::string& name) {
-  return std::system(("command -v " + name + " >/dev/null 2>&1").c_str()) == 0;
-}
-
-std::vector<double> ffprobe_frame_times(const std::string& path) {
-  std::vector<double> times;
-  if (!tool_available("ffprobe")) return times;
-  const std::string command = "ffprobe -v error -select_streams v:0 -show_entries frame=best_effort_timestamp_time "
-                              "-of csv=p=0 '" + path + "'";
-  FILE* pipe = popen(command.c_str(), "r");
-  if (!pipe) return times;
-  char line[256];
-  while (std::fgets(line, sizeof line, pipe))
-    if (line[0] != '\n') times.push_back(std::atof(line));
-  pclose(pipe);
-  return times;
-}
-
-}  // namespace framelint::testing
+}  // namespace framelint::test

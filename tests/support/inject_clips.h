@@ -1,5 +1,6 @@
 // Test helpers for the injector and the encoder: small synthetic clips with
-// known content, written with our own encoder, and whole-clip reads.
+// known content, written with our own encoder, and whole-clip reads that
+// keep every frame. Temporary folders and outside tools: support/clips.h.
 #pragma once
 
 #include <string>
@@ -10,11 +11,7 @@
 #include "framelint/clip_source.h"
 #include "framelint/clip_writer.h"
 
-namespace framelint::testing {
-
-// A fresh, empty folder under the system temp folder (removed first if it
-// exists), named after the test.
-std::string fresh_temp_dir(const std::string& name);
+namespace framelint::test {
 
 // Frame `index` of a synthetic scene: a smooth colour gradient with a
 // checker texture that pans `pan_px_per_frame` to the right, and a bright
@@ -26,22 +23,17 @@ cv::Mat synthetic_frame(cv::Size size, int index, double pan_px_per_frame = 1.0)
 Expected<std::string> write_synthetic_clip(const std::string& path, cv::Size size, int frames, double fps,
                                            VideoCodec codec = VideoCodec::ffv1);
 
-// Every frame of a clip at its native size (the decoder's copy kept).
-struct ReadClip {
+// Every frame of a clip at its native size, pixels kept.
+struct DecodedClip {
   std::vector<DecodedFrame> frames;
   StreamFacts stream;
 };
-Expected<ReadClip> read_whole_clip(const std::string& path);
+Expected<DecodedClip> read_whole_clip(const std::string& path);
 
 // Mean relative luminance of a BGR frame.
 double mean_relative_luminance(const cv::Mat& bgr);
 
-// True when the first argument equals the second pixel for pixel.
+// True when the two frames are equal pixel for pixel.
 bool same_pixels(const cv::Mat& a, const cv::Mat& b);
 
-// Times of each frame as ffprobe reports them (best_effort_timestamp_time),
-// or an empty vector when ffprobe is missing.
-std::vector<double> ffprobe_frame_times(const std::string& path);
-bool tool_available(const std::string& name);
-
-}  // namespace framelint::testing
+}  // namespace framelint::test

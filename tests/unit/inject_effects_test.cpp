@@ -14,8 +14,8 @@
 
 using namespace framelint;
 using namespace framelint::inject;
-using framelint::testing::mean_relative_luminance;
-using framelint::testing::synthetic_frame;
+using framelint::test::mean_relative_luminance;
+using framelint::test::synthetic_frame;
 
 TEST(FrameEffects, LinearGainScalesMeanRelativeLuminanceByTheGain) {
   // Relative luminance is linear in linear-light RGB (IEC 61966-2-1 decoding,
@@ -80,7 +80,7 @@ TEST(FrameEffects, DisplaceMovesTheContent) {
   cv::Mat moved = clean.clone();
   displace(moved, {5, -3});
   // moved(x, y) = clean(x - 5, y + 3) away from the replicated border.
-  EXPECT_TRUE(framelint::testing::same_pixels(moved(cv::Rect(5, 0, 59, 45)), clean(cv::Rect(0, 3, 59, 45))));
+  EXPECT_TRUE(framelint::test::same_pixels(moved(cv::Rect(5, 0, 59, 45)), clean(cv::Rect(0, 3, 59, 45))));
 }
 
 TEST(FrameEffects, FadeReplacesTheRegionWithItsSurroundings) {

@@ -12,10 +12,11 @@
 #include <opencv2/imgproc.hpp>
 
 #include "framelint/inject.h"
+#include "support/clips.h"
 #include "support/inject_clips.h"
 
 using namespace framelint;
-namespace ft = framelint::testing;
+namespace ft = framelint::test;
 
 namespace {
 
@@ -26,7 +27,7 @@ const cv::Size kSize(96, 64);
 class InjectRender : public ::testing::Test {
  protected:
   void SetUp() override {
-    dir_ = ft::fresh_temp_dir(::testing::UnitTest::GetInstance()->current_test_info()->name());
+    dir_ = temp_.path().string();
     auto clean_path = ft::write_synthetic_clip(dir_ + "/clean.mkv", kSize, kFrames, kFps);
     ASSERT_TRUE(clean_path.ok()) << clean_path.error().message();
     clean_path_ = *clean_path;
@@ -54,8 +55,9 @@ class InjectRender : public ::testing::Test {
 
   bool unchanged(int frame) const { return ft::same_pixels(out_.frames[frame].bgr, clean_.frames[frame].bgr); }
 
+  ft::TempDir temp_;
   std::string dir_, clean_path_;
-  ft::ReadClip clean_, out_;
+  ft::DecodedClip clean_, out_;
 };
 
 // Pixels that differ between two frames, as a mask.
