@@ -69,6 +69,7 @@ class LibavClipWriter final : public ClipWriter {
   }
 
   Status open(const std::string& requested, int width, int height, const ClipWriterOptions& options) {
+    decode::install_quiet_av_log();  // encoder chatter (x264's statistics) stays off stderr
     codec_ = options.codec;
     if (codec_ == VideoCodec::automatic) codec_ = h264_encoder_available() ? VideoCodec::h264 : VideoCodec::ffv1;
     final_path_ = output_path_for(requested, codec_);

@@ -60,7 +60,7 @@ bool overlaps(const Segment& s, const FrameSpan& span) {
 
 }  // namespace
 
-CaseScore score_case(const AnalyzedCase& c, const Policy& policy) {
+CaseScore score_case(const AnalyzedCase& c, const Policy& policy, int base_dropped_frames) {
   CaseScore score;
   if (!c.report) return score;
   const Report& r = *c.report;
@@ -91,7 +91,7 @@ CaseScore score_case(const AnalyzedCase& c, const Policy& policy) {
     for (int64_t f = s.start_frame; f <= s.end_frame; ++f) found_frames.insert(f);
   }
   score.detected = score.matched_segments > 0;
-  if (c.cls == DefectClass::drop && r.summary.stream.dropped_frames > 0) score.detected = true;
+  if (c.cls == DefectClass::drop && r.summary.stream.dropped_frames > base_dropped_frames) score.detected = true;
   if (!found_frames.empty()) {
     int64_t inter = 0;
     for (int64_t f : found_frames) inter += f >= span.start && f <= span.end;
@@ -110,16 +110,23 @@ double median(std::vector<double> v) {
   return n % 2 ? v[n / 2] : (v[n / 2 - 1] + v[n / 2]) / 2;
 }
 
+// Frames the clean base clips already lack (real footage may have gaps).
+using BaseDrops = std::map<std::string, int>;
+
+int base_drops(const BaseDrops& drops, const std::string& base) {
+  auto it = drops.find(base);
+  return it == drops.end() ? 0 : it->second;
+}
+
 ClassLevelRow score_group(DefectClass cls, StrengthLevel level, const std::vector<const AnalyzedCase*>& group,
-                          const std::vector<AnalyzedCase>& all, const std::vector<AnalyzedClean>& clean,
-                          const Policy& policy) {
+                          const std::vector<AnalyzedCase>& all, const BaseDrops& drops, const Policy& policy) {
   ClassLevelRow row{cls, level};
   row.cases = static_cast<int>(group.size());
   int matched = 0, false_segments = 0;
   double iou_sum = 0;
   std::vector<double> onsets;
   for (const AnalyzedCase* c : group) {
-    const CaseScore s = score_case(*c, policy);
+    const CaseScore s = score_case(*c, policy, base_drops(drops, c->base));
     if (!c->report) continue;
     ++row.scored;
     row.available = row.available || s.available;
@@ -138,19 +145,18 @@ ClassLevelRow score_group(DefectClass cls, StrengthLevel level, const std::vecto
     row.max_abs_onset = static_cast<int64_t>(*std::max_element(onsets.begin(), onsets.end()));
   }
   if (cls == DefectClass::drop) {
-    // A clip-level fact: of the clips the stream timing flags (this level's
-    // drop cases, every other injected case, every clean clip), the share
-    // that really lost frames.
+    // A clip-level fact: of the injected clips whose stream timing shows
+    // more missing frames than their clean base (this level's drop cases
+    // and every case of another class), the share that really lost frames.
     int flagged_clips = 0, true_clips = 0;
     for (const auto& c : all) {
       const bool this_row = c.cls == DefectClass::drop && c.level == level;
       if (c.cls == DefectClass::drop && !this_row) continue;
-      if (c.report && c.report->summary.stream.dropped_frames > 0) {
+      if (c.report && c.report->summary.stream.dropped_frames > base_drops(drops, c.base)) {
         ++flagged_clips;
         true_clips += this_row;
       }
     }
-    for (const auto& c : clean) flagged_clips += c.report && c.report->summary.stream.dropped_frames > 0;
     if (flagged_clips > 0) row.precision = static_cast<double>(true_clips) / flagged_clips;
   } else if (matched + false_segments > 0) {
     row.precision = static_cast<double>(matched) / (matched + false_segments);
@@ -163,12 +169,15 @@ ClassLevelRow score_group(DefectClass cls, StrengthLevel level, const std::vecto
 Scoreboard score_all(const std::vector<AnalyzedCase>& cases, const std::vector<AnalyzedClean>& clean,
                      const Policy& policy) {
   Scoreboard board;
+  BaseDrops drops;
+  for (const auto& c : clean)
+    if (c.report) drops[c.name] = c.report->summary.stream.dropped_frames;
   for (DefectClass cls : inject::all_defect_classes())
     for (StrengthLevel level : {StrengthLevel::weak, StrengthLevel::moderate, StrengthLevel::strong}) {
       std::vector<const AnalyzedCase*> group;
       for (const auto& c : cases)
         if (c.cls == cls && c.level == level) group.push_back(&c);
-      if (!group.empty()) board.rows.push_back(score_group(cls, level, group, cases, clean, policy));
+      if (!group.empty()) board.rows.push_back(score_group(cls, level, group, cases, drops, policy));
     }
   for (const auto& c : clean) {
     CleanRow row{c.name, c.real};

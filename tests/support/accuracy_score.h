@@ -65,7 +65,9 @@ struct CaseScore {
   std::vector<std::string> other_metrics;  // other metrics with a segment on the span
   Verdict verdict = Verdict::pass;
 };
-CaseScore score_case(const AnalyzedCase& c, const Policy& policy);
+// `base_dropped_frames`: the clean base clip's own count, so a drop is
+// found when the injected clip has more (real footage may have gaps).
+CaseScore score_case(const AnalyzedCase& c, const Policy& policy, int base_dropped_frames = 0);
 
 struct ClassLevelRow {
   inject::DefectClass cls = inject::DefectClass::flicker;

@@ -63,7 +63,8 @@ Expected<BaseClip> cut_window(const SetOptions& o, const BaseSource& s, const st
   std::unique_ptr<ClipWriter> writer;
   DecodedFrame frame;
   double t0 = 0;
-  for (int i = 0; clip.frames < o.max_frames; ++i) {
+  const int limit = s.max_frames > 0 ? std::min(s.max_frames, o.max_frames) : o.max_frames;
+  for (int i = 0; clip.frames < limit; ++i) {
     auto got = (*source)->read(frame);
     if (!got) return got.error();
     if (!*got) break;
@@ -96,7 +97,7 @@ std::vector<BaseSource> available_sources(const SetOptions& o) {
   // (Megamind: cuts near 4.1, 6.5 and 8.4 s found with FFmpeg's scdet).
   std::vector<BaseSource> all = {
       {"vtest", data + "/vtest.avi", true, false, 0, true},
-      {"megamind", data + "/Megamind.avi", true, false, 15, true},
+      {"megamind", data + "/Megamind.avi", true, false, 15, true, 80},  // frames 15-94
       {"box", "box.mp4", true, false, 0, true},
       {"cup", "cup.mp4", true, false, 0, true},
       {"tree", data + "/tree.avi", true, false, 0, false},  // ~2 fps, irregular: checked clean only

@@ -24,6 +24,7 @@ struct BaseSource {
   bool lavfi = false;      // `path` is an FFmpeg lavfi source description
   int first_frame = 0;     // where the base window starts in the source
   bool inject_into = true; // false: only checked clean (e.g. 2 fps footage)
+  int max_frames = 0;      // caps the window (e.g. before a scene cut); 0 = no cap
 };
 
 // A prepared base clip: the window, scaled, written losslessly.
@@ -48,8 +49,8 @@ struct SetOptions {
 // lavfi) is missing are left out with a log line.
 std::vector<BaseSource> available_sources(const SetOptions& options);
 
-// Prepares the base clips (cached in work_dir across runs with the same
-// options).
+// Prepares the base clips in work_dir (unpacked opencv-doc clips and
+// rendered lavfi sources are kept there and reused by later runs).
 Expected<std::vector<BaseClip>> prepare_base_clips(const SetOptions& options);
 
 // One planned injection.
