@@ -13,6 +13,7 @@ int run_probe(const std::vector<std::string>& args);
 int run_gate(const std::vector<std::string>& args);
 int run_merge(const std::vector<std::string>& args);
 int run_inspect(const std::vector<std::string>& args);
+int run_inject(const std::vector<std::string>& args);
 
 const std::vector<Command>& commands() {
   static const std::vector<Command> table = {
@@ -22,6 +23,7 @@ const std::vector<Command>& commands() {
       {"merge", "join the outputs of gate shards into one queue", run_merge},
       {"inspect", "write PNG panels (flow, warp, error, occlusion) for one frame", run_inspect},
       {"compare", "compare two model versions on the same prompts, with paired statistics", run_compare},
+      {"inject", "write a copy of a clip with known defects, and where they are", run_inject},
   };
   return table;
 }

@@ -1,0 +1,189 @@
+// framelint_accuracy_eval: the full accuracy evaluation (docs/accuracy.md).
+// Builds the evaluation set (defects injected at weak / moderate / strong
+// strength into opencv-doc footage and FFmpeg lavfi sources), analyses it,
+// and prints the per-class table. With --sweep it also prints, per metric,
+// how the detector's raw response on each class compares with clean real
+// footage, and how recall, precision and false alarms move when the
+// metric's thresholds are scaled: the evidence for the default policy.
+//
+//   framelint_accuracy_eval [--work DIR] [--width N] [--frames N]
+//       [--levels weak,moderate,strong] [--placements N] [--bases a,b]
+//       [--classes a,b] [--seed N] [--json FILE] [--markdown FILE] [--sweep]
+#include <algorithm>
+#include <cmath>
+#include <cstdio>
+#include <cstdlib>
+#include <fstream>
+#include <iostream>
+#include <map>
+#include <sstream>
+#include <string>
+
+#include "support/accuracy_run.h"
+
+using namespace framelint;
+using namespace framelint::accuracy;
+using inject::DefectClass;
+using inject::StrengthLevel;
+
+namespace {
+
+std::vector<std::string> split(const std::string& text) {
+  std::vector<std::string> out;
+  std::stringstream in(text);
+  for (std::string item; std::getline(in, item, ',');)
+    if (!item.empty()) out.push_back(item);
+  return out;
+}
+
+[[noreturn]] void usage(const std::string& why) {
+  std::fprintf(stderr, "framelint_accuracy_eval: %s\n(see the comment at the top of tests/bench/accuracy_eval.cpp)\n",
+               why.c_str());
+  std::exit(2);
+}
+
+EvalOptions parse(int argc, char** argv, std::string& json_path, std::string& md_path, bool& sweep) {
+  EvalOptions o;
+  o.set.work_dir = "/tmp/framelint-accuracy";
+  o.set.long_side = 512;
+  o.set.max_frames = 150;
+  o.levels = {StrengthLevel::weak, StrengthLevel::moderate, StrengthLevel::strong};
+  o.placements = 2;
+  for (int i = 1; i < argc; ++i) {
+    const std::string a = argv[i];
+    auto value = [&]() -> std::string {
+      if (i + 1 >= argc) usage(a + " needs a value");
+      return argv[++i];
+    };
+    if (a == "--work") o.set.work_dir = value();
+    else if (a == "--width") o.set.long_side = std::atoi(value().c_str());
+    else if (a == "--frames") o.set.max_frames = std::atoi(value().c_str());
+    else if (a == "--placements") o.placements = std::atoi(value().c_str());
+    else if (a == "--seed") o.seed = std::strtoull(value().c_str(), nullptr, 10);
+    else if (a == "--bases") o.set.base_names = split(value());
+    else if (a == "--json") json_path = value();
+    else if (a == "--markdown") md_path = value();
+    else if (a == "--sweep") sweep = true;
+    else if (a == "--levels") {
+      o.levels.clear();
+      for (const auto& l : split(value())) {
+        if (l == "weak") o.levels.push_back(StrengthLevel::weak);
+        else if (l == "moderate") o.levels.push_back(StrengthLevel::moderate);
+        else if (l == "strong") o.levels.push_back(StrengthLevel::strong);
+        else usage("unknown level '" + l + "'");
+      }
+    } else if (a == "--classes") {
+      o.classes.clear();
+      for (const auto& c : split(value())) {
+        auto cls = inject::defect_class_from_string(c);
+        if (!cls) usage("unknown class '" + c + "'");
+        o.classes.push_back(*cls);
+      }
+    } else {
+      usage("unknown argument '" + a + "'");
+    }
+  }
+  if (o.set.long_side < 64 || o.set.max_frames < 40 || o.placements < 1) usage("--width >= 64, --frames >= 40, --placements >= 1");
+  return o;
+}
+
+double quantile(std::vector<double> v, double q) {
+  if (v.empty()) return NAN;
+  std::sort(v.begin(), v.end());
+  return v[static_cast<size_t>(std::lround(q * static_cast<double>(v.size() - 1)))];
+}
+
+// Per metric: the raw response (series peak inside the expected span) per
+// class and level, beside clean real footage's p99 and max.
+void print_responses(const EvalRun& run) {
+  std::map<std::string, std::vector<double>> clean_values;
+  for (const auto& c : run.clean)
+    if (c.real && c.report)
+      for (const auto& s : c.report->series)
+        for (double v : s.values)
+          if (is_defined(v)) clean_values[s.metric].push_back(v);
+  std::printf("\n## Raw responses (series peak inside the expected span)\n\n");
+  std::printf("| metric | class | level | n | min | median | clean real p99 | clean real max |\n|---|---|---|---|---|---|---|---|\n");
+  for (DefectClass cls : inject::all_defect_classes())
+    for (const auto& metric : metrics_for(cls))
+      for (StrengthLevel level : {StrengthLevel::weak, StrengthLevel::moderate, StrengthLevel::strong}) {
+        std::vector<double> peaks;
+        for (const auto& c : run.cases) {
+          if (c.cls != cls || c.level != level || !c.report) continue;
+          const MetricSeries* s = c.report->find_series(metric);
+          if (!s) continue;
+          const FrameSpan span = expected_span(cls, c.truth_defect, static_cast<int64_t>(s->values.size()));
+          double peak = -INFINITY;
+          for (int64_t f = std::max<int64_t>(0, span.start - kMatchToleranceFrames);
+               f <= std::min<int64_t>(static_cast<int64_t>(s->values.size()) - 1, span.end + kMatchToleranceFrames); ++f)
+            if (is_defined(s->values[f])) peak = std::max(peak, s->values[f]);
+          if (std::isfinite(peak)) peaks.push_back(peak);
+        }
+        if (peaks.empty()) continue;
+        const auto& cv = clean_values[metric];
+        std::printf("| %s | %s | %s | %zu | %.4g | %.4g | %.4g | %.4g |\n", metric.c_str(), inject::to_string(cls),
+                    inject::to_string(level), peaks.size(), quantile(peaks, 0), quantile(peaks, 0.5),
+                    quantile(cv, 0.99), quantile(cv, 1.0));
+      }
+}
+
+// Scales one metric's SegmentRule levels by each factor and rescores.
+void print_sweep(const EvalRun& run, const Policy& base) {
+  std::printf("\n## Threshold sweep (rule levels x factor; moderate strength)\n\n");
+  std::printf("| metric | factor | enter | recall (classes) | precision | clean real segments | real rejects |\n|---|---|---|---|---|---|---|\n");
+  for (const auto& [metric, rule] : base.segments) {
+    std::vector<DefectClass> classes;
+    for (DefectClass cls : inject::all_defect_classes()) {
+      const auto& ms = metrics_for(cls);
+      if (std::find(ms.begin(), ms.end(), metric) != ms.end()) classes.push_back(cls);
+    }
+    for (double factor : {0.25, 0.35, 0.5, 0.7, 1.0, 1.4, 2.0, 2.8, 4.0}) {
+      Policy p = base;
+      SegmentRule& r = p.segments[metric];
+      r.enter *= factor;
+      r.leave *= factor;
+      r.review_peak *= factor;
+      r.reject_peak *= factor;
+      const Scoreboard board = score_all(run.cases, run.clean, p);
+      std::string recall, precision;
+      for (DefectClass cls : classes)
+        if (const ClassLevelRow* row = board.find(cls, StrengthLevel::moderate)) {
+          char buf[96];
+          std::snprintf(buf, sizeof buf, "%s%s %.2f", recall.empty() ? "" : ", ", inject::to_string(cls), row->recall);
+          recall += buf;
+          std::snprintf(buf, sizeof buf, "%s%s", precision.empty() ? "" : ", ",
+                        row->precision ? std::to_string(*row->precision).substr(0, 4).c_str() : "-");
+          precision += buf;
+        }
+      int clean_segments = 0;
+      for (const auto& c : board.clean)
+        if (c.real && c.segments.count(metric)) clean_segments += c.segments.at(metric);
+      std::printf("| %s | %.2f | %.4g | %s | %s | %d | %d |\n", metric.c_str(), factor, r.enter, recall.c_str(),
+                  precision.c_str(), clean_segments, board.real_rejects);
+    }
+  }
+}
+
+}  // namespace
+
+int main(int argc, char** argv) {
+  std::string json_path, md_path;
+  bool sweep = false;
+  EvalOptions options = parse(argc, argv, json_path, md_path, sweep);
+  options.set.log = [](const std::string& line) { std::fprintf(stderr, "%s\n", line.c_str()); };
+  auto run = run_evaluation(options);
+  if (!run) {
+    std::fprintf(stderr, "framelint_accuracy_eval: %s\n", run.error().message().c_str());
+    return 3;
+  }
+  const Scoreboard board = score_all(run->cases, run->clean, options.policy);
+  std::printf("%s", board.markdown().c_str());
+  std::printf("\n%zu injected clips, %zu clean clips, %.0f s\n", run->cases.size(), run->clean.size(), run->seconds);
+  if (sweep) {
+    print_responses(*run);
+    print_sweep(*run, options.policy);
+  }
+  if (!md_path.empty()) std::ofstream(md_path) << board.markdown();
+  if (!json_path.empty()) std::ofstream(json_path) << board.to_json().dump(1) << "\n";
+  return 0;
+}

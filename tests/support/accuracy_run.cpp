@@ -1,0 +1,48 @@
+#include "support/accuracy_run.h"
+
+#include <chrono>
+
+namespace framelint::accuracy {
+
+Expected<EvalRun> run_evaluation(const EvalOptions& options) {
+  const auto started = std::chrono::steady_clock::now();
+  auto say = [&](const std::string& line) {
+    if (options.set.log) options.set.log(line);
+  };
+  EvalRun run;
+  auto bases = prepare_base_clips(options.set);
+  if (!bases) return bases.error();
+  run.bases = std::move(*bases);
+  AnalysisSettings settings = options.analysis;
+  settings.working_long_side = options.set.long_side;
+
+  for (const auto& b : run.bases) {
+    AnalyzedClean clean{b.source.name, b.source.real};
+    auto report = analyze_clip(b.path, settings, options.policy);
+    if (report) clean.report = std::move(*report);
+    else clean.error = report.error().message();
+    run.clean.push_back(std::move(clean));
+  }
+  const auto plan = plan_cases(run.bases, options.classes, options.levels, options.placements, options.seed,
+                               options.set.work_dir);
+  for (size_t i = 0; i < plan.size(); ++i) {
+    const PlannedCase& p = plan[i];
+    AnalyzedCase c{p.id, p.base->source.name, p.cls, p.level};
+    auto truth = inject_case(p);
+    if (!truth) {
+      c.error = "inject: " + truth.error().message();
+    } else {
+      c.truth_defect = (*truth)["defects"][0];
+      auto report = analyze_clip((*truth)["output"]["path"], settings, options.policy);
+      if (report) c.report = std::move(*report);
+      else c.error = "analyze: " + report.error().message();
+    }
+    say("[" + std::to_string(i + 1) + "/" + std::to_string(plan.size()) + "] " + p.id + " " + p.spec +
+        (c.error.empty() ? "" : "  FAILED: " + c.error));
+    run.cases.push_back(std::move(c));
+  }
+  run.seconds = std::chrono::duration<double>(std::chrono::steady_clock::now() - started).count();
+  return run;
+}
+
+}  // namespace framelint::accuracy

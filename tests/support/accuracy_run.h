@@ -1,0 +1,35 @@
+// Running the accuracy evaluation end to end: prepare the base clips,
+// inject every planned case, analyse the injected and the clean clips, and
+// keep the reports for scoring (support/accuracy_score.h).
+#pragma once
+
+#include <functional>
+#include <string>
+#include <vector>
+
+#include "framelint/analysis.h"
+#include "support/accuracy_score.h"
+#include "support/accuracy_set.h"
+
+namespace framelint::accuracy {
+
+struct EvalOptions {
+  SetOptions set;  // work folder, size, frames, base clips
+  std::vector<inject::DefectClass> classes = inject::all_defect_classes();
+  std::vector<inject::StrengthLevel> levels = {inject::StrengthLevel::moderate};
+  int placements = 1;
+  uint64_t seed = 1;
+  AnalysisSettings analysis;  // working_long_side is set to set.long_side
+  Policy policy = default_policy();
+};
+
+struct EvalRun {
+  std::vector<BaseClip> bases;
+  std::vector<AnalyzedCase> cases;
+  std::vector<AnalyzedClean> clean;
+  double seconds = 0;  // wall time of the run
+};
+
+Expected<EvalRun> run_evaluation(const EvalOptions& options);
+
+}  // namespace framelint::accuracy

@@ -1,0 +1,248 @@
+#include "support/accuracy_set.h"
+
+#include <algorithm>
+#include <cmath>
+#include <cstdlib>
+#include <filesystem>
+#include <fstream>
+
+#include "framelint/clip_source.h"
+#include "framelint/clip_writer.h"
+#include "framelint/inject.h"
+#include "support/clips.h"
+
+namespace framelint::accuracy {
+namespace fs = std::filesystem;
+using inject::DefectClass;
+using inject::StrengthLevel;
+
+namespace {
+
+const char* kOpencvData = "/usr/share/doc/opencv-doc/examples/data";
+const char* kOpencvHtml = "/usr/share/doc/opencv-doc/opencv4/html";
+
+void say(const SetOptions& o, const std::string& line) {
+  if (o.log) o.log(line);
+}
+
+// A gzipped opencv-doc clip, unpacked once into the work folder.
+std::string gunzipped(const SetOptions& o, const std::string& name) {
+  const std::string gz = std::string(kOpencvHtml) + "/" + name + ".gz";
+  const std::string out = o.work_dir + "/sources/" + name;
+  if (fs::exists(out)) return out;
+  if (!fs::exists(gz) || !test::have_tool("gzip")) return "";
+  fs::create_directories(o.work_dir + "/sources");
+  const std::string tmp = out + ".part";
+  if (std::system(("gzip -dc '" + gz + "' > '" + tmp + "'").c_str()) != 0) return "";
+  fs::rename(tmp, out);
+  return out;
+}
+
+// Renders a lavfi test source with the ffmpeg command-line tool (FFV1).
+Expected<std::string> render_lavfi(const SetOptions& o, const BaseSource& s, int frames) {
+  const std::string out = o.work_dir + "/sources/" + s.name + "-" + std::to_string(frames) + ".mkv";
+  if (fs::exists(out)) return out;
+  fs::create_directories(o.work_dir + "/sources");
+  const std::string tmp = o.work_dir + "/sources/.part-" + s.name + ".mkv";
+  const std::string failed =
+      test::make_lavfi_clip(tmp, s.path, {"-frames:v", std::to_string(frames), "-c:v", "ffv1", "-pix_fmt", "bgr0"});
+  if (!failed.empty()) return input_error(s.path, "ffmpeg could not render this lavfi source: " + failed);
+  fs::rename(tmp, out);
+  return out;
+}
+
+// Copies frames [first, first + count) of `source` at `long_side`, times
+// shifted to start at 0, losslessly.
+Expected<BaseClip> cut_window(const SetOptions& o, const BaseSource& s, const std::string& full_path) {
+  BaseClip clip{s, full_path, o.work_dir + "/bases/" + s.name + ".mkv", 0, 0, 0};
+  SourceOptions options;
+  options.working_long_side = o.long_side;
+  auto source = ClipSource::open(full_path, options);
+  if (!source) return source.error();
+  const std::string tmp = o.work_dir + "/bases/.part-" + s.name + ".mkv";
+  std::unique_ptr<ClipWriter> writer;
+  DecodedFrame frame;
+  double t0 = 0;
+  const int limit = s.max_frames > 0 ? std::min(s.max_frames, o.max_frames) : o.max_frames;
+  for (int i = 0; clip.frames < limit; ++i) {
+    auto got = (*source)->read(frame);
+    if (!got) return got.error();
+    if (!*got) break;
+    if (i < s.first_frame) continue;
+    if (!writer) {
+      t0 = frame.t_s;
+      ClipWriterOptions wo;
+      wo.codec = VideoCodec::ffv1;
+      wo.nominal_fps = (*source)->info().fps > 0 ? (*source)->info().fps : 25;
+      auto w = ClipWriter::create(tmp, frame.bgr.cols, frame.bgr.rows, wo);
+      if (!w) return w.error();
+      writer = std::move(*w);
+    }
+    if (Status st = writer->write(frame.bgr, frame.t_s - t0); !st) return st.error();
+    ++clip.frames;
+  }
+  if (!writer) return input_error(full_path, "no frames after frame " + std::to_string(s.first_frame));
+  if (Status st = writer->finish(); !st) return st.error();
+  fs::rename(writer->path(), clip.path);
+  clip.fps = (*source)->info().fps > 0 ? (*source)->info().fps : 25;
+  clip.full_frames = static_cast<int>((*source)->info().frame_count);  // the container's estimate
+  return clip;
+}
+
+}  // namespace
+
+std::vector<BaseSource> available_sources(const SetOptions& o) {
+  const std::string data = kOpencvData;
+  // Windows avoid the trailer's own scene cuts and its black opening
+  // (Megamind: cuts near 4.1, 6.5 and 8.4 s found with FFmpeg's scdet).
+  std::vector<BaseSource> all = {
+      {"vtest", data + "/vtest.avi", true, false, 0, true},
+      {"megamind", data + "/Megamind.avi", true, false, 15, true, 80},  // frames 15-94
+      {"box", "box.mp4", true, false, 0, true},
+      {"cup", "cup.mp4", true, false, 0, true},
+      {"tree", data + "/tree.avi", true, false, 0, false},  // ~2 fps, irregular: checked clean only
+      {"testsrc2", "testsrc2=size=" + std::to_string(o.long_side) + "x" + std::to_string(o.long_side * 3 / 4) +
+                       ":rate=25",
+       false, true, 0, true},
+      {"mandelbrot", "mandelbrot=size=" + std::to_string(o.long_side) + "x" + std::to_string(o.long_side * 3 / 4) +
+                         ":rate=25",
+       false, true, 0, true},
+  };
+  std::vector<BaseSource> out;
+  for (auto s : all) {
+    if (!o.base_names.empty() && std::find(o.base_names.begin(), o.base_names.end(), s.name) == o.base_names.end())
+      continue;
+    if (s.lavfi) {
+      if (!test::have_tool("ffmpeg")) {
+        say(o, "skipping " + s.name + ": the ffmpeg tool is not installed");
+        continue;
+      }
+    } else if (s.path.find('/') == std::string::npos) {
+      s.path = gunzipped(o, s.path);
+      if (s.path.empty()) {
+        say(o, "skipping " + s.name + ": opencv-doc's gzipped clip (or gzip) is missing");
+        continue;
+      }
+    } else if (!fs::exists(s.path)) {
+      say(o, "skipping " + s.name + ": " + s.path + " is missing (Debian package opencv-doc)");
+      continue;
+    }
+    out.push_back(s);
+  }
+  return out;
+}
+
+Expected<std::vector<BaseClip>> prepare_base_clips(const SetOptions& o) {
+  fs::create_directories(o.work_dir + "/bases");
+  std::vector<BaseClip> clips;
+  for (const auto& s : available_sources(o)) {
+    std::string full = s.path;
+    if (s.lavfi) {
+      // Rendered longer than the window so cuts can splice from 4+ s away.
+      auto rendered = render_lavfi(o, s, o.max_frames + 150);
+      if (!rendered) return rendered.error();
+      full = *rendered;
+    }
+    auto clip = cut_window(o, s, full);
+    if (!clip) return clip.error();
+    say(o, "base " + s.name + ": " + std::to_string(clip->frames) + " frames at " + std::to_string(clip->fps) +
+               " fps");
+    clips.push_back(std::move(*clip));
+  }
+  return clips;
+}
+
+namespace {
+
+// Deterministic per-case numbers from the run seed and the case's name
+// (FNV-1a, then a splitmix64 step; common practice for seed derivation).
+uint64_t case_seed(uint64_t seed, const std::string& id) {
+  uint64_t h = 1469598103934665603ULL ^ seed;
+  for (unsigned char ch : id) h = (h ^ ch) * 1099511628211ULL;
+  h = (h ^ (h >> 30)) * 0xbf58476d1ce4e5b9ULL;
+  h = (h ^ (h >> 27)) * 0x94d049bb133111ebULL;
+  return (h ^ (h >> 31)) & 0x7fffffffULL;
+}
+
+std::string range_spec(DefectClass cls, StrengthLevel level, int start, const BaseClip& b) {
+  const int n = b.frames;
+  const int pulse_len = std::clamp(static_cast<int>(std::lround(b.fps)), 6, n / 4);
+  switch (cls) {
+    case DefectClass::flicker:
+    case DefectClass::local_flicker:
+    case DefectClass::boiling:
+    case DefectClass::strobe:
+      return std::to_string(start) + "-" + std::to_string(start + pulse_len - 1);
+    case DefectClass::freeze:
+    case DefectClass::drop: {
+      const int len = static_cast<int>(inject::strength_for_level(cls, level));
+      return std::to_string(start) + "-" + std::to_string(start + len - 1);
+    }
+    case DefectClass::jerk: return std::to_string(start);
+    default: return std::to_string(start) + "-";  // drift classes and cuts run to the end
+  }
+}
+
+// Where a cut's frames come from, as spec keys.
+std::string cut_source(StrengthLevel level, int start, const BaseClip& b, const std::vector<BaseClip>& bases) {
+  if (level == StrengthLevel::strong) {
+    // Another base clip: a different scene altogether.
+    const auto it = std::find_if(bases.begin(), bases.end(), [&](const BaseClip& o) {
+      return o.source.name != b.source.name && o.source.inject_into;
+    });
+    if (it != bases.end()) return ",source=" + it->path + ",source_start=0";
+  }
+  const double seconds = inject::strength_for_level(DefectClass::cut, level);
+  const int offset = static_cast<int>(std::lround(seconds * b.fps));
+  const int here = b.source.first_frame + start;
+  const int remaining = b.frames - start;  // the cut runs to the end
+  // After the range if the source is long enough, else before it.
+  int from = here + offset;
+  if (from + remaining > b.full_frames) from = here - offset >= 0 ? here - offset : std::max(0, b.full_frames - remaining);
+  return ",source=" + b.full_path + ",source_start=" + std::to_string(from);
+}
+
+}  // namespace
+
+std::vector<PlannedCase> plan_cases(const std::vector<BaseClip>& bases, const std::vector<DefectClass>& classes,
+                                    const std::vector<StrengthLevel>& levels, int placements, uint64_t seed,
+                                    const std::string& work_dir) {
+  std::vector<PlannedCase> cases;
+  fs::create_directories(work_dir + "/cases");
+  for (const auto& b : bases) {
+    if (!b.source.inject_into) continue;
+    for (DefectClass cls : classes)
+      for (StrengthLevel level : levels)
+        for (int p = 0; p < placements; ++p) {
+          PlannedCase c;
+          c.base = &b;
+          c.cls = cls;
+          c.level = level;
+          c.placement = p;
+          c.id = b.source.name + "/" + inject::to_string(cls) + "/" + inject::to_string(level) + "/" +
+                 std::to_string(p);
+          c.seed = case_seed(seed, c.id);
+          const int start = static_cast<int>(b.frames * (0.30 + 0.15 * static_cast<double>(c.seed % 1000) / 1000.0));
+          c.spec = std::string(inject::to_string(cls)) + "@" + range_spec(cls, level, start, b);
+          if (!inject::strength_is_range_length(cls))
+            c.spec += std::string(":strength=") + inject::to_string(level);
+          if (cls == DefectClass::cut) c.spec += cut_source(level, start, b, bases);
+          std::string file = c.id;
+          std::replace(file.begin(), file.end(), '/', '-');
+          c.clip_path = work_dir + "/cases/" + file + ".mkv";
+          cases.push_back(std::move(c));
+        }
+  }
+  return cases;
+}
+
+Expected<nlohmann::json> inject_case(const PlannedCase& c) {
+  InjectOptions options;
+  options.defect_specs = {c.spec};
+  options.output_path = c.clip_path;
+  options.seed = c.seed;
+  options.writer.codec = VideoCodec::ffv1;
+  return inject_defects(c.base->path, options);
+}
+
+}  // namespace framelint::accuracy
