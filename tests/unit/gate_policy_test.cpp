@@ -48,9 +48,12 @@ TEST(GatePolicy, DefaultRoundTripsUnchanged) {
 
 TEST(GatePolicy, DefaultCoversTheInitialMetricsWithPossibleThresholds) {
   const Policy& p = default_policy();
+  // flash has no segment rule: its metric writes the WCAG hazard segments
+  // itself, and the hard rule flash_hazard_rejects judges them.
   for (const char* metric : {"warp_error", "warp_error_long", "occluded_pct", "flicker", "freeze",
-                             "cut", "drift", "flash", "jerk", "flicker_local"})
+                             "cut", "drift", "jerk", "flicker_local"})
     EXPECT_TRUE(p.segments.count(metric)) << metric;
+  EXPECT_TRUE(p.flash_hazard_rejects);
   for (const auto& [metric, r] : p.segments) {
     EXPECT_LE(r.leave, r.enter) << metric;
     EXPECT_GE(r.min_frames, 1) << metric;
