@@ -124,12 +124,13 @@ int main(int argc, char** argv) {
   auto clean_mp4 = render_clip(clean, (out / "lanternfish_clean.mp4").string(), VideoCodec::automatic);
   if (!clean_mp4) return fail(clean_mp4.error());
 
-  // Another take of the same shot: the camera further along the harbour,
-  // the lantern elsewhere and later in its flight.
+  // Another take: a close-up of the lantern further along the harbour,
+  // later in its flight.
   lanternfish::ShotParams other;
   other.camera_start_px = 150;
   other.lantern_start_x = 300;
   other.time_offset_s = 4;
+  other.close_up = 2.2;
   auto other_take = render_clip(lanternfish::HarbourScene(other), (work / "other_take.mkv").string(), VideoCodec::ffv1);
   if (!other_take) return fail(other_take.error());
 

@@ -171,6 +171,16 @@ cv::Mat HarbourScene::render(double t_s) const {
   // Dusk deepens slowly: a 6% fall of light over five seconds, a lighting
   // change a checker must not call flicker.
   frame *= 1.0 - 0.012 * (t_s + p_.time_offset_s);
+  if (p_.close_up > 1) {
+    // Crop around the lantern (kept inside the frame) and scale back up.
+    const cv::Point2d c = lantern_world(t_s);
+    const cv::Size2d crop(p_.size.width / p_.close_up, p_.size.height / p_.close_up);
+    const double x = std::clamp(c.x - camera_x - crop.width / 2, 0.0, p_.size.width - crop.width);
+    const double y = std::clamp(c.y - crop.height / 2, 0.0, p_.size.height - crop.height);
+    cv::Mat zoomed;
+    cv::resize(frame(cv::Rect(cv::Rect2d(x, y, crop.width, crop.height))), zoomed, p_.size, 0, 0, cv::INTER_CUBIC);
+    frame = zoomed;
+  }
   cv::Mat out;
   frame.convertTo(out, CV_8UC3, 255.0);
   return out;

@@ -22,6 +22,9 @@ struct ShotParams {
   double drift_start_s = 0;
   double drift_end_deg = 0;
   double duration_s = 5;
+  // > 1 frames a close-up: the view is cropped around the lantern by this
+  // factor and scaled back up (for the "jump" to another framing).
+  double close_up = 1;
 };
 
 class HarbourScene {

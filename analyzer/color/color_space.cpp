@@ -1,5 +1,7 @@
 #include "analyzer/color/color_space.h"
 
+#include <algorithm>
+#include <array>
 #include <cmath>
 
 namespace framelint::color {
@@ -63,6 +65,24 @@ Xyz lab_to_xyz(const Lab& c, const Xyz& white) {
   const double fx = fy + c.a / 500.0;
   const double fz = fy - c.b / 200.0;
   return {white.x * lab_f_inverse(fx), white.y * lab_f_inverse(fy), white.z * lab_f_inverse(fz)};
+}
+
+double srgb_to_linear_table(double encoded) {
+  constexpr int kSize = 4096;
+  static const std::array<double, kSize + 1> table = [] {
+    std::array<double, kSize + 1> t{};
+    for (int i = 0; i <= kSize; ++i) t[i] = srgb_to_linear(static_cast<double>(i) / kSize);
+    return t;
+  }();
+  const double x = std::clamp(encoded, 0.0, 1.0) * kSize;
+  const int i = std::min(static_cast<int>(x), kSize - 1);
+  const double f = x - i;
+  return table[i] + f * (table[i + 1] - table[i]);
+}
+
+Lab srgb_to_lab_fast(const Rgb& c) {
+  return xyz_to_lab(linear_rgb_to_xyz(
+      {srgb_to_linear_table(c.r), srgb_to_linear_table(c.g), srgb_to_linear_table(c.b)}));
 }
 
 Lab srgb_to_lab(const Rgb& encoded) {

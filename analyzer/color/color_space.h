@@ -40,6 +40,11 @@ Xyz lab_to_xyz(const Lab& lab, const Xyz& white = kWhiteD65);
 
 // Shorthands for 8-bit-style encoded sRGB in [0,1].
 Lab srgb_to_lab(const Rgb& encoded);
+// The same through a 4096-entry table of the transfer function with linear
+// interpolation (within 1e-6 of srgb_to_linear on [0,1]), for per-point use
+// in loops; inputs are clamped to [0,1].
+double srgb_to_linear_table(double encoded);
+Lab srgb_to_lab_fast(const Rgb& encoded);
 Rgb lab_to_srgb(const Lab& lab);
 
 // CIELAB chroma and hue angle in degrees [0, 360).

@@ -134,7 +134,7 @@ void DriftTracker::end_shot(const FramePair& pair) {
   shot_active_ = false;
 }
 
-void DriftTracker::seed_point(cv::Point2f p, TrackPoint& point) const {
+void DriftTracker::seed_point(cv::Point2f p, TrackPoint& point, bool with_structure) const {
   point.pos = p;
   point.ref_pos = p;
   point.state = PointState::tracked;
@@ -142,7 +142,9 @@ void DriftTracker::seed_point(cv::Point2f p, TrackPoint& point) const {
   point.ref_rgb = illumination_prev_.invert(prev_features_.colour(p));
   point.ref_gray = prev_features_.gray(p);
   point.ref_slope = sample_gray_gradient(prev_features_.magnitude(), p) / 255.0f;
-  const float mass = prev_features_.local_histogram(p, params_.histogram_radius_px, params_.histogram_stride_px, 0, point.ref_hist);
+  if (!with_structure) return;  // illumination anchors need colour only
+  const float mass = prev_features_.local_histogram(p, params_.histogram_radius_px,
+                                                    params_.histogram_stride_px, 0, point.ref_hist);
   // Like the colour, the gradient reference is kept in the contrast of the
   // shot's first frame.
   const float to_shot = 1.0f / std::max(0.2f, illumination_prev_.mean_gain());
@@ -229,7 +231,7 @@ void DriftTracker::add_object(const RegionProposal& region, ObjectKind kind,
   object.points.resize(region.points.size());
   cv::Point2f sum(0, 0);
   for (size_t i = 0; i < region.points.size(); ++i) {
-    seed_point(region.points[i], object.points[i]);
+    seed_point(region.points[i], object.points[i], true);
     sum += region.points[i];
   }
   object.ref_centroid = sum * (1.0f / static_cast<float>(region.points.size()));
@@ -259,7 +261,7 @@ void DriftTracker::top_up_anchors(const FramePair& pair) {
     for (int c = 0; c < grid.cols; ++c) {
       if (occupied.at<uint8_t>(r, c)) continue;
       TrackPoint& p = anchors_.emplace_back();
-      seed_point(grid.position(c, r), p);
+      seed_point(grid.position(c, r), p, false);
     }
   }
 }

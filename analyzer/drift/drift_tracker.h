@@ -89,7 +89,7 @@ class DriftTracker {
   void end_shot(const FramePair& pair);
   void propose(const FramePair& pair, bool shot_start);
   void add_object(const RegionProposal& region, ObjectKind kind, const FramePair& pair);
-  void seed_point(cv::Point2f p, TrackPoint& point) const;
+  void seed_point(cv::Point2f p, TrackPoint& point, bool with_structure) const;
   void top_up_anchors(const FramePair& pair);
   void advect(const FramePair& pair, std::vector<TrackPoint>& points) const;
   void fit_global_illumination();

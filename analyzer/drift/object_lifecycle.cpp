@@ -55,16 +55,17 @@ bool DriftTracker::breaks_continuity(const ObjectTrack& object, const ObjectSamp
     if (now.t_s - it->t_s >= params_.continuity_window_s) break;
   }
   if (!prior) return false;
-  const double span = std::clamp((now.t_s - prior->t_s) / params_.continuity_window_s, 1.0, 1.5);
+  // The allowance does not grow across a stretch the object was not
+  // measured in: coming back from a crossing changed is the typical break.
   // The colour then, rebased on this frame's reference points (the visible
   // subset may differ), against the colour now.
   const cv::Vec3f then = now.colour_ref + (prior->colour_now - prior->colour_ref);
   const double colour = color::ciede2000({now.colour_now[0], now.colour_now[1], now.colour_now[2]},
                                          {then[0], then[1], then[2]});
   const double size = std::abs(std::log1p(now.size_pct / 100.0) - std::log1p(prior->size_pct / 100.0));
-  return colour > params_.max_colour_jump_de00 * span ||
-         size > params_.max_size_jump_log * span ||
-         std::abs(now.structure - prior->structure) > params_.max_structure_jump * span;
+  return colour > params_.max_colour_jump_de00 ||
+         size > params_.max_size_jump_log ||
+         std::abs(now.structure - prior->structure) > params_.max_structure_jump;
 }
 
 // Size change over the last `size_window_s` (against the measured sample

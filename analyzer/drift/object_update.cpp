@@ -11,7 +11,7 @@
 namespace framelint::drift {
 namespace {
 
-color::Lab lab_of(const cv::Vec3f& bgr) { return color::srgb_to_lab({bgr[2], bgr[1], bgr[0]}); }
+color::Lab lab_of(const cv::Vec3f& bgr) { return color::srgb_to_lab_fast({bgr[2], bgr[1], bgr[0]}); }
 
 // Local scale (sqrt of the Jacobian determinant) of a homography at p.
 double local_scale(const cv::Matx33d& h, cv::Point2f p) {

@@ -3,6 +3,7 @@
 // common frame rate, 8 to 60 fps and 30000/1001, has an exact whole-tick
 // interval) and rescaled to whatever the muxer settles on (Matroska: 1 ms).
 #include <cmath>
+#include <cstring>
 #include <filesystem>
 
 extern "C" {
@@ -58,6 +59,14 @@ std::string partial_path_for(const std::string& final_path) {
   return (p.parent_path() / ("." + p.stem().string() + ".partial" + p.extension().string())).string();
 }
 
+// Zeroes every plane including the padding at the end of each line: the
+// encoder's SIMD code may read it, and left uninitialised it would make the
+// output bytes depend on what the heap held before.
+void clear_planes(AVFrame* frame) {
+  for (int p = 0; p < AV_NUM_DATA_POINTERS && frame->buf[p]; ++p)
+    std::memset(frame->buf[p]->data, 0, frame->buf[p]->size);
+}
+
 class LibavClipWriter final : public ClipWriter {
  public:
   ~LibavClipWriter() override {
@@ -102,9 +111,13 @@ class LibavClipWriter final : public ClipWriter {
       return output_error(final_path_, "frame " + std::to_string(frames_) + " time " + std::to_string(t_s) +
                                            " s does not increase");
     if (int err = av_frame_make_writable(frame_.get()); err < 0) return av_failure("frame buffer", err);
-    const uint8_t* src[1] = {bgr.data};
-    const int src_stride[1] = {static_cast<int>(bgr.step)};
-    sws_scale(sws_.get(), src, src_stride, 0, height_, frame_->data, frame_->linesize);
+    // swscale picks its SIMD or plain-C path by the input's alignment, and
+    // the two round differently: copying into our own aligned buffer first
+    // makes the encoded bytes independent of where the caller's image lives.
+    for (int y = 0; y < height_; ++y)
+      std::memcpy(source_->data[0] + static_cast<ptrdiff_t>(y) * source_->linesize[0], bgr.ptr(y),
+                  static_cast<size_t>(width_) * 3);
+    sws_scale(sws_.get(), source_->data, source_->linesize, 0, height_, frame_->data, frame_->linesize);
     frame_->pts = pts;
     last_pts_ = pts;
     ++frames_;
@@ -157,12 +170,19 @@ class LibavClipWriter final : public ClipWriter {
     if (err < 0) return av_failure("opening the encoder", err);
 
     frame_.reset(av_frame_alloc());
+    source_.reset(av_frame_alloc());
     packet_.reset(av_packet_alloc());
-    if (!frame_ || !packet_) return output_error(final_path_, "out of memory");
+    if (!frame_ || !source_ || !packet_) return output_error(final_path_, "out of memory");
+    source_->format = AV_PIX_FMT_BGR24;
+    source_->width = width_;
+    source_->height = height_;
+    if (int e = av_frame_get_buffer(source_.get(), 64); e < 0) return av_failure("frame buffer", e);
+    clear_planes(source_.get());
     frame_->format = pix_fmt;
     frame_->width = width_;
     frame_->height = height_;
     if (int e = av_frame_get_buffer(frame_.get(), 0); e < 0) return av_failure("frame buffer", e);
+    clear_planes(frame_.get());
     sws_.reset(sws_getContext(width_, height_, AV_PIX_FMT_BGR24, width_, height_, pix_fmt, SWS_BICUBIC | SWS_ACCURATE_RND,
                               nullptr, nullptr, nullptr));
     if (!sws_) return output_error(final_path_, "no pixel conversion to the encoder's format");
@@ -215,6 +235,7 @@ class LibavClipWriter final : public ClipWriter {
     enc_.reset();
     sws_.reset();
     frame_.reset();
+    source_.reset();
     packet_.reset();
   }
 
@@ -226,7 +247,7 @@ class LibavClipWriter final : public ClipWriter {
   const AVOutputFormat* fmt_ctx_for_flags_ = nullptr;
   CodecPtr enc_;
   OutputFormatPtr fmt_;
-  FramePtr frame_;
+  FramePtr frame_, source_;  // encoder input; aligned copy of the caller's BGR frame
   PacketPtr packet_;
   SwsPtr sws_;
   AVStream* stream_ = nullptr;

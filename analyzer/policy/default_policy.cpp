@@ -158,16 +158,23 @@ std::vector<MetricBlock> metric_blocks() {
        {{"segment_count", kOff, 3}}},
 
       // ---- drift -----------------------------------------------------------
-      // Worst tracked object's departure from its own first appearance,
-      // assumed to be CIEDE2000 colour difference (ΔE00) once lighting is
-      // taken out; the drift owner refines the unit. ΔE00 ~1 is a just
-      // noticeable difference and ~2-3 is visible at a glance (common
-      // practice); 4 enters, 6 reviews, 12 (plainly another colour) rejects.
-      // A short blip is tracking noise, so 3 frames minimum.
+      // Worst followed object's departure from its own first look, on the
+      // drift owner's combined scale (docs/drift.md): max(ΔE00 / 20,
+      // structure / 0.6, |ln size change over 2 s| / ln 1.3), so 1.0 means at
+      // least one aspect is clearly off. Measured 2026-12-02 at 512 px,
+      // balanced preset: clean opencv-doc vtest.avi (first 150 frames) peaks
+      // at 0.79, tree.avi at 0.49; injected drifts on real images read 1.2
+      // (hue turned 40 degrees, ΔE00 23) and 1.4 (30% shrink in 2 s).
+      // Review at 1.0, reject at twice that. A segment opens at 0.35 (ΔE00 7)
+      // so a slow departure is marked from early on; those below 1.0 stay
+      // info. Absolute only (baseline off): drift is cumulative, and a clip's
+      // own median would be raised by a drift that spans most of the clip.
+      // No clip-level statistic: the segment peak already carries severity,
+      // and a long info segment on a busy clean clip must not review.
       {"drift",
-       SegmentRule{.enter = 4, .leave = 3, .min_frames = 3, .merge_gap_frames = 3,
-                   .baseline_k = 0, .review_peak = 6, .reject_peak = 12},
-       {{"longest_segment_s", 0.5, kOff}}},
+       SegmentRule{.enter = 0.35, .leave = 0.25, .min_frames = 3, .merge_gap_frames = 5,
+                   .baseline_k = 0, .review_peak = 1.0, .reject_peak = 2.0},
+       {}},
 
       // ---- flash -----------------------------------------------------------
       // Flashes in the one-second window ending at the frame, counted only

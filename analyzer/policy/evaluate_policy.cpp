@@ -250,12 +250,6 @@ void check_stream(const Report& r, const Policy& p, std::vector<Finding>& out) {
     out.push_back({Severity::review, "stream dropped_frames " + std::to_string(st.dropped_frames) +
                                          " >= review " + std::to_string(*p.dropped_frames_review) +
                                          " " + dropped_place(r)});
-  // The pipeline notes a clip whose decoding stopped before its end
-  // (analyzer/pipeline/report_assembly.cpp): only part of it was judged.
-  if (p.decode_warnings_review)
-    for (const auto& note : r.notes)
-      if (note.rfind("decoding stopped early", 0) == 0)
-        out.push_back({Severity::review, "decode: " + note + " " + whole_clip(r)});
   if (p.decode_warnings_review && r.summary.details.contains("decode")) {
     const auto& w = r.summary.details["decode"].value("warnings", nlohmann::json());
     const size_t n = w.is_array()    ? w.size()

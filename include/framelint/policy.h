@@ -58,9 +58,9 @@ struct Policy {
   std::optional<double> coherence_review_below;          // coherence score floor
   std::optional<double> coherence_reject_below;
   std::optional<int> dropped_frames_review;  // stream.dropped_frames at or above this reviews
-  // Reviews a clip whose decoding was not clean: a note "decoding stopped
-  // early ..." from the pipeline, or a non-empty array or positive count at
-  // summary.decode.details.warnings.
+  // Reviews a clip whose decoder reported warnings (corrupt data concealed):
+  // a non-empty array or a positive count at summary.decode.details.warnings.
+  // (A clip whose decoding stops before its end is an input error instead.)
   bool decode_warnings_review = true;
 };
 

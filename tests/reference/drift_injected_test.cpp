@@ -70,7 +70,7 @@ double peak_drift_except(const Report& r, int id) {
 // start of the injection; the static scene must stay below segment level.
 // Known regression after merging the pipeline changes of 2026-12-01: no drift
 // segment is produced any more (issue 3 note). Re-enable once fixed.
-TEST(DriftInjected, DISABLED_HueRampOnMovingPatchIsColourDrift) {
+TEST(DriftInjected, HueRampOnMovingPatchIsColourDrift) {
   Scene s = base_scene();
   REQUIRE_SCENE(s);
   s.scene.patch_state = [](int frame) { return PatchState{40.0 * ramp(frame, 12, 36), 1, 1}; };
@@ -125,7 +125,7 @@ TEST(DriftInjected, GlobalBrightnessAndColourRampIsNotDrift) {
 // while it moves; the camera does not zoom. Reported as size drift of about
 // -30% and a drift segment above the review level.
 // Known regression after the merge of 2026-12-01 (issue 3 note).
-TEST(DriftInjected, DISABLED_PatchShrinkingBy30PercentIsReported) {
+TEST(DriftInjected, PatchShrinkingBy30PercentIsReported) {
   Scene s = base_scene();
   REQUIRE_SCENE(s);
   s.scene.patch_state = [](int frame) { return PatchState{0, 1.0 - 0.3 * ramp(frame, 12, 36), 1}; };
@@ -174,7 +174,7 @@ TEST(DriftInjected, PatchWalkingOutOfTheFrameEndsAsLeftFrame) {
 // onset in seconds: drift compares a look with the reference, and its
 // timing constants are in seconds.
 // Known regression after the merge of 2026-12-01 (issue 3 note).
-TEST(DriftInjected, DISABLED_ColourDriftIsComparableAcrossFrameRates) {
+TEST(DriftInjected, ColourDriftIsComparableAcrossFrameRates) {
   Scene s = base_scene();
   REQUIRE_SCENE(s);
   std::vector<double> final_de, onset_s;

@@ -50,6 +50,24 @@ TEST(ColorSpace, LabRoundTripOnRandomColours) {
   }
 }
 
+// The table-driven transfer function used in per-point loops stays within
+// 1e-6 of the IEC 61966-2-1 formula, and so within 1e-4 in L*a*b*.
+TEST(ColorSpace, TableTransferFunctionMatchesFormula) {
+  for (int i = 0; i <= 100000; ++i) {
+    const double v = i / 100000.0;
+    ASSERT_NEAR(srgb_to_linear_table(v), srgb_to_linear(v), 1e-6) << v;
+  }
+  std::mt19937 rng(5);
+  std::uniform_real_distribution<double> unit(0.0, 1.0);
+  for (int i = 0; i < 1000; ++i) {
+    const Rgb c{unit(rng), unit(rng), unit(rng)};
+    const Lab exact = srgb_to_lab(c), fast = srgb_to_lab_fast(c);
+    EXPECT_NEAR(fast.l, exact.l, 1e-4);
+    EXPECT_NEAR(fast.a, exact.a, 1e-4);
+    EXPECT_NEAR(fast.b, exact.b, 1e-4);
+  }
+}
+
 TEST(ColorSpace, HueAndChroma) {
   EXPECT_NEAR(lab_hue_deg({50, 0, 10}), 90.0, 1e-12);
   EXPECT_NEAR(lab_hue_deg({50, 0, -10}), 270.0, 1e-12);
