@@ -76,12 +76,28 @@ class FlashMetric final : public Metric {
     return j;
   }
 
+  // Where the flashing that makes frame i a hazard began. The window
+  // (t - 1 s, t] may open on calm frames, so start instead at the first
+  // frame of the window that already counts a flash, moved back by half a
+  // flash period (1 s / 2n for n flashes in the window): a flash is counted
+  // when its second transition completes, and its first came about half a
+  // period earlier. Not before the window opens.
+  size_t flashing_start(const Report& report, size_t i) const {
+    const auto& t = report.frame_times_s;
+    const size_t opens = window_start(report, i);
+    size_t j = opens;
+    while (j < i && frames_[j].flashes() == 0) ++j;
+    const double first_transition_s = t[j] - flash::kWindow_s / (2.0 * std::max(1, frames_[i].flashes()));
+    while (j > opens && t[j - 1] >= first_transition_s - 1e-9) --j;
+    return j;
+  }
+
   void add_hazard_segments(Report& report) const {
     const auto& t = report.frame_times_s;
     std::optional<Segment> open;
     for (size_t i = 0; i < frames_.size() && i < t.size(); ++i) {
       if (!frames_[i].hazard()) continue;
-      const int64_t start = static_cast<int64_t>(window_start(report, i));
+      const int64_t start = static_cast<int64_t>(flashing_start(report, i));
       if (open && start <= open->end_frame + 1) {
         open->end_frame = static_cast<int64_t>(i);
       } else {

@@ -9,6 +9,7 @@
 //   framelint_accuracy_eval [--work DIR] [--width N] [--frames N]
 //       [--levels weak,moderate,strong] [--placements N] [--bases a,b]
 //       [--classes a,b] [--seed N] [--json FILE] [--markdown FILE] [--sweep]
+//       [--reports DIR]   (also write every analysed report to DIR)
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
@@ -64,6 +65,7 @@ EvalOptions parse(int argc, char** argv, std::string& json_path, std::string& md
     else if (a == "--json") json_path = value();
     else if (a == "--markdown") md_path = value();
     else if (a == "--sweep") sweep = true;
+    else if (a == "--reports") o.reports_dir = value();
     else if (a == "--levels") {
       o.levels.clear();
       for (const auto& l : split(value())) {

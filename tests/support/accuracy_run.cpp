@@ -1,6 +1,10 @@
 #include "support/accuracy_run.h"
 
+#include <algorithm>
 #include <chrono>
+#include <filesystem>
+
+#include "framelint/report_io.h"
 
 namespace framelint::accuracy {
 
@@ -10,6 +14,13 @@ Expected<EvalRun> run_evaluation(const EvalOptions& options) {
     if (options.set.log) options.set.log(line);
   };
   EvalRun run;
+  auto keep = [&](const std::string& id, const Report& report) {
+    if (options.reports_dir.empty()) return;
+    std::string name = id;
+    std::replace(name.begin(), name.end(), '/', '_');
+    std::filesystem::create_directories(options.reports_dir);
+    (void)write_json_report(report, options.reports_dir + "/" + name + ".json");
+  };
   auto bases = prepare_base_clips(options.set);
   if (!bases) return bases.error();
   run.bases = std::move(*bases);
@@ -19,7 +30,7 @@ Expected<EvalRun> run_evaluation(const EvalOptions& options) {
   for (const auto& b : run.bases) {
     AnalyzedClean clean{b.source.name, b.source.real};
     auto report = analyze_clip(b.path, settings, options.policy);
-    if (report) clean.report = std::move(*report);
+    if (report) keep("clean_" + b.source.name, *report), clean.report = std::move(*report);
     else clean.error = report.error().message();
     run.clean.push_back(std::move(clean));
   }
@@ -34,7 +45,7 @@ Expected<EvalRun> run_evaluation(const EvalOptions& options) {
     } else {
       c.truth_defect = (*truth)["defects"][0];
       auto report = analyze_clip((*truth)["output"]["path"], settings, options.policy);
-      if (report) c.report = std::move(*report);
+      if (report) keep(p.id, *report), c.report = std::move(*report);
       else c.error = "analyze: " + report.error().message();
     }
     say("[" + std::to_string(i + 1) + "/" + std::to_string(plan.size()) + "] " + p.id + " " + p.spec +

@@ -21,6 +21,9 @@ struct EvalOptions {
   uint64_t seed = 1;
   AnalysisSettings analysis;  // working_long_side is set to set.long_side
   Policy policy = default_policy();
+  // When set, every analysed report is also written there as <id>.json
+  // (slashes in the id become '_'), for looking at a case by hand.
+  std::string reports_dir;
 };
 
 struct EvalRun {

@@ -21,7 +21,11 @@ const std::vector<std::string>& metrics_for(DefectClass cls) {
       {DefectClass::vanish, {"drift"}},
       {DefectClass::freeze, {"freeze"}},
       {DefectClass::drop, {"jerk"}},  // plus summary.stream.dropped_frames
-      {DefectClass::cut, {"cut"}},
+      // A splice to another moment of the same shot (the evaluation's cuts
+      // come from the same clip) keeps the colours and, with a still
+      // camera, the layout: only what moved jumps. That is a local
+      // discontinuity the warping error sees at the splice, not a cut.
+      {DefectClass::cut, {"cut", "warp_error"}},
       {DefectClass::jerk, {"jerk"}},
       {DefectClass::strobe, {"flash"}},
   };
@@ -40,8 +44,11 @@ FrameSpan expected_span(DefectClass cls, const nlohmann::json& truth_defect, int
 
 std::vector<Segment> segments_under(const Report& report, const Policy& policy) {
   std::vector<Segment> out;
+  // Kept as the metric made them: segments of metrics with no series, and
+  // of metrics the policy has no segment rule for (flash builds its hazard
+  // segments itself, analyzer/metrics/flash_metric.cpp).
   for (const auto& s : report.segments)
-    if (!report.find_series(s.metric)) out.push_back(s);
+    if (!report.find_series(s.metric) || !policy.segments.count(s.metric)) out.push_back(s);
   std::vector<Segment> found = segment_report(report, policy);
   out.insert(out.end(), found.begin(), found.end());
   return out;

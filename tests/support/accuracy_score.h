@@ -21,7 +21,8 @@ namespace framelint::accuracy {
 // The metrics whose segments should catch a class (DESIGN.md's metric list):
 // flicker -> flicker, local_flicker -> flicker_local, boiling -> warp_error
 // and warp_error_long, colour/shape drift and vanish -> drift, freeze ->
-// freeze, drop -> the stream's dropped_frames (and jerk), cut -> cut,
+// freeze, drop -> the stream's dropped_frames (and jerk), cut -> cut and
+// warp_error (a splice within one shot),
 // jerk -> jerk, strobe -> flash.
 const std::vector<std::string>& metrics_for(inject::DefectClass cls);
 

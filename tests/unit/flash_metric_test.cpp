@@ -41,8 +41,9 @@ TEST(FlashMetric, FiveHertzBlackWhiteIsOneRejectSegmentWithDetails) {
   EXPECT_EQ(s.peak, 5);
   EXPECT_EQ(s.end_frame, 89);
   // The first hazard frame closes the first window with 4 flashes (8
-  // transitions, the 8th at frame 24); the segment starts with that window.
-  EXPECT_EQ(s.start_frame, 0);
+  // transitions, the 8th at frame 24); the segment starts where the flashing
+  // does: the first transition, black to white at frame 3.
+  EXPECT_EQ(s.start_frame, 3);
   const auto& d = r.summary.details.at("flash");
   EXPECT_EQ(d.at("max_flashes_per_s"), 5);
   EXPECT_EQ(d.at("kind"), "general");
@@ -51,6 +52,26 @@ TEST(FlashMetric, FiveHertzBlackWhiteIsOneRejectSegmentWithDetails) {
               29 / 30.0, 1e-9);
   EXPECT_EQ(d.at("caution"), kFlashCaution);
   EXPECT_NE(std::find(r.notes.begin(), r.notes.end(), kFlashCaution), r.notes.end());
+}
+
+// Flashing that begins after a calm second: the segment starts where the
+// flashing does, not where
+// the one-second window of the first hazard frame opens (about frame 25).
+// Worked example: black, then 5 Hz white/black from frame 30 on (3 frames
+// per state; first transition at frame 30).
+TEST(FlashMetric, SegmentStartsWhereTheFlashingStarts) {
+  auto metric = registered_metric("flash");
+  auto frames = alternation(30, 3, 3, cv::Scalar::all(0), cv::Scalar::all(255));
+  for (int i = 0; i < 30; ++i)
+    frames[i] = planes_of(i, i / 30.0, cv::Mat(120, 160, CV_8UC3, cv::Scalar::all(0)));
+  for (int i = 30; i < static_cast<int>(frames.size()); ++i)
+    frames[i] = planes_of(i, i / 30.0,
+                          cv::Mat(120, 160, CV_8UC3, ((i - 30) / 3) % 2 ? cv::Scalar::all(0)
+                                                                        : cv::Scalar::all(255)));
+  const Report r = run_metric(*metric, frames, kNoFlow);
+  ASSERT_EQ(r.segments.size(), 1u);
+  EXPECT_GE(r.segments[0].start_frame, 28);
+  EXPECT_LE(r.segments[0].start_frame, 32);
 }
 
 TEST(FlashMetric, SteadyPictureHasNoFlashButStillCarriesTheCaution) {
