@@ -9,6 +9,7 @@ namespace framelint {
 // Factories, defined beside each metric.
 std::unique_ptr<Metric> make_warp_error_metric(const AnalysisSettings&);
 std::unique_ptr<Metric> make_warp_error_long_metric(const AnalysisSettings&);
+std::unique_ptr<Metric> make_boiling_metric(const AnalysisSettings&);
 std::unique_ptr<Metric> make_flicker_metric(const AnalysisSettings&);
 std::unique_ptr<Metric> make_freeze_metric(const AnalysisSettings&);
 std::unique_ptr<Metric> make_cut_metric(const AnalysisSettings&);
@@ -28,6 +29,7 @@ static const MetricFactory kMetricTable[] = {
     make_flash_metric,
     make_jerk_metric,
     make_flicker_local_metric,
+    make_boiling_metric,
     make_drift_metric,
 };
 

@@ -126,6 +126,26 @@ std::vector<MetricBlock> metric_blocks() {
                    .baseline_k = 5, .review_peak = 0.08, .reject_peak = 0.15},
        {{"p95", 0.06, 0.12}}},
 
+      // ---- boiling ---------------------------------------------------------
+      // Worst cell's anti-correlation of successive motion-compensated
+      // residuals, minus the median cell's (analyzer/metrics/boiling_metric.cpp):
+      // fresh noise of 8-bit standard deviation s in a region reads
+      // 3 (s/255)^2, e.g. 0.0046 for s = 10. Measured 2026-12-02 at 320 px
+      // on opencv-doc footage: clean box.mp4 / cup.mp4 / Megamind.avi median
+      // 0.00003, max 0.0003-0.0027 (single frames); vtest.avi (walkers)
+      // median 0.0014, max 0.016 in brief spikes at walkers' edges; tree.avi
+      // median 0.0065. Injected boiling (framelint inject, moderate, s = 10,
+      // smooth grain): 0.0016-0.0042 through the defect. Enter at 0.0012
+      // (s ~ 5), review at 0.002 (s ~ 6.5), reject at 0.02 (s ~ 21: the
+      // baseline is capped at the reject level, and hand-held tree.avi at
+      // 2 fps, where the flow is rough, reaches 0.018); a boiling texture
+      // lasts, so 4 frames minimum, and the clip's own baseline (6
+      // MAD-sigmas) keeps busy or grainy clips fair.
+      {"boiling",
+       SegmentRule{.enter = 0.0012, .leave = 0.0008, .min_frames = 4, .merge_gap_frames = 2,
+                   .baseline_k = 6, .review_peak = 0.002, .reject_peak = 0.02},
+       {}},
+
       // ---- freeze ----------------------------------------------------------
       // 1 when the frame repeats the previous one, else 0. Frame-rate
       // conversion repeats isolated frames (24->30 fps pulldown repeats one

@@ -15,7 +15,7 @@ const std::vector<std::string>& metrics_for(DefectClass cls) {
   static const std::map<DefectClass, std::vector<std::string>> table = {
       {DefectClass::flicker, {"flicker"}},
       {DefectClass::local_flicker, {"flicker_local"}},
-      {DefectClass::boiling, {"warp_error", "warp_error_long"}},
+      {DefectClass::boiling, {"boiling"}},
       {DefectClass::colour_drift, {"drift"}},
       {DefectClass::shape_drift, {"drift"}},
       {DefectClass::vanish, {"drift"}},

@@ -19,8 +19,7 @@
 namespace framelint::accuracy {
 
 // The metrics whose segments should catch a class (DESIGN.md's metric list):
-// flicker -> flicker, local_flicker -> flicker_local, boiling -> warp_error
-// and warp_error_long, colour/shape drift and vanish -> drift, freeze ->
+// flicker -> flicker, local_flicker -> flicker_local, boiling -> boiling, colour/shape drift and vanish -> drift, freeze ->
 // freeze, drop -> the stream's dropped_frames (and jerk), cut -> cut and
 // warp_error (a splice within one shot),
 // jerk -> jerk, strobe -> flash.

@@ -1,0 +1,121 @@
+// boiling: texture that is re-drawn every frame in part of the picture
+// ("boiling", the animators' word for lines and textures that crawl although
+// nothing moves). Motion cannot explain it, yet it hardly moves the
+// whole-frame warping error: a patch of fresh noise on a tenth of the frame
+// is lost in the spread of ordinary motion.
+//
+// Its signature is statistical. Let r_t = V_t - W(V_{t-1}) be the residual
+// left after motion compensation (the warping error's per-pixel term,
+// Lai et al. 2018). If a region carries noise n_t drawn afresh each frame
+// with variance s^2 per channel, then r_t = n_t - n_{t-1} and
+// r_{t+1} = n_{t+1} - n_t, so E[r_t . r_{t+1}] = -E[n_t^2] = -s^2:
+// successive residuals are anti-correlated, with a covariance equal to
+// minus the noise variance. Residuals of ordinary content are small, or
+// (where the flow is off at a moving edge) come and go with the edge with
+// no consistent sign. So per region we read
+//   c = - mean over pixels of sum_channels r_t(x) . W(r_{t-1})(x)
+// (RGB in [0,1]; the earlier residual warped onto frame t by the same
+// flow), over cells of about an eighth of the long side where both
+// residuals pass the forward-backward check for at least half the cell.
+// The frame's value is the worst cell's c minus the median cell's: a source
+// with grain everywhere (film grain, sensor noise) raises every cell alike
+// and is not a local defect. Units: 8-bit noise of standard deviation
+// sigma added to all channels gives 3 (sigma/255)^2, e.g. 0.0046 for 10.
+//
+// Pixel-fine noise under sub-pixel motion reads less: warping interpolates,
+// and an interpolated sum of independent pixels has less variance (half at
+// a half-pixel shift). Grain a few pixels across, as generated textures
+// boil, is hardly affected.
+//
+// Frame rate: the statistic compares adjacent frames, so noise re-drawn
+// every frame reads the same at any frame rate.
+#include <algorithm>
+#include <cmath>
+#include <vector>
+
+#include <opencv2/imgproc.hpp>
+
+#include "analyzer/metrics/metric.h"
+#include "analyzer/metrics/shot_boundaries.h"
+
+namespace framelint {
+namespace {
+
+constexpr int kCellsPerLongSide = 8;
+constexpr double kMinValidShare = 0.5;
+
+class BoilingMetric final : public Metric {
+ public:
+  std::vector<std::string> columns() const override { return {"boiling"}; }
+  bool needs_in_order() const override { return true; }
+  void measure_pair(const FramePair&, std::span<double>) const override {}
+
+  void observe_in_order(const FramePair& pair, std::span<double> out) override {
+    cv::Mat cur, warped;
+    pair.cur->bgr.convertTo(cur, CV_32FC3, 1.0 / 255.0);
+    pair.warped_prev_bgr.convertTo(warped, CV_32FC3, 1.0 / 255.0);
+    cv::Mat residual = cur - warped;
+    if (!previous_residual_.empty() && previous_residual_.size() == residual.size())
+      out[0] = worst_cell_excess(residual, pair.valid, pair.flow_backward);
+    previous_residual_ = residual;
+    previous_valid_ = pair.valid.clone();
+  }
+
+  // Across a cut there is no motion to compensate; the frame after it would
+  // still compare with a residual from across it.
+  void finish(Report& report) override {
+    if (MetricSeries* s = report.find_series("boiling"))
+      clear_across_boundaries(s->values, shot_boundaries(report), 2);
+  }
+
+ private:
+  double worst_cell_excess(const cv::Mat& residual, const cv::Mat& valid, const cv::Mat& flow_backward) {
+    // The earlier residual, carried onto this frame along the flow.
+    if (map_.size() != flow_backward.size()) map_.create(flow_backward.size(), CV_32FC2);
+    for (int y = 0; y < map_.rows; ++y) {
+      const cv::Vec2f* f = flow_backward.ptr<cv::Vec2f>(y);
+      cv::Vec2f* m = map_.ptr<cv::Vec2f>(y);
+      for (int x = 0; x < map_.cols; ++x) m[x] = cv::Vec2f(x + f[x][0], y + f[x][1]);
+    }
+    cv::remap(previous_residual_, carried_, map_, cv::noArray(), cv::INTER_LINEAR, cv::BORDER_CONSTANT);
+    cv::remap(previous_valid_, carried_valid_, map_, cv::noArray(), cv::INTER_NEAREST, cv::BORDER_CONSTANT);
+
+    const int cell = std::max(8, std::max(residual.cols, residual.rows) / kCellsPerLongSide);
+    const int cols = (residual.cols + cell - 1) / cell, rows = (residual.rows + cell - 1) / cell;
+    std::vector<double> sum(static_cast<size_t>(cols) * rows, 0.0);
+    std::vector<int> count(sum.size(), 0), area(sum.size(), 0);
+    for (int y = 0; y < residual.rows; ++y) {
+      const cv::Vec3f* now = residual.ptr<cv::Vec3f>(y);
+      const cv::Vec3f* before = carried_.ptr<cv::Vec3f>(y);
+      const uint8_t* ok_now = valid.ptr<uint8_t>(y);
+      const uint8_t* ok_before = carried_valid_.ptr<uint8_t>(y);
+      const size_t row_base = static_cast<size_t>(y / cell) * cols;
+      for (int x = 0; x < residual.cols; ++x) {
+        const size_t c = row_base + static_cast<size_t>(x / cell);
+        ++area[c];
+        if (!ok_now[x] || !ok_before[x]) continue;
+        sum[c] -= now[x].dot(before[x]);
+        ++count[c];
+      }
+    }
+    std::vector<double> cells;
+    for (size_t c = 0; c < sum.size(); ++c)
+      if (count[c] > 0 && count[c] >= kMinValidShare * area[c]) cells.push_back(sum[c] / count[c]);
+    if (cells.size() < 2) return kUndefined;
+    const double worst = *std::max_element(cells.begin(), cells.end());
+    const auto middle = cells.begin() + static_cast<std::ptrdiff_t>(cells.size() / 2);
+    std::nth_element(cells.begin(), middle, cells.end());
+    return std::max(0.0, worst - *middle);
+  }
+
+  cv::Mat previous_residual_, previous_valid_;
+  cv::Mat map_, carried_, carried_valid_;
+};
+
+}  // namespace
+
+std::unique_ptr<Metric> make_boiling_metric(const AnalysisSettings&) {
+  return std::make_unique<BoilingMetric>();
+}
+
+}  // namespace framelint
