@@ -3,13 +3,21 @@
 // change of relative luminance after motion compensation (a moving bright
 // object adds nothing; a pulse of the whole picture does). The
 // motion-compensated luminance track is L_0 = mean Y_0, L_t = L_{t-1} + d_t.
-// flicker_t = |L_t - median(L over a centred 1 s window)|: slow lighting
-// changes (a sunset, an exposure ramp) follow the median and score ~0,
-// pulses shorter than half a second stand out. Units: relative luminance.
+// flicker_t = |L_t - m_t| / max(m_t, 0.02), m_t = median(L over a centred
+// 1 s window): slow lighting changes (a sunset, an exposure ramp) follow the
+// median and score ~0, pulses shorter than half a second stand out. Units:
+// a fraction of the local luminance level, as the IES percent flicker is a
+// fraction of the mean: what a viewer sees is the relative change (Weber's
+// law), so a 5% pulse reads the same in a night scene as at noon. Below a
+// relative luminance of 0.02 (about 2 cd/m2 on a 100 cd/m2 display) the
+// visible step stops shrinking with the level (the de Vries-Rose range;
+// common practice), and dividing by the floor keeps sensor and coding noise
+// in near-black frames from reading as large pulses.
 // At a cut the track starts again from the new shot's own level and the
 // median window stays inside one shot, so a cut is not flicker (`cut`
 // reports it); the cut frame's flicker is undefined.
 // Also writes `luminance`, the frame's plain mean relative luminance.
+#include <algorithm>
 #include <cmath>
 
 #include "analyzer/metrics/flicker_statistics.h"
@@ -22,6 +30,7 @@ namespace framelint {
 namespace {
 
 constexpr double kMedianWindow_s = 1.0;
+constexpr double kDarkLevelFloor = 0.02;
 
 class FlickerMetric final : public Metric {
  public:
@@ -64,7 +73,10 @@ class FlickerMetric final : public Metric {
       while (end < n && !starts_shot(end)) ++end;
       const std::span<const double> shot(track.data() + begin, end - begin);
       const std::vector<double> median = running_median(shot, half);
-      for (size_t t = begin; t < end; ++t) v[t] = std::fabs(track[t] - median[t - begin]);
+      for (size_t t = begin; t < end; ++t) {
+        const double level = median[t - begin];
+        v[t] = std::fabs(track[t] - level) / std::max(level, kDarkLevelFloor);
+      }
       begin = end;
     }
     clear_across_boundaries(v, boundary);

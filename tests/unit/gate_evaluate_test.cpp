@@ -45,19 +45,19 @@ TEST(GateEvaluate, CalmClipPasses) {
 
 TEST(GateEvaluate, SummaryStatisticReasonNamesMetricValueThresholdAndTime) {
   Report r = gate_report(48, 24);
-  add_series(r, "flicker", 0.001, 0.041, 12, 40);  // p95 = 0.041
+  add_series(r, "flicker", 0.001, 0.12, 12, 40);  // p95 = 0.12
   const VerdictResult v = evaluate_policy(r, default_policy());
   EXPECT_EQ(v.status, Verdict::reject);
-  EXPECT_TRUE(has_reason(v, "flicker p95 0.041 >= reject 0.03 (frames 12-40, 0.50-1.67 s)"))
+  EXPECT_TRUE(has_reason(v, "flicker p95 0.12 >= reject 0.1 (frames 12-40, 0.50-1.67 s)"))
       << all_reasons(v);
 }
 
 TEST(GateEvaluate, ReviewLevelNamesTheReviewThreshold) {
   Report r = gate_report(48, 24);
-  add_series(r, "flicker", 0.001, 0.02, 30, 35);  // p95 0.02: above review 0.012, below reject 0.03
+  add_series(r, "flicker", 0.001, 0.045, 30, 35);  // p95 0.045: above review 0.04, below reject 0.1
   const VerdictResult v = evaluate_policy(r, default_policy());
   EXPECT_EQ(v.status, Verdict::review) << all_reasons(v);
-  EXPECT_TRUE(has_reason(v, "flicker p95 0.02 >= review 0.012 (frames 30-35, 1.25-1.46 s)"))
+  EXPECT_TRUE(has_reason(v, "flicker p95 0.045 >= review 0.04 (frames 30-35, 1.25-1.46 s)"))
       << all_reasons(v);
 }
 

@@ -51,7 +51,7 @@ TEST(GatePolicy, DefaultCoversTheInitialMetricsWithPossibleThresholds) {
   // flash has no segment rule: its metric writes the WCAG hazard segments
   // itself, and the hard rule flash_hazard_rejects judges them.
   for (const char* metric : {"warp_error", "warp_error_long", "occluded_pct", "flicker", "freeze",
-                             "cut", "drift", "jerk", "flicker_local"})
+                             "cut", "drift", "jerk", "flicker_local", "boiling"})
     EXPECT_TRUE(p.segments.count(metric)) << metric;
   EXPECT_TRUE(p.flash_hazard_rejects);
   for (const auto& [metric, r] : p.segments) {
@@ -140,8 +140,8 @@ TEST(GatePolicy, ImpossibleThresholdsAreNamed) {
   expect_names_key(
       R"({"metrics": {"flicker": {"thresholds": {"p95": {"review": 0.5, "reject": 0.1}}}}})",
       "metrics.flicker.thresholds.p95.review");
-  // Review above the default reject (0.03) is impossible too.
-  expect_names_key(R"({"metrics": {"flicker": {"thresholds": {"p95": {"review": 0.05}}}}})",
+  // Review above the default reject (0.1) is impossible too.
+  expect_names_key(R"({"metrics": {"flicker": {"thresholds": {"p95": {"review": 0.2}}}}})",
                    "metrics.flicker.thresholds.p95.review");
   expect_names_key(R"({"metrics": {"flicker": {"segment": {"enter": 0.01, "leave": 0.02}}}})",
                    "metrics.flicker.segment.leave");
