@@ -134,7 +134,7 @@ int main(int argc, char** argv) {
   auto other_take = render_clip(lanternfish::HarbourScene(other), (work / "other_take.mkv").string(), VideoCodec::ffv1);
   if (!other_take) return fail(other_take.error());
 
-  auto flicker = inject_into(*clean_lossless, "flicker@48-71:strength=0.15,hz=6",
+  auto flicker = inject_into(*clean_lossless, "flicker@48-71:strength=0.08,hz=6",
                              (out / "lanternfish_flicker.mp4").string());
   if (!flicker) return fail(flicker.error());
   write_truth(*flicker, (out / "lanternfish_flicker.truth.json").string(), "lanternfish_clean.mp4");
