@@ -27,7 +27,8 @@ float uniform_change(std::vector<float>& diffs) {
 }  // namespace
 
 std::vector<float> block_luminance_changes(const cv::Mat& cur, const cv::Mat& warped_prev,
-                                           const cv::Mat& valid, int cols, int rows) {
+                                           const cv::Mat& valid, int cols, int rows,
+                                           float level_floor) {
   std::vector<float> out(static_cast<size_t>(cols) * rows, std::numeric_limits<float>::quiet_NaN());
   std::vector<float> diffs;
   for (int by = 0; by < rows; ++by) {
@@ -35,16 +36,24 @@ std::vector<float> block_luminance_changes(const cv::Mat& cur, const cv::Mat& wa
     for (int bx = 0; bx < cols; ++bx) {
       const int x0 = bx * cur.cols / cols, x1 = (bx + 1) * cur.cols / cols;
       diffs.clear();
+      double level = 0;
       for (int y = y0; y < y1; ++y) {
         const float* c = cur.ptr<float>(y);
         const float* w = warped_prev.ptr<float>(y);
         const uint8_t* v = valid.empty() ? nullptr : valid.ptr<uint8_t>(y);
         for (int x = x0; x < x1; ++x)
-          if (!v || v[x]) diffs.push_back(c[x] - w[x]);
+          if (!v || v[x]) {
+            diffs.push_back(c[x] - w[x]);
+            level += w[x];
+          }
       }
       const size_t area = static_cast<size_t>(y1 - y0) * (x1 - x0);
       if (diffs.empty() || 2 * diffs.size() < area) continue;
-      out[static_cast<size_t>(by) * cols + bx] = uniform_change(diffs);
+      const float change = uniform_change(diffs);
+      out[static_cast<size_t>(by) * cols + bx] =
+          level_floor > 0
+              ? change / std::max(level_floor, static_cast<float>(level / static_cast<double>(diffs.size())))
+              : change;
     }
   }
   return out;

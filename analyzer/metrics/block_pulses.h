@@ -25,10 +25,13 @@
 namespace framelint {
 
 // Block b = row * cols + col. Blocks with fewer than half their pixels valid
-// are NaN (unknown this pair).
+// are NaN (unknown this pair). With level_floor > 0 each change is divided
+// by the block's mean warped previous luminance (at least level_floor), so
+// it is a relative change, as a viewer judges brightness (Weber's law).
 std::vector<float> block_luminance_changes(const cv::Mat& cur_luminance,
                                            const cv::Mat& warped_prev_luminance,
-                                           const cv::Mat& valid, int cols, int rows);
+                                           const cv::Mat& valid, int cols, int rows,
+                                           float level_floor = 0);
 
 // Subtracts the median of the known changes from each (the frame's common
 // change); returns that median (0 when nothing is known).
@@ -38,7 +41,7 @@ struct Pulse {
   int block = 0;
   int64_t start_frame = 0;  // frame where the first swing was confirmed
   int64_t end_frame = 0;    // frame where the swing back was confirmed
-  double amplitude = 0;     // smaller of the two swings, relative luminance
+  double amplitude = 0;     // smaller of the two swings, in the changes' units
 };
 
 // A pulse is recorded when the swing back is confirmed; while that swing

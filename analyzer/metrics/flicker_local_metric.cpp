@@ -2,8 +2,8 @@
 // explain it (analyzer/metrics/block_pulses.h says how pulses are found).
 // Per frame: the amplitude of the strongest block pulse that spans the frame
 // (from the frame where its first swing was confirmed to the frame where the
-// swing back was), in relative luminance, 0 where no block pulses; undefined
-// for frame 0. We chose the amplitude over the share of the frame that
+// swing back was), as a fraction of the block's luminance, 0 where no block
+// pulses; undefined for frame 0. We chose the amplitude over the share of the frame that
 // pulses because it reads the same whatever the grid: the share is in
 // summary.flicker_local.details (max_area_pct), with the blocks involved.
 //
@@ -21,11 +21,16 @@ namespace framelint {
 namespace {
 
 constexpr int kGridCols = 16, kGridRows = 16;
-// A swing of 0.02 in relative luminance is ~10% of a mid grey's (Y = 0.2)
-// luminance, a clearly visible step (Weber fractions of a few percent are
-// visible: common practice). Pulses: out and back within half a second,
+// Block changes are relative to the block's own luminance (Weber's law: a
+// viewer sees the ratio), with the level floored at 0.02 like `flicker`
+// (below it the visible step stops shrinking: de Vries-Rose range, common
+// practice), so a pulsing lamp in a night scene counts like one at noon. A
+// swing of 6% of a region's luminance is a visible step for a region of a
+// block's size (Weber fractions of a few percent are visible for large
+// fields: common practice). Pulses: out and back within half a second,
 // i.e. pulse rates of 1 Hz and faster.
-constexpr double kMinSwing = 0.02;
+constexpr float kDarkLevelFloor = 0.02f;
+constexpr double kMinSwing = 0.06;
 constexpr double kMaxPulse_s = 0.5;
 
 class FlickerLocalMetric final : public Metric {
@@ -37,7 +42,7 @@ class FlickerLocalMetric final : public Metric {
   void observe_in_order(const FramePair& pair, std::span<double>) override {
     std::vector<float> changes =
         block_luminance_changes(pair.cur->luminance, pair.warped_prev_luminance, pair.valid,
-                                kGridCols, kGridRows);
+                                kGridCols, kGridRows, kDarkLevelFloor);
     remove_common_change(changes);
     tracker_.add(pair.cur->index, pair.cur->t_s, changes);
     block_size_ = {pair.cur->luminance.cols / kGridCols, pair.cur->luminance.rows / kGridRows};
@@ -83,7 +88,7 @@ class FlickerLocalMetric final : public Metric {
                         {"pulses", ranked[i].second.pulses},
                         {"max_amplitude", ranked[i].second.max_amplitude}});
     const int most = blocks_pulsing.empty() ? 0 : *std::max_element(blocks_pulsing.begin(), blocks_pulsing.end());
-    return {{"units", "relative luminance (amplitude of the strongest block pulse)"},
+    return {{"units", "fraction of the block's luminance (amplitude of the strongest block pulse)"},
             {"grid", {kGridCols, kGridRows}},
             {"block_px", {block_size_.width, block_size_.height}},
             {"min_swing", kMinSwing},
