@@ -32,12 +32,40 @@ const std::vector<std::string>& metrics_for(DefectClass cls) {
   return table.at(cls);
 }
 
+namespace {
+
+// The level at which a gradual change becomes visible (our choices, after
+// common practice for colour): a CIEDE2000 of 3 is visible at a glance;
+// a 5% change of size; a quarter of a region blended away.
+double visible_level(DefectClass cls) {
+  switch (cls) {
+    case DefectClass::colour_drift: return 3.0;
+    case DefectClass::shape_drift: return 0.05;
+    case DefectClass::vanish: return 0.25;
+    default: return 0;
+  }
+}
+
+}  // namespace
+
 FrameSpan expected_span(DefectClass cls, const nlohmann::json& truth_defect, int64_t frame_count) {
   const int64_t s = truth_defect["frames"][0], e = truth_defect["frames"][1];
   switch (cls) {
     case DefectClass::cut:
     case DefectClass::drop: return {s, s};
     case DefectClass::jerk: return {s, std::min(s + 1, frame_count - 1)};
+    case DefectClass::colour_drift:
+    case DefectClass::shape_drift:
+    case DefectClass::vanish: {
+      // The drift classes ramp linearly: strength x k/n at the k-th of the
+      // n frames (docs/inject.md). Nothing can be seen before the change
+      // is visible, so the span starts at the first frame where it is.
+      const auto strength = truth_defect.find("strength");
+      if (strength == truth_defect.end() || !strength->is_number()) return {s, e};
+      const double n = static_cast<double>(e - s + 1);
+      const double k = std::ceil(visible_level(cls) / strength->get<double>() * n);
+      return {std::min(e, s + std::max<int64_t>(0, static_cast<int64_t>(k) - 1)), e};
+    }
     default: return {s, e};
   }
 }

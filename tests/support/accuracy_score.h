@@ -26,8 +26,10 @@ namespace framelint::accuracy {
 const std::vector<std::string>& metrics_for(inject::DefectClass cls);
 
 // Frames of one clip where a class's detection is expected: the truth range,
-// except cut (its first frame), drop (the frame after the gap) and jerk
-// (the displaced frame and the next).
+// except cut (its first frame), drop (the frame after the gap), jerk (the
+// displaced frame and the next) and the drift classes, whose linear ramps
+// are expected from the frame where the change becomes visible (ΔE00 3,
+// 5% size, a quarter blended away) to the end of the range.
 struct FrameSpan {
   int64_t start = 0, end = 0;
 };
