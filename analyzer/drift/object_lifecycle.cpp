@@ -37,35 +37,61 @@ void DriftTracker::confirm_support(const FramePair& pair, ObjectTrack& object) {
   mark_interior_points(object.points, params_.object_step_px);
 }
 
-// A point shows its own material when its window-mean gray level matches
-// the reference under the object's gain and offset, within a tolerance that
-// allows for a pixel and a half of misregistration on its local gradient.
-// Drift is a gradual departure. A jump within half a second (the object's
-// colour moves by more than 8 CIEDE2000, its size by 20%, its structure by
-// 0.25) is what a tracking break looks like: the points were handed over
-// to another object in a crossing, or slid off behind an occluder. From
-// then on the object is not measured (an abrupt change of the picture is
-// the warp-error metric's to flag).
+// Drift is a gradual departure; a tracking break (points handed over to
+// another object in a crossing, or slid off behind an occluder) is a jump.
+// A reading is a jump when it differs from the last measured reading by
+// more than 8 CIEDE2000 in colour, 20% in size or 0.25 in structure beyond
+// what the object's own recent trend predicts. From then on the object is
+// not measured (an abrupt change of the picture is the warp-error metric's
+// to flag).
+//
+// The comparison is with the last reading, not with one half a second
+// back: a steady departure — a hue that turns by 30 degrees a second,
+// ΔE00 ~15 per second on a saturated surface — moves by well under a
+// ΔE00 per frame however fast it goes over seconds, and its onset (a change
+// of rate) is not a jump. The trend is the slope between the last reading
+// and the reading a window (0.5 s) before it; it carries the expectation
+// across a stretch the object was not measured in, for at most one window.
 bool DriftTracker::breaks_continuity(const ObjectTrack& object, const ObjectSample& now) const {
   if (!object.confirmed) return false;  // the probation settles the point set first
+  const double window = params_.continuity_window_s;
   const ObjectSample* prior = nullptr;
+  const ObjectSample* older = nullptr;
   for (auto it = object.history.rbegin(); it != object.history.rend(); ++it) {
     if (!std::isfinite(it->drift)) continue;
-    prior = &*it;
-    if (now.t_s - it->t_s >= params_.continuity_window_s) break;
+    if (!prior) {
+      prior = &*it;
+      continue;
+    }
+    older = &*it;
+    if (prior->t_s - it->t_s >= window) break;
   }
   if (!prior) return false;
-  // The allowance does not grow across a stretch the object was not
-  // measured in: coming back from a crossing changed is the typical break.
-  // The colour then, rebased on this frame's reference points (the visible
-  // subset may differ), against the colour now.
-  const cv::Vec3f then = now.colour_ref + (prior->colour_now - prior->colour_ref);
+  // A trend needs a full window of history: a slope over a frame or two
+  // would only amplify noise.
+  if (older && prior->t_s - older->t_s < 0.99 * window) older = nullptr;
+  const double ahead_s = std::min(now.t_s - prior->t_s, window);
+  const double span_s = older ? prior->t_s - older->t_s : 0;
+  const double trend = span_s > 1e-6 ? ahead_s / span_s : 0;
+  // Colour as a departure from the reference (now - reference, CIELAB),
+  // rebased on this frame's reference points (the visible subset may
+  // differ); the expected departure continues the trend.
+  const cv::Vec3f departed_then = prior->colour_now - prior->colour_ref;
+  cv::Vec3f expected = departed_then;
+  if (older) expected += static_cast<float>(trend) * (departed_then - (older->colour_now - older->colour_ref));
+  const cv::Vec3f then = now.colour_ref + expected;
   const double colour = color::ciede2000({now.colour_now[0], now.colour_now[1], now.colour_now[2]},
                                          {then[0], then[1], then[2]});
-  const double size = std::abs(std::log1p(now.size_pct / 100.0) - std::log1p(prior->size_pct / 100.0));
-  return colour > params_.max_colour_jump_de00 ||
-         size > params_.max_size_jump_log ||
-         std::abs(now.structure - prior->structure) > params_.max_structure_jump;
+  auto extrapolated = [&](double prior_value, double older_value) {
+    return older ? prior_value + trend * (prior_value - older_value) : prior_value;
+  };
+  const double size_log = std::log1p(now.size_pct / 100.0);
+  const double size = std::abs(size_log - extrapolated(std::log1p(prior->size_pct / 100.0),
+                                                       older ? std::log1p(older->size_pct / 100.0) : 0));
+  const double structure =
+      std::abs(now.structure - extrapolated(prior->structure, older ? older->structure : 0));
+  return colour > params_.max_colour_jump_de00 || size > params_.max_size_jump_log ||
+         structure > params_.max_structure_jump;
 }
 
 // Size change over the last `size_window_s` (against the measured sample

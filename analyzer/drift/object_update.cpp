@@ -182,6 +182,9 @@ GrayFit DriftTracker::fit_object_gray(const ObjectTrack& object) const {
 }
 
 
+// A point shows its own material when its window-mean gray level matches
+// the reference under the object's gain and offset, within a tolerance that
+// allows for a pixel and a half of misregistration on its local gradient.
 bool DriftTracker::point_present(const TrackPoint& p, const GrayFit& fit) const {
   const double residual = cur_features_.gray(p.pos) - (fit.gain * p.ref_gray + fit.offset);
   return std::abs(residual) <= params_.point_gray_tolerance + 1.5 * p.ref_slope;
