@@ -24,7 +24,8 @@ void DriftTracker::confirm_support(const FramePair& pair, ObjectTrack& object) {
            p.own_motion_error < p.camera_motion_error;
   };
   const auto kept = std::count_if(object.points.begin(), object.points.end(), keeps);
-  if (kept < std::max<std::ptrdiff_t>(params_.min_mover_points, object.points.size() * 3 / 10)) return;
+  if (kept < std::max<std::ptrdiff_t>(params_.min_mover_points, object.points.size() * 3 / 10))
+    return;
   std::erase_if(object.points, [&](const TrackPoint& p) { return !keeps(p); });
   cv::Point2f sum(0, 0);
   cv::Rect2f box(object.points.front().ref_pos, cv::Size2f(0, 0));
@@ -78,7 +79,9 @@ bool DriftTracker::breaks_continuity(const ObjectTrack& object, const ObjectSamp
   // differ); the expected departure continues the trend.
   const cv::Vec3f departed_then = prior->colour_now - prior->colour_ref;
   cv::Vec3f expected = departed_then;
-  if (older) expected += static_cast<float>(trend) * (departed_then - (older->colour_now - older->colour_ref));
+  if (older)
+    expected +=
+        static_cast<float>(trend) * (departed_then - (older->colour_now - older->colour_ref));
   const cv::Vec3f then = now.colour_ref + expected;
   const double colour = color::ciede2000({now.colour_now[0], now.colour_now[1], now.colour_now[2]},
                                          {then[0], then[1], then[2]});
@@ -86,8 +89,9 @@ bool DriftTracker::breaks_continuity(const ObjectTrack& object, const ObjectSamp
     return older ? prior_value + trend * (prior_value - older_value) : prior_value;
   };
   const double size_log = std::log1p(now.size_pct / 100.0);
-  const double size = std::abs(size_log - extrapolated(std::log1p(prior->size_pct / 100.0),
-                                                       older ? std::log1p(older->size_pct / 100.0) : 0));
+  const double size =
+      std::abs(size_log - extrapolated(std::log1p(prior->size_pct / 100.0),
+                                       older ? std::log1p(older->size_pct / 100.0) : 0));
   const double structure =
       std::abs(now.structure - extrapolated(prior->structure, older ? older->structure : 0));
   return colour > params_.max_colour_jump_de00 || size > params_.max_size_jump_log ||
@@ -109,7 +113,8 @@ float DriftTracker::size_change_over_window(const ObjectTrack& object,
     if (now.t_s - it->t_s >= params_.size_window_s) break;
   }
   if (!then) return now.size_pct;
-  return static_cast<float>(100.0 * ((1.0 + now.size_pct / 100.0) / (1.0 + then->size_pct / 100.0) - 1.0));
+  return static_cast<float>(100.0 *
+                            ((1.0 + now.size_pct / 100.0) / (1.0 + then->size_pct / 100.0) - 1.0));
 }
 
 void DriftTracker::decide_state(const FramePair& pair, ObjectTrack& object,
@@ -161,7 +166,9 @@ void DriftTracker::decide_state(const FramePair& pair, ObjectTrack& object,
 bool DriftTracker::behind_other_object(const ObjectTrack& object, const cv::Rect2f& box) const {
   if (box.area() <= 0) return false;
   for (const auto& other : objects_) {
-    if (&other == &object || other.ended || other.kind != ObjectKind::moving || other.history.empty()) continue;
+    if (&other == &object || other.ended || other.kind != ObjectKind::moving ||
+        other.history.empty())
+      continue;
     if ((other.history.back().box & box).area() > 0.3f * box.area()) return true;
   }
   return false;

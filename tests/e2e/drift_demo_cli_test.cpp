@@ -46,7 +46,8 @@ bool at_review_or_worse(const nlohmann::json& segment) {
 }  // namespace
 
 TEST(DriftDemoCli, LanternHueTurnIsADriftSegmentFromItsOnset) {
-  if (!std::filesystem::exists(kClips + "lanternfish_drift.mp4")) GTEST_SKIP() << "demo clip missing";
+  if (!std::filesystem::exists(kClips + "lanternfish_drift.mp4"))
+    GTEST_SKIP() << "demo clip missing";
   const auto truth = read_json(kClips + "lanternfish_drift.truth.json");
   ASSERT_FALSE(truth.is_discarded());
   const auto& defect = truth["defects"][0];
@@ -84,7 +85,8 @@ TEST(DriftDemoCli, LanternHueTurnIsADriftSegmentFromItsOnset) {
 }
 
 TEST(DriftDemoCli, CleanLanternTakeHasNoDriftWorthAReview) {
-  if (!std::filesystem::exists(kClips + "lanternfish_clean.mp4")) GTEST_SKIP() << "demo clip missing";
+  if (!std::filesystem::exists(kClips + "lanternfish_clean.mp4"))
+    GTEST_SKIP() << "demo clip missing";
   TempDir dir;
   const auto report = analyze_demo(dir, "lanternfish_clean");
   ASSERT_FALSE(report.is_discarded());
