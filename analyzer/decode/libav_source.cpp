@@ -191,6 +191,15 @@ Expected<bool> LibavSource::finish() {
                                         std::to_string(frames_) + " (" + reason + ")");
   } else if (frames_ == 0) {
     end_error_ = input_error(path_, "no frame could be decoded");
+  } else if (const int64_t listed = format_->streams[video_index_]->nb_frames;
+             listed > 1 && frames_ * 2 < listed) {
+    // A damaged index (e.g. bits flipped in an MP4's moov) can end the
+    // demuxer early without any error: judging the few frames that came out
+    // would pass a broken clip. Half leaves room for edit lists that hide
+    // a few listed frames.
+    end_error_ = input_error(path_, "only " + std::to_string(frames_) + " of the " +
+                                        std::to_string(listed) +
+                                        " frames the container lists could be decoded");
   }
   return end_error_ ? Expected<bool>(*end_error_) : Expected<bool>(false);
 }
