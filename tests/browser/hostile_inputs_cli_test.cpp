@@ -37,7 +37,9 @@ const char* const kPython = "/usr/bin/python3";
 const std::string kScript = "<script>alert(1)";
 const std::string kImg = "\"><img src=x onerror=alert(1)>";
 const std::string kJsUrl = "javascript:alert(1)";
-const std::string kRtl = "\xe2\x80\xae" "4pm.exe";  // U+202E RIGHT-TO-LEFT OVERRIDE
+const std::string kRtl =
+    "\xe2\x80\xae"
+    "4pm.exe";  // U+202E RIGHT-TO-LEFT OVERRIDE
 const std::string kQuote = "'; alert(1); '";
 const std::string kLong = std::string(200, 'W') + "<b>end";
 const std::string kLongTail = "<b>end";
@@ -48,8 +50,9 @@ std::vector<std::string> hostile_stems() {
 }
 
 json check_page(const fs::path& page, const fs::path& literals) {
-  const auto r = run_command({kPython, std::string(FRAMELINT_SOURCE_DIR) + "/tests/browser/page_check.py",
-                              kChromium, page.string(), page.string() + ".png", literals.string()});
+  const auto r =
+      run_command({kPython, std::string(FRAMELINT_SOURCE_DIR) + "/tests/browser/page_check.py",
+                   kChromium, page.string(), page.string() + ".png", literals.string()});
   EXPECT_EQ(r.exit_code, 0) << page << ": " << r.err;
   if (r.exit_code != 0) return json();
   return json::parse(r.out);
@@ -130,8 +133,8 @@ TEST_F(HostileInputs, EveryPageShowsHostileNamesAsTextAndWritesOnlyInsideItsFold
   for (const std::string side : {"A", "B"}) {
     std::string manifest;
     for (size_t i = 0; i < hostile_stems().size(); ++i) {
-      json line = {{"path", "../../in/clips" + side + "/../clips" + side + "/" + hostile_stems()[i] +
-                                ".mp4"},
+      json line = {{"path", "../../in/clips" + side + "/../clips" + side + "/" +
+                                hostile_stems()[i] + ".mp4"},
                    {"id", "../../../escape_" + side + std::to_string(i)},
                    {"prompt_id", kPromptId + std::to_string(i)},
                    {"model", kModel + side},
@@ -153,8 +156,8 @@ TEST_F(HostileInputs, EveryPageShowsHostileNamesAsTextAndWritesOnlyInsideItsFold
     if (e.is_regular_file()) before.insert(e.path().string());
 
   const fs::path analyzed = dir.path() / "out" / "analyze";
-  std::vector<std::string> analyze = {FRAMELINT_BINARY, "analyze", "--out", analyzed.string(),
-                                      "--threads", "2", "--quiet"};
+  std::vector<std::string> analyze = {FRAMELINT_BINARY, "analyze", "--out",  analyzed.string(),
+                                      "--threads",      "2",       "--quiet"};
   analyze.insert(analyze.end(), clip_paths.begin(), clip_paths.end());
   const auto a = run_command(analyze);
   ASSERT_TRUE(a.exit_code == 0 || a.exit_code == 1) << a.err;
@@ -193,8 +196,8 @@ TEST_F(HostileInputs, EveryPageShowsHostileNamesAsTextAndWritesOnlyInsideItsFold
           ++gate_clip_pages == 1)
         pages[e.path()] = {};
   EXPECT_EQ(gate_clip_pages, 2 * hostile_stems().size() + 1);
-  pages[outs[1] / "index.html"] = {kScript, kImg, kJsUrl, kRtl, kQuote, kLongTail,
-                                   kPromptId + "0", kModel + "A"};
+  pages[outs[1] / "index.html"] = {kScript, kImg,      kJsUrl,          kRtl,
+                                   kQuote,  kLongTail, kPromptId + "0", kModel + "A"};
   pages[outs[2] / "index.html"] = {kPromptId + "6", kModel + "B", kUnpaired};
   pages[compared / "compare.html"] = {kUnpaired, kFolder + "A", kFolder + "B"};
   ASSERT_TRUE(fs::exists(compared / "compare.html"));

@@ -89,9 +89,9 @@ TEST_F(BadInputCorpus, AnalyzeEndsInReportOrClearErrorForEveryCase) {
   std::string table;
   for (const auto& c : corpus_->cases) {
     const fs::path out = dir_->path() / "analyze" / c.name;
-    const auto run = run_bounded({FRAMELINT_BINARY, "analyze", c.path, "--out", out.string(),
-                                  "--threads", "1", "--quiet"},
-                                 dir_->path() / "logs" / c.name, kLimitPerClipS);
+    const auto run = run_bounded(
+        {FRAMELINT_BINARY, "analyze", c.path, "--out", out.string(), "--threads", "1", "--quiet"},
+        dir_->path() / "logs" / c.name, kLimitPerClipS);
     std::string outcome = run.outcome(), problem;
     if (run.timed_out || run.signal != 0) {
       problem = "must end by itself without a signal; stderr: " + run.err;
@@ -123,8 +123,16 @@ TEST_F(BadInputCorpus, AnalyzeEndsInReportOrClearErrorForEveryCase) {
 
 TEST_F(BadInputCorpus, GateOverTheWholeFolderGivesEveryClipARow) {
   const fs::path out = dir_->path() / "gate";
-  std::vector<std::string> argv = {FRAMELINT_BINARY, "gate", corpus_->folder.string(), "--out",
-                                   out.string(), "--jobs", "2", "--threads", "1", "--quiet"};
+  std::vector<std::string> argv = {FRAMELINT_BINARY,
+                                   "gate",
+                                   corpus_->folder.string(),
+                                   "--out",
+                                   out.string(),
+                                   "--jobs",
+                                   "2",
+                                   "--threads",
+                                   "1",
+                                   "--quiet"};
   // Inputs a folder scan does not pick up (not video by name) are given
   // by name, as a user would.
   for (const auto& c : corpus_->cases)

@@ -39,7 +39,7 @@ constexpr double kPromptExitS = 12;
 
 std::vector<std::string> gate_command(const fs::path& clips, const fs::path& out) {
   return {FRAMELINT_BINARY, "gate", clips.string(), "--out", out.string(), "--jobs", "2",
-          "--threads", "1", "--width", "160"};
+          "--threads",      "1",    "--width",      "160"};
 }
 
 // clip id -> verdict, for every queue line; fails on a broken line or a
@@ -86,7 +86,8 @@ size_t store_rows(const fs::path& db) {
   auto rows = (*store)->all();
   if (!rows) return 0;
   std::set<std::string> clips;
-  for (const auto& r : *rows) EXPECT_TRUE(clips.insert(r.clip_path).second) << r.clip_path << " twice";
+  for (const auto& r : *rows)
+    EXPECT_TRUE(clips.insert(r.clip_path).second) << r.clip_path << " twice";
   return rows->size();
 }
 
@@ -201,8 +202,8 @@ TEST_F(GateSignals, SigintAndSigtermStopPromptlyWithTheirStatusThenRerunFinishes
     const std::string name = sig == SIGINT ? "SIGINT" : "SIGTERM";
     const fs::path out = dir_.path() / name;
     const double at_s = fraction(rng) * whole_s_;
-    const auto r = interrupt(gate_command(dir_.path() / "clips", out), dir_.path() / name, sig,
-                             at_s);
+    const auto r =
+        interrupt(gate_command(dir_.path() / "clips", out), dir_.path() / name, sig, at_s);
     ASSERT_TRUE(r.signalled) << name << ": the batch ended before " << at_s << " s";
     EXPECT_FALSE(r.run.timed_out) << name << ": no exit within 60 s";
     EXPECT_EQ(r.run.signal, 0) << name << " must be handled, not fatal";
@@ -215,9 +216,9 @@ TEST_F(GateSignals, SigintAndSigtermStopPromptlyWithTheirStatusThenRerunFinishes
     // A handled stop that abandoned nothing leaves no temporaries.
     const int temporaries = check_files_whole(out);
     if (r.run.err.find("(0 abandoned") != std::string::npos) EXPECT_EQ(temporaries, 0) << name;
-    std::cout << name << " at " << at_s << " s of " << whole_s_ << ": exit "
-              << r.run.exit_code << " after " << r.exit_after_signal_s << " s, "
-              << partial.size() << " clips in the queue\n";
+    std::cout << name << " at " << at_s << " s of " << whole_s_ << ": exit " << r.run.exit_code
+              << " after " << r.exit_after_signal_s << " s, " << partial.size()
+              << " clips in the queue\n";
     finish_and_check(out, "after " + name);
   }
 }

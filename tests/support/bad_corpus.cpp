@@ -21,8 +21,9 @@ size_t frames_in(const json& r) { return r["frames"].size(); }
 
 std::function<std::string(const json&)> frames_exactly(size_t n) {
   return [n](const json& r) {
-    return frames_in(r) == n ? "" : "expected " + std::to_string(n) + " frames, report has " +
-                                        std::to_string(frames_in(r));
+    return frames_in(r) == n ? ""
+                             : "expected " + std::to_string(n) + " frames, report has " +
+                                   std::to_string(frames_in(r));
   };
 }
 
@@ -69,7 +70,10 @@ std::string spans_the_gap(const json& r) {
 
 class Maker {
  public:
-  explicit Maker(const fs::path& folder) { corpus_.folder = folder; fs::create_directories(folder); }
+  explicit Maker(const fs::path& folder) {
+    corpus_.folder = folder;
+    fs::create_directories(folder);
+  }
 
   std::string path(const std::string& file) const { return (corpus_.folder / file).string(); }
 
@@ -156,7 +160,8 @@ void add_frame_folders(Maker& m) {
             {"-frames:v", "1"});
   write_bytes(m.path("huge_png/frame_2.png"),
               png_with_size(read_bytes(m.path("huge_png/frame_2.png")), 0x7fffffff, 0x7fffffff));
-  auto& c = m.add("frame folder, IHDR patched to 2^31-1 square", "huge_png", Expect::report_or_error);
+  auto& c =
+      m.add("frame folder, IHDR patched to 2^31-1 square", "huge_png", Expect::report_or_error);
   c.note = "PNG width/height fields patched";
 }
 
@@ -176,8 +181,8 @@ void add_unreadable(Maker& m) {
 
 BadCorpus make_bad_corpus(const fs::path& folder) {
   Maker m(folder);
-  const std::vector<std::string> h264 = {"-c:v", "libx264", "-pix_fmt", "yuv420p",
-                                         "-movflags", "+faststart"};
+  const std::vector<std::string> h264 = {"-c:v",    "libx264",   "-pix_fmt",
+                                         "yuv420p", "-movflags", "+faststart"};
   if (!m.lavfi("base.mp4", kSource, h264) || !m.lavfi("base.mkv", kSource, {"-c:v", "ffv1"}))
     return m.take();
   m.add("intact mp4 (control)", "base.mp4", Expect::report, frames_exactly(kFrames));
@@ -197,7 +202,8 @@ BadCorpus make_bad_corpus(const fs::path& folder) {
   if (m.lavfi("base.y4m", kSource, {"-pix_fmt", "yuv420p"})) {
     m.add("intact y4m (control)", "base.y4m", Expect::report, frames_exactly(kFrames));
     for (const auto& [name, size] : std::vector<std::pair<std::string, std::string>>{
-             {"huge_dims.y4m", "W100000 H100000"}, {"zero_dims.y4m", "W0 H0"},
+             {"huge_dims.y4m", "W100000 H100000"},
+             {"zero_dims.y4m", "W0 H0"},
              {"overflow_dims.y4m", "W2147483647 H2147483647"}}) {
       std::string bytes = read_bytes(m.path("base.y4m"));
       replace_first(bytes, "W160 H120", size);
@@ -231,17 +237,17 @@ BadCorpus make_bad_corpus(const fs::path& folder) {
   m.add("alpha (ffv1 yuva420p)", "alpha.mkv", Expect::report, frames_exactly(kFrames));
   m.lavfi("alpha_qtrle.mov", kSource, {"-c:v", "qtrle", "-pix_fmt", "argb"});
   m.add("alpha (qtrle argb)", "alpha_qtrle.mov", Expect::report, frames_exactly(kFrames));
-  m.lavfi("vfr_gap.mkv", kSource,
-          {"-vf", "setpts='if(gte(N,12),PTS+10/TB,PTS)'", "-fps_mode", "passthrough", "-c:v",
-           "ffv1"});
+  m.lavfi(
+      "vfr_gap.mkv", kSource,
+      {"-vf", "setpts='if(gte(N,12),PTS+10/TB,PTS)'", "-fps_mode", "passthrough", "-c:v", "ffv1"});
   m.add("VFR with a 10 s gap", "vfr_gap.mkv", Expect::report, spans_the_gap);
   m.lavfi("repeated_ts.mkv", kSource,
           {"-vf", "setpts='floor(N/2)/12/TB'", "-fps_mode", "passthrough", "-c:v", "ffv1"});
   m.add("repeated timestamps", "repeated_ts.mkv", Expect::report_or_error);
   {
-    const auto r = run_command({"ffmpeg", "-v", "error", "-y", "-itsoffset", "-1", "-i",
-                                m.path("base.mkv"), "-c", "copy", "-avoid_negative_ts", "disabled",
-                                m.path("negative_ts.mkv")});
+    const auto r =
+        run_command({"ffmpeg", "-v", "error", "-y", "-itsoffset", "-1", "-i", m.path("base.mkv"),
+                     "-c", "copy", "-avoid_negative_ts", "disabled", m.path("negative_ts.mkv")});
     if (r.exit_code != 0) m.corpus_.problems += "negative_ts.mkv: " + r.err + "\n";
     m.add("negative timestamps (from -1 s)", "negative_ts.mkv", Expect::report,
           frames_exactly(kFrames));
@@ -250,8 +256,8 @@ BadCorpus make_bad_corpus(const fs::path& folder) {
   m.add("audio only", "audio_only.mp4", Expect::error);
   write_bytes(m.path("subs.srt"), "1\n00:00:00,000 --> 00:00:01,000\nharbour lights\n");
   {
-    const auto r = run_command({"ffmpeg", "-v", "error", "-y", "-i", m.path("subs.srt"),
-                                m.path("subtitle_only.mkv")});
+    const auto r = run_command(
+        {"ffmpeg", "-v", "error", "-y", "-i", m.path("subs.srt"), m.path("subtitle_only.mkv")});
     if (r.exit_code != 0) m.corpus_.problems += "subtitle_only.mkv: " + r.err + "\n";
     fs::remove(m.path("subs.srt"));
     m.add("subtitle only", "subtitle_only.mkv", Expect::error);

@@ -13,9 +13,9 @@
 namespace framelint::test {
 
 enum class Expect {
-  report,            // a well-formed clip: a report is required
-  report_or_error,   // damaged: either a report that is right, or a clear error
-  error,             // holds no usable video: an error is required
+  report,           // a well-formed clip: a report is required
+  report_or_error,  // damaged: either a report that is right, or a clear error
+  error,            // holds no usable video: an error is required
 };
 
 struct BadCase {

@@ -28,7 +28,7 @@ struct StopScript {
   std::atomic<bool> stop{false};
   std::atomic<int> calls{0};
   std::atomic<int> returned{0};
-  int stop_on_call = 0;     // sets `stop` during this call (1-based)
+  int stop_on_call = 0;        // sets `stop` during this call (1-based)
   double sleep_on_stop_s = 0;  // then keeps that clip in flight this long
 };
 
