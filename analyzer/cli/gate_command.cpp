@@ -1,5 +1,9 @@
 // framelint gate INPUT... --out DIR : the review queue. Only parses
 // arguments; the batch is run by the library (include/framelint/gate.h).
+#include <signal.h>
+#include <unistd.h>
+
+#include <atomic>
 #include <cstdio>
 #include <cstdlib>
 
@@ -35,7 +39,31 @@ const char* kDescription =
     "content and settings are taken from the results store; a killed run resumes when the\n"
     "same command is run again.\n"
     "Exit status: 0 no clip failed the gate, 1 a clip reached --fail-on, 2 bad usage, policy\n"
-    "or manifest, 3 a clip could not be read (outranks 1).";
+    "or manifest, 3 a clip could not be read (outranks 1).\n"
+    "Interrupting (SIGINT, SIGTERM): no new clip starts, clips in flight get 5 s to finish,\n"
+    "the queue of finished clips is written, and the exit status is 130 (SIGINT) or 143\n"
+    "(SIGTERM); a second signal exits at once. Rerun the same command to finish the batch.";
+
+// SIGINT/SIGTERM: the first asks the batch to stop (the library watches the
+// flag); a second one exits at once, which is as safe as kill -9 (reports
+// are renamed into place whole, store rows are single transactions).
+std::atomic<bool> g_stop{false};
+std::atomic<int> g_stop_signal{0};
+static_assert(std::atomic<bool>::is_always_lock_free, "the flag is set in a signal handler");
+
+extern "C" void on_stop_signal(int sig) {
+  if (g_stop.exchange(true)) _exit(128 + sig);
+  g_stop_signal.store(sig);  // read only after run_gate returns
+}
+
+void install_stop_handlers() {
+  struct sigaction sa {};
+  sa.sa_handler = on_stop_signal;
+  sigemptyset(&sa.sa_mask);
+  sa.sa_flags = SA_RESTART;  // reads and writes in the workers carry on
+  sigaction(SIGINT, &sa, nullptr);
+  sigaction(SIGTERM, &sa, nullptr);
+}
 
 // Names are given over the whole input list before sharding, so shard
 // outputs never collide and merge can copy them as they are.
@@ -99,9 +127,23 @@ int run_gate(const std::vector<std::string>& args) {
     if (r.error) progress.print_above(r.error->message());
     progress.update(counts);
   };
+  gate.stop = &g_stop;
+  install_stop_handlers();
   auto run = framelint::run_gate(inputs, gate, observer);
   progress.finish();
   if (!run) return print_error(run.error().message()), kExitUsage;
+  if (run->stopped) {
+    const int sig = g_stop_signal.load();
+    print_error("gate: stopped by " + std::string(sig == SIGINT ? "SIGINT" : "SIGTERM") +
+                " after " + std::to_string(run->counts.total) + " of " +
+                std::to_string(inputs.size()) + " clips (" + std::to_string(run->abandoned) +
+                " abandoned in flight); " + gate.out_dir +
+                "/queue.jsonl holds the finished ones; run the same command again to finish");
+    std::fflush(stdout);
+    std::fflush(stderr);
+    // Abandoned workers still run: leave without running destructors under them.
+    std::_Exit(128 + sig);
+  }
   for (const auto& w : run->warnings) print_error(w);
   if (!quiet) {
     std::string line = "gate: " + std::to_string(run->counts.total) + " clips";

@@ -3,13 +3,34 @@
 #include <filesystem>
 
 namespace framelint::cli {
+namespace {
+
+// UTF-8 of the Unicode bidirectional controls at `i`: U+200E/U+200F marks,
+// U+202A..U+202E embeddings and overrides, U+2066..U+2069 isolates (Unicode
+// UAX #9). An override in a file name makes "x\u202Egnp.exe" show as
+// "xexe.png".
+bool is_bidi_control(const std::string& s, size_t i) {
+  if (i + 2 >= s.size() || static_cast<unsigned char>(s[i]) != 0xE2) return false;
+  const auto b1 = static_cast<unsigned char>(s[i + 1]), b2 = static_cast<unsigned char>(s[i + 2]);
+  if (b1 == 0x80) return b2 == 0x8E || b2 == 0x8F || (b2 >= 0xAA && b2 <= 0xAE);
+  if (b1 == 0x81) return b2 >= 0xA6 && b2 <= 0xA9;
+  return false;
+}
+
+}  // namespace
 
 std::string safe_stem(const std::string& clip_path) {
   std::filesystem::path p(clip_path);
   std::string stem = p.has_stem() ? p.stem().string() : p.filename().string();
   if (stem.empty() || stem == "." || stem == "..") stem = p.parent_path().filename().string();
   std::string out;
-  for (unsigned char c : stem) {
+  for (size_t i = 0; i < stem.size(); ++i) {
+    const unsigned char c = static_cast<unsigned char>(stem[i]);
+    if (is_bidi_control(stem, i)) {  // a name that reads backwards in a file list
+      out.push_back('_');
+      i += 2;
+      continue;
+    }
     const bool keep = (c >= 'a' && c <= 'z') || (c >= 'A' && c <= 'Z') || (c >= '0' && c <= '9') ||
                       c == '-' || c == '_' || c == '.' || c >= 0x80;  // keep UTF-8 bytes
     out.push_back(keep ? static_cast<char>(c) : '_');

@@ -93,6 +93,15 @@ class LibavSource final : public ClipSource {
 
  private:
   Expected<bool> finish();
+  // The sample count of an MP4/MOV index (stsz), else 0. Other containers'
+  // counts are not a promise of decodable frames: an AVI index lists
+  // zero-size "drop" chunks (opencv-doc tree.avi lists 444, decodes 68).
+  int64_t listed_sample_count() const {
+    const char* name = format_->iformat ? format_->iformat->name : "";
+    return std::string(name).find("mp4") != std::string::npos
+               ? format_->streams[video_index_]->nb_frames
+               : 0;
+  }
   Status feed_decoder();
   Status note_failure(int code);
 
@@ -191,6 +200,15 @@ Expected<bool> LibavSource::finish() {
                                         std::to_string(frames_) + " (" + reason + ")");
   } else if (frames_ == 0) {
     end_error_ = input_error(path_, "no frame could be decoded");
+  } else if (const int64_t listed = listed_sample_count();
+             listed > 1 && frames_ * 2 < listed) {
+    // A damaged index (e.g. bits flipped in an MP4's moov) can end the
+    // demuxer early without any error: judging the few frames that came out
+    // would pass a broken clip. Half leaves room for edit lists that hide
+    // a few listed frames.
+    end_error_ = input_error(path_, "only " + std::to_string(frames_) + " of the " +
+                                        std::to_string(listed) +
+                                        " frames the container lists could be decoded");
   }
   return end_error_ ? Expected<bool>(*end_error_) : Expected<bool>(false);
 }

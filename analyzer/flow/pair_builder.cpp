@@ -28,6 +28,27 @@ int dis_preset(Preset preset) {
 }
 }  // namespace
 
+// OpenCV's DIS asserts on small pictures ("width or height >= 12"), and a
+// working picture can be that small: a 16384x16 clip at a 512 px working
+// width is 512x1, a 1x1 clip stays 1x1. Such pictures are padded by
+// replicating their edges and the flow is cropped back (32 px: twice the
+// largest patch of the presets used, with margin).
+constexpr int kMinFlowSidePx = 32;
+
+static void dis_flow(cv::DISOpticalFlow& dis, const cv::Mat& from, const cv::Mat& to, cv::Mat& flow) {
+  if (from.cols >= kMinFlowSidePx && from.rows >= kMinFlowSidePx) {
+    dis.calc(from, to, flow);
+    return;
+  }
+  const int pad_x = std::max(0, kMinFlowSidePx - from.cols);
+  const int pad_y = std::max(0, kMinFlowSidePx - from.rows);
+  cv::Mat from_padded, to_padded, flow_padded;
+  cv::copyMakeBorder(from, from_padded, 0, pad_y, 0, pad_x, cv::BORDER_REPLICATE);
+  cv::copyMakeBorder(to, to_padded, 0, pad_y, 0, pad_x, cv::BORDER_REPLICATE);
+  dis.calc(from_padded, to_padded, flow_padded);
+  flow_padded(cv::Rect(0, 0, from.cols, from.rows)).copyTo(flow);
+}
+
 struct PairBuilder::Impl {
   cv::Ptr<cv::DISOpticalFlow> dis;
   cv::Mat map;                // x + flow_backward(x)
@@ -44,8 +65,8 @@ void PairBuilder::build(const FramePlanes& prev, const FramePlanes& cur, FramePa
   pair.prev = &prev;
   pair.cur = &cur;
   pair.dt_s = cur.t_s - prev.t_s;
-  impl_->dis->calc(prev.gray, cur.gray, pair.flow_forward);
-  impl_->dis->calc(cur.gray, prev.gray, pair.flow_backward);
+  dis_flow(*impl_->dis, prev.gray, cur.gray, pair.flow_forward);
+  dis_flow(*impl_->dis, cur.gray, prev.gray, pair.flow_backward);
 
   // One sampling map serves the occlusion check and both warps, so each
   // plane of frame t-1 is read once (bilinear, as the warping error expects).

@@ -70,6 +70,7 @@ void scan_folder(const fs::path& dir, std::vector<std::string>& clips) {
     clips.push_back(dir.string());
     return;
   }
+  const size_t before = clips.size();
   for (const auto& e : sorted_entries(dir)) {
     std::error_code ec;
     if (e.is_directory(ec) && !e.is_symlink(ec))
@@ -77,6 +78,9 @@ void scan_folder(const fs::path& dir, std::vector<std::string>& clips) {
     else if (e.is_regular_file(ec) && is_video_file(e.path()))
       clips.push_back(e.path().string());
   }
+  // A folder named like a clip ("take.mp4/") that holds no clips was meant
+  // as one: it gets a queue row (an input error) instead of vanishing.
+  if (clips.size() == before && is_video_file(dir)) clips.push_back(dir.string());
 }
 
 std::string scalar_text(const json& v) {
@@ -137,6 +141,7 @@ Status read_manifest(const std::string& manifest, std::vector<ManifestLine>& out
 
 Expected<CollectedInputs> collect_inputs(const std::vector<std::string>& args) {
   std::vector<ManifestLine> lines;
+  std::vector<std::string> empty_folders;
   for (const auto& arg : args) {
     std::error_code ec;
     const fs::path p(arg);
@@ -146,12 +151,14 @@ Expected<CollectedInputs> collect_inputs(const std::vector<std::string>& args) {
     } else if (fs::is_directory(p, ec)) {
       std::vector<std::string> clips;
       scan_folder(p, clips);
+      if (clips.empty()) empty_folders.push_back(arg + ": folder holds no clips");
       for (auto& c : clips) lines.push_back({GateInput{.path = c, .id = c}, false});
     } else {
       lines.push_back({GateInput{.path = arg, .id = arg}, false});
     }
   }
   CollectedInputs out;
+  out.warnings = std::move(empty_folders);
   std::map<std::string, std::string> seen;  // id -> where it was first given
   for (auto& line : lines) {
     GateInput& in = line.input;

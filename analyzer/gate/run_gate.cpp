@@ -4,9 +4,25 @@
 // queue.jsonl and index.html are refreshed as clips finish, so a run killed
 // at any moment leaves a consistent queue of the clips finished so far, and
 // rerunning the same command takes those from the store.
+//
+// Stopping (GateOptions::stop, set e.g. by the CLI's SIGINT/SIGTERM handler):
+// no clip starts after the flag is seen; the clips in flight get
+// stop_grace_s to finish and are then abandoned. An abandoned clip is in the
+// same state as after kill -9 (its report, if any, was renamed into place
+// whole; its store row is one transaction, committed or not), so the queue
+// is written once more with the finished clips and the caller may exit at
+// once. The worker threads then still run: everything they touch is owned
+// by a shared Batch, never by the caller's stack.
+#include <signal.h>
+#include <unistd.h>
+
 #include <atomic>
+#include <cerrno>
 #include <chrono>
+#include <condition_variable>
+#include <cstdlib>
 #include <filesystem>
+#include <memory>
 #include <mutex>
 #include <thread>
 
@@ -25,20 +41,28 @@ namespace fs = std::filesystem;
 constexpr auto kRefreshInterval = std::chrono::seconds(1);
 
 struct Batch {
-  const std::vector<GateInput>& inputs;
-  const GateOptions& options;
+  // Copies, not references: abandoned workers may outlive run_gate's caller.
+  std::vector<GateInput> inputs;
+  GateOptions options;
   AnalysisSettings settings;  // with the per-clip thread count
-  ResultStore& store;
+  std::shared_ptr<ResultStore> store;
   std::string settings_hash;
   AnalyzeFunction analyze;
   ReportWriter write_report;
-  const GateObserver& observer;
+  GateObserver observer;
+  std::atomic<size_t> next{0};
 
   std::mutex mutex;  // guards everything below
+  std::condition_variable worker_done;
+  int workers_running = 0;
+  int in_flight = 0;
+  bool abandoned = false;  // the caller has gone: record nothing more
   std::vector<std::optional<ClipResult>> results;
   GateCounts counts;
   std::chrono::steady_clock::time_point last_refresh{};
   std::vector<std::string> warnings;
+
+  bool stop_requested() const { return options.stop && options.stop->load(); }
 };
 
 void take_verdict(const Report& report, ClipResult& r) {
@@ -89,7 +113,7 @@ void analyse_and_store(Batch& b, const std::string& base, ClipResult& r) {
   row.reasons = report->verdict.reasons;
   row.summary = report_to_json(*report)["summary"];
   row.report_path = fs::absolute(base + ".json").lexically_normal().string();
-  if (auto st = b.store.insert(row); !st) {
+  if (auto st = b.store->insert(row); !st) {
     std::lock_guard lock(b.mutex);
     b.warnings.push_back(st.error().message());
   }
@@ -105,7 +129,7 @@ ClipResult judge(Batch& b, const GateInput& in) {
   }
   r.sha256 = *sha;
   const std::string base = (fs::path(b.options.out_dir) / in.output_name).string();
-  auto hit = b.store.find(r.sha256, b.settings_hash);
+  auto hit = b.store->find(r.sha256, b.settings_hash);
   if (!hit) {
     r.error = hit.error();
     return r;
@@ -124,6 +148,8 @@ std::vector<ClipResult> finished(const Batch& b) {
 
 void record(Batch& b, size_t i, ClipResult r) {
   std::lock_guard lock(b.mutex);
+  --b.in_flight;
+  if (b.abandoned) return;  // the queue was written without it; the store may hold it
   b.counts.add(r);
   b.results[i] = std::move(r);
   if (b.observer.on_clip_done) b.observer.on_clip_done(*b.results[i], b.counts);
@@ -135,18 +161,67 @@ void record(Batch& b, size_t i, ClipResult r) {
   }
 }
 
-void worker(Batch& b, std::atomic<size_t>& next) {
-  for (size_t i = next++; i < b.inputs.size(); i = next++) {
+// Takes the next clip unless the batch is done or stopping.
+std::optional<size_t> take_next(Batch& b) {
+  std::lock_guard lock(b.mutex);
+  if (b.stop_requested() || b.abandoned) return std::nullopt;
+  const size_t i = b.next++;
+  if (i >= b.inputs.size()) return std::nullopt;
+  ++b.in_flight;
+  return i;
+}
+
+void worker(std::shared_ptr<Batch> batch) {
+  Batch& b = *batch;
+  while (auto i = take_next(b)) {
     ClipResult r;
     try {
-      r = judge(b, b.inputs[i]);
+      r = judge(b, b.inputs[*i]);
     } catch (const std::exception& e) {  // a library below threw: record it, keep going
       r = ClipResult{};
-      r.input = b.inputs[i];
-      r.error = Error{ErrorKind::internal, b.inputs[i].path,
+      r.input = b.inputs[*i];
+      r.error = Error{ErrorKind::internal, b.inputs[*i].path,
                       std::string("unexpected failure: ") + e.what()};
     }
-    record(b, i, std::move(r));
+    record(b, *i, std::move(r));
+  }
+  std::lock_guard lock(b.mutex);
+  --b.workers_running;
+  b.worker_done.notify_all();
+}
+
+// Waits for the workers; once a stop is requested, at most stop_grace_s more.
+// True when they all finished, false when the ones still running were
+// abandoned (b.abandoned is then set, under the lock held by `lock`).
+bool wait_for_workers(Batch& b, std::unique_lock<std::mutex>& lock) {
+  using clock = std::chrono::steady_clock;
+  std::optional<clock::time_point> give_up_at;
+  while (b.workers_running > 0) {
+    if (!give_up_at && b.stop_requested())
+      give_up_at = clock::now() + std::chrono::duration_cast<clock::duration>(
+                                      std::chrono::duration<double>(b.options.stop_grace_s));
+    if (give_up_at && clock::now() >= *give_up_at) {
+      b.abandoned = true;
+      return false;
+    }
+    b.worker_done.wait_for(lock, std::chrono::milliseconds(50));
+  }
+  return true;
+}
+
+// Temporary files of atomic writes (".tmp-NAME-PID-N") left by a process
+// that no longer runs, e.g. one killed with SIGKILL mid-write.
+void remove_stale_temporaries(const std::string& out_dir) {
+  std::error_code ec;
+  for (const auto& e : fs::directory_iterator(out_dir, ec)) {
+    const std::string name = e.path().filename().string();
+    if (name.rfind(".tmp-", 0) != 0) continue;
+    const size_t dash = name.rfind('-');
+    const size_t before = dash == std::string::npos ? dash : name.rfind('-', dash - 1);
+    if (before == std::string::npos) continue;
+    const long pid = std::strtol(name.c_str() + before + 1, nullptr, 10);
+    if (pid > 0 && pid != ::getpid() && ::kill(static_cast<pid_t>(pid), 0) != 0 && errno == ESRCH)
+      fs::remove(e.path(), ec);
   }
 }
 
@@ -160,41 +235,48 @@ Expected<GateRun> run_gate(const std::vector<GateInput>& inputs, const GateOptio
   const std::string db_path = options.db_path.empty()
                                   ? (fs::path(options.out_dir) / "framelint.db").string()
                                   : options.db_path;
-  auto store = ResultStore::open(db_path);
-  if (!store) return store.error();
+  auto opened = ResultStore::open(db_path);
+  if (!opened) return opened.error();
+  remove_stale_temporaries(options.out_dir);
 
   const int cores = std::max(1u, std::thread::hardware_concurrency());
   int jobs = options.jobs > 0 ? options.jobs : cores;
   jobs = std::max(1, std::min<int>(jobs, static_cast<int>(inputs.size())));
-  AnalysisSettings settings = options.settings;
-  if (settings.threads <= 0) settings.threads = std::max(1, cores / jobs);
 
-  AnalyzeFunction analyze = options.analyze ? options.analyze : AnalyzeFunction(analyze_clip);
-  ReportWriter write_report =
+  auto batch = std::make_shared<Batch>();
+  Batch& b = *batch;
+  b.inputs = inputs;
+  b.options = options;
+  b.settings = options.settings;
+  if (b.settings.threads <= 0) b.settings.threads = std::max(1, cores / jobs);
+  b.store = std::shared_ptr<ResultStore>(std::move(*opened));
+  b.settings_hash = settings_hash(options.settings, options.policy);
+  b.analyze = options.analyze ? options.analyze : AnalyzeFunction(analyze_clip);
+  b.write_report =
       options.write_report ? options.write_report : [](const Report& r, const std::string& base) {
         return write_json_report(r, base + ".json");
       };
-  Batch batch{inputs,
-              options,
-              settings,
-              **store,
-              settings_hash(options.settings, options.policy),
-              std::move(analyze),
-              std::move(write_report),
-              observer};
-  batch.results.resize(inputs.size());
+  b.observer = observer;
+  b.results.resize(inputs.size());
+  b.workers_running = jobs;
 
-  std::atomic<size_t> next{0};
   std::vector<std::thread> pool;
-  for (int j = 1; j < jobs; ++j) pool.emplace_back(worker, std::ref(batch), std::ref(next));
-  worker(batch, next);
-  for (auto& t : pool) t.join();
+  for (int j = 0; j < jobs; ++j) pool.emplace_back(worker, batch);
+  std::unique_lock lock(b.mutex);
+  const bool all_joined = wait_for_workers(b, lock);
 
   GateRun run;
-  run.results = finished(batch);
-  run.counts = batch.counts;
-  run.warnings = std::move(batch.warnings);
-  if (auto st = write_queue_outputs(options.out_dir, run.results); !st) return st.error();
+  run.results = finished(b);
+  run.counts = b.counts;
+  run.warnings = b.warnings;
+  run.abandoned = all_joined ? 0 : b.in_flight;
+  run.not_started = static_cast<int>(inputs.size()) - run.counts.total - run.abandoned;
+  run.stopped = b.stop_requested() && run.not_started + run.abandoned > 0;
+  // Written under the lock: an abandoned worker can no longer overwrite it.
+  auto written = write_queue_outputs(options.out_dir, run.results);
+  lock.unlock();
+  for (auto& t : pool) all_joined ? t.join() : t.detach();
+  if (!written) return written.error();
   return run;
 }
 

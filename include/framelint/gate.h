@@ -5,6 +5,7 @@
 // stops at a bad clip: its error is recorded in its queue line.
 #pragma once
 
+#include <atomic>
 #include <cstdint>
 #include <functional>
 #include <optional>
@@ -43,7 +44,9 @@ struct CollectedInputs {
 // object per line with "path", optional "id", "prompt_id", "model", "seed"
 // and free fields; relative paths resolve against the manifest's folder); a
 // folder is searched recursively for video files (by extension) and folders
-// of numbered frames, in name order; anything else is a clip (a missing one
+// of numbered frames, in name order (a folder named like a video file that
+// holds no clips is taken as a clip, so it is reported, not dropped; a
+// folder argument with no clips at all gives a warning); anything else is a clip (a missing one
 // is recorded as an unreadable input when the batch runs). A bad manifest
 // line or a repeated manifest id is a usage error naming the file and line.
 Expected<CollectedInputs> collect_inputs(const std::vector<std::string>& args);
@@ -95,9 +98,12 @@ struct GateCounts {
 };
 
 struct GateRun {
-  std::vector<ClipResult> results;  // in input order
+  std::vector<ClipResult> results;  // in input order; only finished clips when stopped
   GateCounts counts;
   std::vector<std::string> warnings;  // e.g. a store row that could not be written
+  bool stopped = false;  // GateOptions::stop was set before the batch finished
+  int abandoned = 0;     // clips in flight when the grace time ran out (not in results)
+  int not_started = 0;   // clips never started because of the stop
 };
 
 using AnalyzeFunction = std::function<Expected<Report>(
@@ -112,6 +118,14 @@ struct GateOptions {
   int jobs = 0;               // clips analysed at once; 0 = number of cores
   AnalyzeFunction analyze;    // empty = analyze_clip
   ReportWriter write_report;  // empty = JSON only (base_path + ".json")
+  // Set from outside (e.g. by a signal handler) to stop the batch: no clip
+  // starts once it is set; the clips in flight get stop_grace_s to finish
+  // and are then abandoned: run_gate writes the queue of the finished clips
+  // and returns while their workers still run (GateRun::abandoned > 0); the
+  // process should then exit without waiting for them (std::_Exit). An
+  // abandoned clip is left as after kill -9: rerunning finishes it.
+  const std::atomic<bool>* stop = nullptr;
+  double stop_grace_s = 5;
 };
 
 struct GateObserver {

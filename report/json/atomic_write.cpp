@@ -15,8 +15,11 @@ Status write_file_atomic(const std::string& path, const std::string& content) {
   namespace fs = std::filesystem;
   const fs::path target(path);
   std::random_device rd;
+  // ".tmp-NAME-PID-N": hidden, never matched by a reader's extension, and the
+  // PID lets the gate remove what a killed process left (run_gate.cpp).
   const fs::path tmp = target.parent_path() /
-                       (".tmp-" + target.filename().string() + "-" + std::to_string(rd()));
+                       (".tmp-" + target.filename().string() + "-" + std::to_string(::getpid()) +
+                        "-" + std::to_string(rd()));
   int fd = ::open(tmp.c_str(), O_WRONLY | O_CREAT | O_EXCL | O_CLOEXEC, 0644);
   if (fd < 0) return output_error(path, std::string("cannot create: ") + std::strerror(errno));
   size_t written = 0;

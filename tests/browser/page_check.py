@@ -1,14 +1,17 @@
 #!/usr/bin/python3
 """Loads a framelint page in headless Chromium and reports what happened.
 
-Usage: page_check.py CHROMIUM PAGE.html SCREENSHOT.png
+Usage: page_check.py CHROMIUM PAGE.html SCREENSHOT.png [LITERALS.json]
 
 Drives Chromium over the DevTools protocol on a pipe (--remote-debugging-pipe:
 JSON messages separated by NUL bytes on fds 3 and 4), so only the Python
 standard library is needed. Prints one JSON object: console errors, uncaught
 exceptions, CSP violations, every request that is not a data: URI or the page
 itself, calls to alert(), and facts read from the DOM, including the effect
-of pressing "n" (next flagged segment). Exits 0 when the page was checked,
+of pressing "n" (next flagged segment). With LITERALS.json (a JSON list of
+strings), also whether each string is shown as text on the page (rendered
+text or the title), and counts of what injected markup would leave: event
+handler attributes, javascript: URLs, scripts that call alert. Exits 0 when the page was checked,
 1 when the browser could not be driven (the message says why).
 """
 import base64
@@ -34,6 +37,33 @@ document.addEventListener('securitypolicyviolation', function (e) {
   window.__violations.push(e.violatedDirective + ' blocked ' + (e.blockedURI || 'inline'));
 });
 window.alert = function (m) { window.__alerts.push(String(m)); };
+window.confirm = function (m) { window.__alerts.push('confirm ' + String(m)); return false; };
+window.prompt = function (m) { window.__alerts.push('prompt ' + String(m)); return null; };
+"""
+
+# Read after load when literals are given: what hostile input would leave.
+HOSTILE_FACTS = """
+(function (literals) {
+  var all = Array.prototype.slice.call(document.querySelectorAll('*'));
+  var handlers = [], jsUrls = [];
+  all.forEach(function (e) {
+    Array.prototype.forEach.call(e.attributes, function (a) {
+      var name = a.name.toLowerCase(), value = a.value.replace(/[\\s\\u0000-\\u001f]/g, '').toLowerCase();
+      if (name.indexOf('on') === 0) handlers.push(e.tagName + ' ' + a.name);
+      if ((name === 'href' || name === 'src' || name === 'action' || name === 'formaction') &&
+          value.indexOf('javascript:') === 0) jsUrls.push(e.tagName + ' ' + a.value);
+    });
+  });
+  var text = document.body ? document.body.innerText : '';
+  var missing = literals.filter(function (l) {
+    return text.indexOf(l) < 0 && document.title.indexOf(l) < 0;
+  });
+  var alerting = Array.prototype.filter.call(document.scripts, function (s) {
+    return s.textContent.indexOf('alert(') >= 0;
+  }).length;
+  return JSON.stringify({handlers: handlers, javascript_urls: jsUrls, missing_literals: missing,
+                         scripts_calling_alert: alerting, iframes: document.querySelectorAll('iframe, object, embed').length});
+})(%s)
 """
 
 # Read after load; returns facts about the DOM.
@@ -162,7 +192,7 @@ def evaluate(browser, session, expression):
     return json.loads(result['result']['value'])
 
 
-def check(chromium, page, screenshot):
+def check(chromium, page, screenshot, literals_file=None):
     profile = tempfile.mkdtemp(prefix='framelint-chromium-')
     browser = Browser(chromium, profile)
     try:
@@ -177,6 +207,10 @@ def check(chromium, page, screenshot):
         browser.call('Page.navigate', {'url': page_url}, session)
         browser.wait_event('Page.loadEventFired', session)
         dom = evaluate(browser, session, DOM_FACTS)
+        hostile = None
+        if literals_file:
+            literals = json.loads(pathlib.Path(literals_file).read_text(encoding='utf-8'))
+            hostile = evaluate(browser, session, HOSTILE_FACTS % json.dumps(literals))
         # Keyboard: "n" focuses the first flagged segment.
         for kind in ('keyDown', 'keyUp'):
             browser.call('Input.dispatchKeyEvent',
@@ -214,15 +248,15 @@ def check(chromium, page, screenshot):
             if not url.startswith('data:') and url != page_url:
                 requests.append(url)
     return {'console_errors': console_errors, 'exceptions': exceptions, 'log_errors': log_errors,
-            'requests': requests, 'dom': dom, 'after_key': after_key}
+            'requests': requests, 'dom': dom, 'after_key': after_key, 'hostile': hostile}
 
 
 def main():
-    if len(sys.argv) != 4:
+    if len(sys.argv) not in (4, 5):
         print(__doc__, file=sys.stderr)
         return 2
     try:
-        print(json.dumps(check(*sys.argv[1:4])))
+        print(json.dumps(check(*sys.argv[1:])))
     except Exception as e:  # one line for the test's failure message
         print('page_check: %s: %s' % (type(e).__name__, e), file=sys.stderr)
         return 1

@@ -36,6 +36,7 @@ TEST(OutputNames, HostileNamesStayInsideTheFolder) {
   EXPECT_EQ(safe_stem("../../etc/passwd"), "passwd");
   EXPECT_EQ(safe_stem("<img src=x onerror=alert(1)>.mp4"), "_img_src_x_onerror_alert_1__");
   EXPECT_EQ(safe_stem(".."), "clip");
+  EXPECT_EQ(safe_stem("x\xe2\x80\xaegnp.exe.mp4"), "x_gnp.exe");  // U+202E right-to-left override
   EXPECT_EQ(safe_stem("frames/"), "frames");
   OutputNamer namer;
   EXPECT_EQ(namer.unique_name("a/x.mp4"), "x");
