@@ -65,6 +65,12 @@ void PairBuilder::build(const FramePlanes& prev, const FramePlanes& cur, FramePa
   pair.prev = &prev;
   pair.cur = &cur;
   pair.dt_s = cur.t_s - prev.t_s;
+  // DIS starts from the flow it is given when that has the right size and
+  // type: pairs are recycled, so their flow buffers may hold another pair's
+  // flow; they are released first and every pair is computed from scratch
+  // (results do not depend on which pair a worker did before).
+  pair.flow_forward.release();
+  pair.flow_backward.release();
   dis_flow(*impl_->dis, prev.gray, cur.gray, pair.flow_forward);
   dis_flow(*impl_->dis, cur.gray, prev.gray, pair.flow_backward);
 

@@ -56,7 +56,7 @@ class Analysis {
       for (size_t m = 0; m < metrics_.size(); ++m) metrics_[m]->measure_first(*frame, table_.slot(row, m));
       table_.append(frame->t_s, std::move(row));
     } else {
-      auto job = std::make_shared<PairJob>();
+      std::shared_ptr<PairJob> job = take_job();
       job->prev = prev_;
       job->cur = frame;
       job->row.assign(table_.width(), kUndefined);
@@ -93,6 +93,16 @@ class Analysis {
   }
 
  private:
+  // Jobs are recycled once committed, so their flow, mask and warp buffers
+  // are reused from pair to pair (window + 1 jobs exist at most).
+  std::shared_ptr<PairJob> take_job() {
+    if (spare_jobs_.empty()) return std::make_shared<PairJob>();
+    std::shared_ptr<PairJob> job = std::move(spare_jobs_.back());
+    spare_jobs_.pop_back();
+    job->done = std::promise<void>();
+    return job;
+  }
+
   void commit_oldest() {
     std::shared_ptr<PairJob> job = std::move(in_flight_.front());
     in_flight_.pop_front();
@@ -105,6 +115,11 @@ class Analysis {
           clocks_.back().metric_ms[m] += ms_since(start);  // the in-order stage's own record
         }
     table_.append(job->cur->t_s, std::move(job->row));
+    // The frames go back to the decoder's pool once no job holds them.
+    job->pair.prev = job->pair.cur = nullptr;
+    job->prev.reset();
+    job->cur.reset();
+    spare_jobs_.push_back(std::move(job));
   }
 
   std::vector<std::unique_ptr<Metric>> metrics_;
@@ -113,6 +128,7 @@ class Analysis {
   std::vector<StageClock> clocks_;  // one per worker, plus the in-order stage
   WorkerPool pool_;  // declared after what its tasks use, so it is joined first
   std::deque<std::shared_ptr<PairJob>> in_flight_;
+  std::vector<std::shared_ptr<PairJob>> spare_jobs_;
   std::shared_ptr<const FramePlanes> prev_;
   size_t window_ = 3;
   bool needs_in_order_ = false;

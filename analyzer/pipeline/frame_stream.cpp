@@ -7,7 +7,7 @@
 namespace framelint {
 
 FrameStream::FrameStream(ClipSource& source, size_t capacity)
-    : source_(source), queue_(capacity), thread_([this] { run(); }) {}
+    : source_(source), queue_(capacity), pool_(PlanesPool::create()), thread_([this] { run(); }) {}
 
 FrameStream::~FrameStream() {
   queue_.close();
@@ -19,14 +19,17 @@ void FrameStream::run() {
   using Clock = std::chrono::steady_clock;
   while (true) {
     const auto start = Clock::now();
+    // The decoder scales straight into a recycled frame's BGR buffer.
+    std::shared_ptr<FramePlanes> planes = pool_->take();
+    std::swap(frame.bgr, planes->bgr);
     auto more = source_.read(frame);
+    std::swap(frame.bgr, planes->bgr);
     if (!more) {
       error_ = more.error();
       break;
     }
     if (!*more) break;
-    auto planes = std::make_shared<FramePlanes>();
-    prepare_planes(frame.index, frame.t_s, frame.bgr, *planes);
+    prepare_planes(frame.index, frame.t_s, planes->bgr, *planes);
     busy_ms_ += std::chrono::duration<double, std::milli>(Clock::now() - start).count();
     if (!queue_.push(std::move(planes))) return;  // consumer stopped
   }

@@ -8,6 +8,7 @@
 
 #include "analyzer/metrics/frame_pair.h"
 #include "analyzer/pipeline/bounded_queue.h"
+#include "analyzer/pipeline/planes_pool.h"
 #include "framelint/clip_source.h"
 
 namespace framelint {
@@ -31,6 +32,7 @@ class FrameStream {
   void run();
   ClipSource& source_;
   BoundedQueue<std::shared_ptr<const FramePlanes>> queue_;
+  std::shared_ptr<PlanesPool> pool_;
   std::optional<Error> error_;
   double busy_ms_ = 0;
   std::thread thread_;
