@@ -51,14 +51,14 @@ class BoilingMetric final : public Metric {
   void measure_pair(const FramePair&, std::span<double>) const override {}
 
   void observe_in_order(const FramePair& pair, std::span<double> out) override {
-    cv::Mat cur, warped;
-    pair.cur->bgr.convertTo(cur, CV_32FC3, 1.0 / 255.0);
-    pair.warped_prev_bgr.convertTo(warped, CV_32FC3, 1.0 / 255.0);
-    cv::Mat residual = cur - warped;
-    if (!previous_residual_.empty() && previous_residual_.size() == residual.size())
-      out[0] = worst_cell_excess(residual, pair.valid, pair.flow_backward);
-    previous_residual_ = residual;
-    previous_valid_ = pair.valid.clone();
+    // The residual goes into the buffer that held the one before last, so
+    // the steady state allocates nothing.
+    std::swap(residual_, previous_residual_);
+    compute_residual(pair.cur->bgr, pair.warped_prev_bgr, residual_);
+    if (has_previous_ && previous_residual_.size() == residual_.size())
+      out[0] = worst_cell_excess(residual_, pair.valid, pair.flow_backward);
+    has_previous_ = true;
+    pair.valid.copyTo(previous_valid_);
   }
 
   // Across a cut there is no motion to compensate; the frame after it would
@@ -82,6 +82,9 @@ class BoilingMetric final : public Metric {
 
     const int cell = std::max(8, std::max(residual.cols, residual.rows) / kCellsPerLongSide);
     const int cols = (residual.cols + cell - 1) / cell, rows = (residual.rows + cell - 1) / cell;
+    // Cell column of each x, looked up rather than divided per pixel.
+    cell_of_x_.resize(static_cast<size_t>(residual.cols));
+    for (int x = 0; x < residual.cols; ++x) cell_of_x_[x] = x / cell;
     std::vector<double> sum(static_cast<size_t>(cols) * rows, 0.0);
     std::vector<int> count(sum.size(), 0), area(sum.size(), 0);
     for (int y = 0; y < residual.rows; ++y) {
@@ -91,7 +94,7 @@ class BoilingMetric final : public Metric {
       const uint8_t* ok_before = carried_valid_.ptr<uint8_t>(y);
       const size_t row_base = static_cast<size_t>(y / cell) * cols;
       for (int x = 0; x < residual.cols; ++x) {
-        const size_t c = row_base + static_cast<size_t>(x / cell);
+        const size_t c = row_base + static_cast<size_t>(cell_of_x_[x]);
         ++area[c];
         if (!ok_now[x] || !ok_before[x]) continue;
         sum[c] -= now[x].dot(before[x]);
@@ -108,8 +111,27 @@ class BoilingMetric final : public Metric {
     return std::max(0.0, worst - *middle);
   }
 
-  cv::Mat previous_residual_, previous_valid_;
+  // r = V_t - W(V_{t-1}) with 8-bit values scaled to [0,1], in one pass:
+  // each term is scaled as convertTo(CV_32F, 1/255) scales it, then
+  // subtracted, so the values are those of the three-pass form.
+  static void compute_residual(const cv::Mat& cur, const cv::Mat& warped, cv::Mat& residual) {
+    residual.create(cur.size(), CV_32FC3);
+    const float scale = static_cast<float>(1.0 / 255.0);
+    for (int y = 0; y < cur.rows; ++y) {
+      const uint8_t* c = cur.ptr<uint8_t>(y);
+      const uint8_t* w = warped.ptr<uint8_t>(y);
+      float* r = residual.ptr<float>(y);
+      for (int i = 0; i < 3 * cur.cols; ++i) {
+        const float a = c[i] * scale, b = w[i] * scale;
+        r[i] = a - b;
+      }
+    }
+  }
+
+  bool has_previous_ = false;
+  cv::Mat residual_, previous_residual_, previous_valid_;
   cv::Mat map_, carried_, carried_valid_;
+  std::vector<int> cell_of_x_;
 };
 
 }  // namespace
