@@ -1,27 +1,39 @@
 // framelint_bench: how fast analysis runs next to decoding alone, on the same
 // clip in the same run, and how much memory it holds.
 //
-//   framelint_bench CLIP... [--preset P] [--width N] [--threads N]
+//   framelint_bench [CLIP...] [--standard] [--uhd] [--long] [--gate]
+//                   [--clips-dir DIR] [--preset P] [--width N] [--threads N]
 //
 // For each clip, three measurements, each in a child process so that its
 // peak resident memory (ru_maxrss from wait4) is its own:
 //   ffmpeg  : `ffmpeg -threads 2 -i CLIP -f null -` (decode only, FFmpeg CLI)
 //   decode  : our decoder with scaling to the working width, nothing else
 //   analyze : the full analysis (every metric in the registry)
-// and the per-stage thread time of the analysis in ms per frame.
+// and the per-stage thread time of the analysis in ms per frame. The ratio
+// is analysis fps / FFmpeg decode-only fps from the same run.
+//
+// Generated clips (testsrc2, H.264, made once with the FFmpeg CLI into
+// --clips-dir, default /tmp/framelint-bench): --standard 1080p24 10 s (also
+// the default when no clip is given), --uhd 2160p24 10 s, --long 1080p24
+// 60 s; --gate times `framelint gate --jobs 1` against `--jobs 2` on 20
+// short clips (360p24 2 s, testsrc2 and mandelbrot), in fresh output folders.
 #include <sys/resource.h>
+#include <sys/stat.h>
 #include <sys/wait.h>
 #include <unistd.h>
 
 #include <chrono>
 #include <cstdio>
 #include <cstdlib>
+#include <filesystem>
+#include <functional>
 #include <string>
 #include <vector>
 
 #include <nlohmann/json.hpp>
 
 #include "analyzer/cli/args.h"
+#include "analyzer/cli/command.h"
 #include "analyzer/cli/settings_args.h"
 #include "framelint/analysis.h"
 #include "framelint/clip_source.h"
@@ -29,6 +41,11 @@
 using namespace framelint;
 using nlohmann::json;
 using Clock = std::chrono::steady_clock;
+namespace fs = std::filesystem;
+
+namespace framelint::cli {
+int run_gate(const std::vector<std::string>& args);
+}
 
 namespace {
 
@@ -57,6 +74,8 @@ json in_child(const std::function<json()>& work) {
   json result = json::parse(text, nullptr, false);
   if (result.is_discarded()) result = {{"error", "child failed"}};
   result["peak_rss_mb"] = usage.ru_maxrss / 1024.0;  // Linux reports KiB
+  result["cpu_s"] = usage.ru_utime.tv_sec + usage.ru_utime.tv_usec * 1e-6 + usage.ru_stime.tv_sec +
+                    usage.ru_stime.tv_usec * 1e-6;
   return result;
 }
 
@@ -106,13 +125,94 @@ json full_analysis(const std::string& clip, const AnalysisSettings& settings, co
   });
 }
 
+// Makes `path` with the FFmpeg CLI unless it exists; false if that failed.
+bool make_clip(const std::string& path, const std::string& source, const std::string& size, int seconds) {
+  if (fs::exists(path)) return true;
+  std::printf("making %s ...\n", path.c_str());
+  std::fflush(stdout);
+  const std::string cmd = "ffmpeg -v error -nostdin -y -f lavfi -i " + source + "=size=" + size +
+                          ":rate=24 -t " + std::to_string(seconds) + " -c:v libx264 -pix_fmt yuv420p '" + path +
+                          ".tmp.mp4' && mv '" + path + ".tmp.mp4' '" + path + "'";
+  return std::system(cmd.c_str()) == 0;
+}
+
+int bench_clip(const std::string& clip, const cli::AnalysisOptions& options) {
+  const json ff = ffmpeg_decode(clip);
+  const json dec = our_decode(clip, options.settings);
+  const json ana = full_analysis(clip, options.settings, options.policy);
+  if (ana.contains("error") || dec.contains("error")) {
+    std::printf("%s: %s\n", clip.c_str(), (ana.contains("error") ? ana : dec)["error"].get<std::string>().c_str());
+    return 3;
+  }
+  const double frames = ana["frames"].get<double>();
+  const double ff_fps = ff.contains("seconds") ? frames / ff["seconds"].get<double>() : 0;
+  const double dec_fps = dec["frames"].get<double>() / dec["seconds"].get<double>();
+  const double ana_fps = frames / ana["seconds"].get<double>();
+  const std::string source =
+      std::to_string(ana["source_width"].get<int>()) + "x" + std::to_string(ana["source_height"].get<int>());
+  std::string name = fs::path(clip).filename().string();
+  if (name.size() > 24) name = "..." + name.substr(name.size() - 21);
+  std::printf("%-24s %-10s %6.0f %9.1f %9.1f %9.1f %6.2f %8.1f %6.0f%%\n", name.c_str(), source.c_str(), frames,
+              ff_fps, dec_fps, ana_fps, ff_fps > 0 ? ana_fps / ff_fps : 0.0, ana["peak_rss_mb"].get<double>(),
+              100.0 * ana["cpu_s"].get<double>() / ana["seconds"].get<double>());
+  std::printf("  thread time per frame (ms):");
+  for (const auto& [stage, ms] : ana["stages_ms"].items()) std::printf(" %s %.2f", stage.c_str(), ms.get<double>() / frames);
+  std::printf("\n  decode-only peak %.1f MB\n", dec["peak_rss_mb"].get<double>());
+  return 0;
+}
+
+// `framelint gate FOLDER --jobs N` in a child, into a fresh output folder
+// (so nothing comes from a results store); returns clips per second.
+double gate_clips_per_s(const std::string& folder, int jobs, int clips, const std::string& work_dir) {
+  const std::string out = work_dir + "/gate-out-jobs" + std::to_string(jobs);
+  fs::remove_all(out);
+  const json r = in_child([&] {
+    const auto start = Clock::now();
+    const int status = cli::run_gate({folder, "--out", out, "--jobs", std::to_string(jobs), "--quiet"});
+    return json{{"seconds", seconds_since(start)}, {"status", status}};
+  });
+  fs::remove_all(out);
+  if (!r.contains("seconds") || r["status"].get<int>() >= 2) return 0;
+  return clips / r["seconds"].get<double>();
+}
+
+int bench_gate(const std::string& clips_dir) {
+  const std::string folder = clips_dir + "/gate20";
+  fs::create_directories(folder);
+  constexpr int kClips = 20;
+  for (int i = 0; i < kClips; ++i) {
+    char name[64];
+    std::snprintf(name, sizeof name, "/short_%02d.mp4", i);
+    // Two sources so the batch is not one clip twenty times.
+    if (!make_clip(folder + name, i % 2 ? "mandelbrot" : "testsrc2", "640x360", 2)) {
+      std::printf("gate: cannot make the short clips with ffmpeg\n");
+      return 3;
+    }
+  }
+  const double one = gate_clips_per_s(folder, 1, kClips, clips_dir);
+  const double two = gate_clips_per_s(folder, 2, kClips, clips_dir);
+  std::printf("gate, %d clips 640x360 24 fps 2 s: --jobs 1 %.2f clips/s, --jobs 2 %.2f clips/s, ratio %.2f\n",
+              kClips, one, two, one > 0 ? two / one : 0.0);
+  return one > 0 && two > 0 ? 0 : 3;
+}
+
+std::vector<cli::OptionSpec> bench_specs() {
+  auto specs = cli::analysis_option_specs();
+  specs.push_back({"standard", false, "1080p24 10 s testsrc2 clip (the default without clips)"});
+  specs.push_back({"uhd", false, "also a 2160p24 10 s clip"});
+  specs.push_back({"long", false, "also a 1080p24 60 s clip"});
+  specs.push_back({"gate", false, "gate --jobs 1 vs --jobs 2 on 20 short clips"});
+  specs.push_back({"clips-dir", true, "where generated clips are kept (default /tmp/framelint-bench)"});
+  return specs;
+}
+
 }  // namespace
 
 int main(int argc, char** argv) {
   std::vector<std::string> args(argv + 1, argv + argc);
-  auto parsed = cli::parse_args(args, cli::analysis_option_specs());
-  if (!parsed || parsed->positionals.empty()) {
-    std::fprintf(stderr, "usage: framelint_bench CLIP... [--preset P] [--width N] [--threads N]\n");
+  auto parsed = cli::parse_args(args, bench_specs());
+  if (!parsed) {
+    std::fprintf(stderr, "framelint_bench: %s\n", parsed.error().message().c_str());
     return 2;
   }
   auto options = cli::analysis_options_from_args(*parsed);
@@ -120,32 +220,35 @@ int main(int argc, char** argv) {
     std::fprintf(stderr, "framelint_bench: %s\n", options.error().message().c_str());
     return 2;
   }
-  std::printf("%-28s %-10s %6s %9s %9s %9s %6s %8s\n", "clip", "source", "frames", "ffmpeg", "decode",
-              "analyze", "ratio", "peak MB");
-  std::printf("%-28s %-10s %6s %9s %9s %9s %6s %8s\n", "", "", "", "fps", "fps", "fps", "", "");
-  int status = 0;
-  for (const auto& clip : parsed->positionals) {
-    const json ff = ffmpeg_decode(clip);
-    const json dec = our_decode(clip, options->settings);
-    const json ana = full_analysis(clip, options->settings, options->policy);
-    if (ana.contains("error") || dec.contains("error")) {
-      std::printf("%s: %s\n", clip.c_str(), (ana.contains("error") ? ana : dec)["error"].get<std::string>().c_str());
-      status = 3;
-      continue;
+  const std::string clips_dir = parsed->get("clips-dir").value_or("/tmp/framelint-bench");
+  fs::create_directories(clips_dir);
+  std::vector<std::string> clips = parsed->positionals;
+  const bool standard = parsed->has("standard") ||
+                        (clips.empty() && !parsed->has("uhd") && !parsed->has("long") && !parsed->has("gate"));
+  struct Generated {
+    bool wanted;
+    const char* file;
+    const char* size;
+    int seconds;
+  };
+  for (const Generated& g : {Generated{standard, "/1080p24_10s.mp4", "1920x1080", 10},
+                             Generated{parsed->has("long"), "/1080p24_60s.mp4", "1920x1080", 60},
+                             Generated{parsed->has("uhd"), "/2160p24_10s.mp4", "3840x2160", 10}}) {
+    if (!g.wanted) continue;
+    if (!make_clip(clips_dir + g.file, "testsrc2", g.size, g.seconds)) {
+      std::fprintf(stderr, "framelint_bench: cannot make %s%s with ffmpeg\n", clips_dir.c_str(), g.file);
+      return 3;
     }
-    const double frames = ana["frames"].get<double>();
-    const double ff_fps = ff.contains("seconds") ? frames / ff["seconds"].get<double>() : 0;
-    const double dec_fps = dec["frames"].get<double>() / dec["seconds"].get<double>();
-    const double ana_fps = frames / ana["seconds"].get<double>();
-    const std::string source = std::to_string(ana["source_width"].get<int>()) + "x" +
-                               std::to_string(ana["source_height"].get<int>());
-    std::string name = clip.size() > 28 ? "..." + clip.substr(clip.size() - 25) : clip;
-    std::printf("%-28s %-10s %6.0f %9.1f %9.1f %9.1f %6.2f %8.1f\n", name.c_str(), source.c_str(), frames, ff_fps,
-                dec_fps, ana_fps, ff_fps > 0 ? ana_fps / ff_fps : 0.0, ana["peak_rss_mb"].get<double>());
-    std::printf("  thread time per frame (ms):");
-    for (const auto& [stage, ms] : ana["stages_ms"].items()) std::printf(" %s %.2f", stage.c_str(), ms.get<double>() / frames);
-    std::printf("\n  decode-only peak %.1f MB; ratio = analysis fps / ffmpeg decode-only fps\n",
-                dec["peak_rss_mb"].get<double>());
+    clips.push_back(clips_dir + g.file);
   }
+  int status = 0;
+  if (!clips.empty()) {
+    std::printf("%-24s %-10s %6s %9s %9s %9s %6s %8s %7s\n", "clip", "source", "frames", "ffmpeg", "decode",
+                "analyze", "ratio", "peak MB", "CPU");
+    std::printf("%-24s %-10s %6s %9s %9s %9s %6s %8s %7s\n", "", "", "", "fps", "fps", "fps", "", "", "");
+    for (const auto& clip : clips) status = std::max(status, bench_clip(clip, *options));
+    std::printf("ratio = analysis fps / ffmpeg decode-only fps; CPU = analysis CPU time / wall time\n");
+  }
+  if (parsed->has("gate")) status = std::max(status, bench_gate(clips_dir));
   return status;
 }
