@@ -69,35 +69,46 @@ class BoilingMetric final : public Metric {
   }
 
  private:
-  double worst_cell_excess(const cv::Mat& residual, const cv::Mat& valid, const cv::Mat& flow_backward) {
-    // The earlier residual, carried onto this frame along the flow.
-    if (map_.size() != flow_backward.size()) map_.create(flow_backward.size(), CV_32FC2);
-    for (int y = 0; y < map_.rows; ++y) {
-      const cv::Vec2f* f = flow_backward.ptr<cv::Vec2f>(y);
-      cv::Vec2f* m = map_.ptr<cv::Vec2f>(y);
-      for (int x = 0; x < map_.cols; ++x) m[x] = cv::Vec2f(x + f[x][0], y + f[x][1]);
-    }
-    cv::remap(previous_residual_, carried_, map_, cv::noArray(), cv::INTER_LINEAR, cv::BORDER_CONSTANT);
-    cv::remap(previous_valid_, carried_valid_, map_, cv::noArray(), cv::INTER_NEAREST, cv::BORDER_CONSTANT);
+  // Bilinear sample of the earlier residual at (x, y); false outside it or
+  // where the nearest earlier pixel failed the check.
+  bool carried_residual(float x, float y, cv::Vec3f& out) const {
+    const cv::Mat& r = previous_residual_;
+    if (!(x >= 0 && y >= 0 && x <= r.cols - 1 && y <= r.rows - 1)) return false;
+    if (!previous_valid_.at<uint8_t>(cvRound(y), cvRound(x))) return false;
+    const int x0 = std::min(static_cast<int>(x), r.cols - 2 < 0 ? 0 : r.cols - 2);
+    const int y0 = std::min(static_cast<int>(y), r.rows - 2 < 0 ? 0 : r.rows - 2);
+    const int x1 = std::min(x0 + 1, r.cols - 1), y1 = std::min(y0 + 1, r.rows - 1);
+    const float fx = x - static_cast<float>(x0), fy = y - static_cast<float>(y0);
+    const cv::Vec3f* a = r.ptr<cv::Vec3f>(y0);
+    const cv::Vec3f* b = r.ptr<cv::Vec3f>(y1);
+    out = (a[x0] * (1 - fx) + a[x1] * fx) * (1 - fy) + (b[x0] * (1 - fx) + b[x1] * fx) * fy;
+    return true;
+  }
 
+  // Every second pixel of every second row: a cell of 64 x 64 px still
+  // averages about a thousand products, and the serial in-order stage
+  // does a quarter of the work.
+  static constexpr int kStride = 2;
+
+  double worst_cell_excess(const cv::Mat& residual, const cv::Mat& valid, const cv::Mat& flow_backward) {
     const int cell = std::max(8, std::max(residual.cols, residual.rows) / kCellsPerLongSide);
     const int cols = (residual.cols + cell - 1) / cell, rows = (residual.rows + cell - 1) / cell;
-    // Cell column of each x, looked up rather than divided per pixel.
-    cell_of_x_.resize(static_cast<size_t>(residual.cols));
-    for (int x = 0; x < residual.cols; ++x) cell_of_x_[x] = x / cell;
     std::vector<double> sum(static_cast<size_t>(cols) * rows, 0.0);
     std::vector<int> count(sum.size(), 0), area(sum.size(), 0);
-    for (int y = 0; y < residual.rows; ++y) {
+    cv::Vec3f before;
+    for (int y = 0; y < residual.rows; y += kStride) {
       const cv::Vec3f* now = residual.ptr<cv::Vec3f>(y);
-      const cv::Vec3f* before = carried_.ptr<cv::Vec3f>(y);
+      const cv::Vec2f* flow = flow_backward.ptr<cv::Vec2f>(y);
       const uint8_t* ok_now = valid.ptr<uint8_t>(y);
-      const uint8_t* ok_before = carried_valid_.ptr<uint8_t>(y);
       const size_t row_base = static_cast<size_t>(y / cell) * cols;
-      for (int x = 0; x < residual.cols; ++x) {
-        const size_t c = row_base + static_cast<size_t>(cell_of_x_[x]);
+      for (int x = 0; x < residual.cols; x += kStride) {
+        const size_t c = row_base + static_cast<size_t>(x / cell);
         ++area[c];
-        if (!ok_now[x] || !ok_before[x]) continue;
-        sum[c] -= now[x].dot(before[x]);
+        // The earlier residual, carried onto this frame along the flow.
+        if (!ok_now[x] || !carried_residual(static_cast<float>(x) + flow[x][0],
+                                            static_cast<float>(y) + flow[x][1], before))
+          continue;
+        sum[c] -= now[x].dot(before);
         ++count[c];
       }
     }
@@ -130,8 +141,6 @@ class BoilingMetric final : public Metric {
 
   bool has_previous_ = false;
   cv::Mat residual_, previous_residual_, previous_valid_;
-  cv::Mat map_, carried_, carried_valid_;
-  std::vector<int> cell_of_x_;
 };
 
 }  // namespace

@@ -105,7 +105,10 @@ TEST(BoilingReference, CleanPanAndFrameWideGrainReadNearZero) {
   const Report grain = analyse_pan(scene, 8, cv::Rect(cv::Point(0, 0), kFrame));
   const double one_sigma = 3 * std::pow(1 / 255.0, 2);  // what noise of sigma 1 would read
   EXPECT_LT(median_defined(clean, "boiling"), 2 * one_sigma);
-  EXPECT_LT(median_defined(grain, "boiling"), 0.2 * 3 * std::pow(8 / 255.0, 2));
+  // What remains is the spread of the cells' estimates (max minus median of
+  // 48 cells, each averaging ~1000 sampled products): a quarter of what
+  // the same noise reads when it is local.
+  EXPECT_LT(median_defined(grain, "boiling"), 0.25 * 3 * std::pow(8 / 255.0, 2));
   for (const auto* r : {&clean, &grain})
     for (const auto& s : r->segments) EXPECT_NE(s.metric, "boiling") << s.start_frame;
 }
