@@ -3,6 +3,24 @@ function(framelint_warnings target)
   target_compile_options(${target} PRIVATE -Wall -Wextra -Wpedantic -Wno-missing-field-initializers)
 endfunction()
 
+# FRAMELINT_FUZZ: one clang build serves the unit tests, the e2e tests and
+# the libFuzzer targets (tests/fuzz). All code gets ASan + UBSan and the
+# fuzzer's coverage hooks (-fsanitize=fuzzer-no-link); only the fuzz
+# executables link libFuzzer itself (-fsanitize=fuzzer, in tests/fuzz). The
+# other programs link because the sanitizer runtime defines the coverage
+# callbacks weakly.
+if(FRAMELINT_FUZZ)
+  if(NOT CMAKE_CXX_COMPILER_ID MATCHES "Clang")
+    message(FATAL_ERROR "FRAMELINT_FUZZ needs clang (libFuzzer): configure with "
+                        "-DCMAKE_CXX_COMPILER=clang++ (Debian: clang, libclang-rt-14-dev)")
+  endif()
+  if(FRAMELINT_TSAN)
+    message(FATAL_ERROR "FRAMELINT_FUZZ and FRAMELINT_TSAN cannot be combined")
+  endif()
+  set(FRAMELINT_SANITIZE ON)
+  add_compile_options(-fsanitize=fuzzer-no-link)
+endif()
+
 if(FRAMELINT_SANITIZE)
   add_compile_options(-fsanitize=address,undefined -fno-omit-frame-pointer -fno-sanitize-recover=undefined)
   add_link_options(-fsanitize=address,undefined)

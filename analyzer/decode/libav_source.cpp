@@ -265,13 +265,18 @@ Expected<std::unique_ptr<ClipSource>> open_libav_source(const std::string& path,
                                                         const SourceOptions& options) {
   auto format = open_input(path);
   if (!format) return format.error();
-  auto video_index = find_video_stream(format->get(), path);
+  return open_libav_source(std::move(*format), path, options);
+}
+
+Expected<std::unique_ptr<ClipSource>> open_libav_source(FormatPtr format, const std::string& path,
+                                                        const SourceOptions& options) {
+  auto video_index = find_video_stream(format.get(), path);
   if (!video_index) return video_index.error();
-  auto decoder = open_decoder((*format)->streams[*video_index], options.threads, path);
+  auto decoder = open_decoder(format->streams[*video_index], options.threads, path);
   if (!decoder) return decoder.error();
-  ClipInfo info = describe_container(format->get(), *video_index, path);
+  ClipInfo info = describe_container(format.get(), *video_index, path);
   const cv::Size output = working_size(info.width, info.height, options.working_long_side);
-  auto source = std::make_unique<LibavSource>(path, std::move(*format), *video_index,
+  auto source = std::make_unique<LibavSource>(path, std::move(format), *video_index,
                                               std::move(*decoder), std::move(info), output);
   if (!source->allocated()) return Error{ErrorKind::internal, path, "out of memory"};
   return std::unique_ptr<ClipSource>(std::move(source));

@@ -22,6 +22,10 @@ double stated_frame_interval_s(const AVStream* stream);
 
 Expected<std::unique_ptr<ClipSource>> open_libav_source(const std::string& path,
                                                         const SourceOptions& options);
+// The same on a context already opened by read_stream_headers (e.g. over
+// memory); `path` only names the clip in errors and the ClipInfo.
+Expected<std::unique_ptr<ClipSource>> open_libav_source(FormatPtr format, const std::string& path,
+                                                        const SourceOptions& options);
 
 // probe: frame count and timing facts from the video packets' timestamps
 // (no video decoding), audio facts from decoding the audio packets.

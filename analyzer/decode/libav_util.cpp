@@ -133,8 +133,10 @@ Expected<FormatPtr> open_input(const std::string& path) {
     const std::string reason = last_av_log_message();
     return input_error(path, "cannot open: " + (reason.empty() ? av_error_text(rc) : reason));
   }
-  FormatPtr format(raw);
+  return read_stream_headers(FormatPtr(raw), path);
+}
 
+Expected<FormatPtr> read_stream_headers(FormatPtr format, const std::string& path) {
   // Refuse hostile sizes before stream probing decodes a first frame.
   for (unsigned i = 0; i < format->nb_streams; ++i) {
     const AVCodecParameters* par = format->streams[i]->codecpar;
@@ -145,7 +147,7 @@ Expected<FormatPtr> open_input(const std::string& path) {
   std::vector<AVDictionary*> stream_options(format->nb_streams, nullptr);
   for (auto& options : stream_options) av_dict_set_int(&options, "max_pixels", kMaxPixels, 0);
   clear_av_log_message();
-  rc = avformat_find_stream_info(format.get(), stream_options.data());
+  const int rc = avformat_find_stream_info(format.get(), stream_options.data());
   for (auto& options : stream_options) av_dict_free(&options);
   if (rc < 0)
     return input_error(path,

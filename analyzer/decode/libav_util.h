@@ -75,6 +75,10 @@ Expected<size_t> read_file_bytes(const std::string& path, std::vector<uint8_t>& 
 // input errors naming the path: missing or unreadable file, empty file,
 // "not a video file FFmpeg can read", with libav's reason appended.
 Expected<FormatPtr> open_input(const std::string& path);
+// The second half of open_input, for a context opened some other way (an
+// in-memory AVIOContext): refuses hostile frame sizes, then reads the
+// stream headers with the decoder's pixel limit.
+Expected<FormatPtr> read_stream_headers(FormatPtr format, const std::string& path);
 
 // The stream a clip's frames come from: the first real video stream (cover
 // art and text-as-video streams do not count). Error "no video stream",
