@@ -85,6 +85,8 @@ void scan_folder(const fs::path& dir, std::vector<std::string>& clips) {
 
 std::string scalar_text(const json& v) {
   if (v.is_string()) return v.get<std::string>();
+  // Unsigned first: 18446744073709551615 read as int64_t would be "-1".
+  if (v.is_number_unsigned()) return std::to_string(v.get<uint64_t>());
   if (v.is_number_integer()) return std::to_string(v.get<int64_t>());
   return v.dump();
 }

@@ -1,6 +1,8 @@
 // Reading a report back from JSON (gate resume, merge, compare). Every
 // lookup is checked; an error names the key path that is missing or wrong.
+#include <cmath>
 #include <fstream>
+#include <limits>
 #include <sstream>
 
 #include "framelint/report_io.h"
@@ -30,6 +32,24 @@ std::optional<double> opt_num(const json& j, const std::string& key, const std::
   if (!j.contains(key) || j[key].is_null()) return std::nullopt;
   return num(j, key, path);
 }
+// Sizes, counts and frame indices. Casting a fractional, null, infinite or
+// out-of-range number to an integer type is undefined behaviour (C++
+// [conv.fpint]), so such values are refused by name (found by fuzzing).
+template <class Int>
+Int whole(const json& j, const std::string& key, const std::string& path) {
+  const double v = num(j, key, path);
+  // Signed ranges are [-2^k, 2^k): both ends are exact in a double.
+  const double low = static_cast<double>(std::numeric_limits<Int>::min());
+  if (!(std::trunc(v) == v && v >= low && v < -low))
+    throw BadKey{path + key, "is not a whole number in range"};
+  return static_cast<Int>(v);
+}
+int whole_int(const json& j, const std::string& key, const std::string& path) {
+  return whole<int>(j, key, path);
+}
+int64_t whole_int64(const json& j, const std::string& key, const std::string& path) {
+  return whole<int64_t>(j, key, path);
+}
 std::string str(const json& j, const std::string& key, const std::string& path) {
   const json& v = at(j, key, path);
   if (!v.is_string()) throw BadKey{path + key, "is not a string"};
@@ -53,14 +73,14 @@ ClipInfo read_clip(const json& c) {
   out.sha256 = str(c, "sha256", p);
   out.container = str(c, "container", p);
   out.codec = str(c, "codec", p);
-  out.width = static_cast<int>(num(c, "width", p));
-  out.height = static_cast<int>(num(c, "height", p));
+  out.width = whole_int(c, "width", p);
+  out.height = whole_int(c, "height", p);
   out.fps = num(c, "fps", p);
-  out.frame_count = static_cast<int64_t>(num(c, "frame_count", p));
+  out.frame_count = whole_int64(c, "frame_count", p);
   out.duration_s = num(c, "duration_s", p);
   out.pix_fmt = str(c, "pix_fmt", p);
-  if (c.contains("bit_depth")) out.bit_depth = static_cast<int>(num(c, "bit_depth", p));
-  out.rotation = static_cast<int>(num(c, "rotation", p));
+  if (c.contains("bit_depth")) out.bit_depth = whole_int(c, "bit_depth", p);
+  out.rotation = whole_int(c, "rotation", p);
   const json& a = at(c, "audio", p);
   out.audio.present = boolean(a, "present", p + "audio.");
   if (a.contains("codec") && a["codec"].is_string()) out.audio.codec = a["codec"];
@@ -98,8 +118,8 @@ void read_summary(const json& s, Report& r) {
   r.summary.stream.audio_duration_s = opt_num(st, "audio_duration_s", sp);
   r.summary.stream.mismatch_s = opt_num(st, "mismatch_s", sp);
   r.summary.stream.vfr = boolean(st, "vfr", sp);
-  r.summary.stream.dropped_frames = static_cast<int>(num(st, "dropped_frames", sp));
-  r.summary.stream.duplicate_timestamps = static_cast<int>(num(st, "duplicate_timestamps", sp));
+  r.summary.stream.dropped_frames = whole_int(st, "dropped_frames", sp);
+  r.summary.stream.duplicate_timestamps = whole_int(st, "duplicate_timestamps", sp);
   for (const auto& [name, entry] : s.items()) {
     if (name == "coherence" || name == "stream") continue;
     if (!entry.is_object()) throw BadKey{p + name, "is not an object"};
@@ -125,12 +145,12 @@ Report read_report(const json& j) {
     const json& s = segments[i];
     Segment seg;
     seg.metric = str(s, "metric", p);
-    seg.start_frame = static_cast<int64_t>(num(s, "start_frame", p));
-    seg.end_frame = static_cast<int64_t>(num(s, "end_frame", p));
+    seg.start_frame = whole_int64(s, "start_frame", p);
+    seg.end_frame = whole_int64(s, "end_frame", p);
     seg.start_s = num(s, "start_s", p);
     seg.end_s = num(s, "end_s", p);
     seg.peak = num(s, "peak", p);
-    seg.peak_frame = s.contains("peak_frame") ? static_cast<int64_t>(num(s, "peak_frame", p)) : seg.start_frame;
+    seg.peak_frame = s.contains("peak_frame") ? whole_int64(s, "peak_frame", p) : seg.start_frame;
     auto sev = severity_from_string(str(s, "severity", p));
     if (!sev) throw BadKey{p + "severity", "is not info, review or reject"};
     seg.severity = *sev;
@@ -143,9 +163,9 @@ Report read_report(const json& j) {
       const std::string p = "objects[" + std::to_string(i) + "].";
       const json& o = objects[i];
       TrackedObject obj;
-      obj.id = static_cast<int>(num(o, "id", p));
-      obj.first_frame = static_cast<int64_t>(num(o, "first_frame", p));
-      obj.last_frame = static_cast<int64_t>(num(o, "last_frame", p));
+      obj.id = whole_int(o, "id", p);
+      obj.first_frame = whole_int64(o, "first_frame", p);
+      obj.last_frame = whole_int64(o, "last_frame", p);
       obj.vanished = boolean(o, "vanished", p);
       if (o.contains("end_reason") && o["end_reason"].is_string()) obj.end_reason = o["end_reason"];
       for (const auto& [k, v] : o.items())

@@ -1,5 +1,7 @@
 #include "report/json/schema_check.h"
 
+#include <cmath>
+
 #include "analyzer/core/assets.h"
 #include "framelint/report_io.h"
 
@@ -16,7 +18,11 @@ bool has_type(const json& value, const std::string& type) {
   if (type == "null") return value.is_null();
   if (type == "number") return value.is_number();
   if (type == "integer")
-    return value.is_number_integer() || (value.is_number_float() && value.get<double>() == static_cast<double>(static_cast<int64_t>(value.get<double>())));
+    // JSON Schema counts any number with a zero fractional part as an
+    // integer (recalled from memory); testing that by a cast to int64_t was
+    // undefined behaviour for huge values (found by fuzzing).
+    return value.is_number_integer() ||
+           (value.is_number_float() && std::trunc(value.get<double>()) == value.get<double>());
   return false;
 }
 
