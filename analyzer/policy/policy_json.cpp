@@ -288,6 +288,10 @@ Expected<Policy> parse_policy(const std::string& json_text, const std::string& s
     patch = json::parse(json_text);
   } catch (const json::parse_error& e) {
     return usage_error(subject, "is not valid JSON (error at byte " + std::to_string(e.byte) + ")");
+  } catch (const json::exception&) {
+    // A number beyond double's range (1e400) throws out_of_range 406, not
+    // parse_error; uncaught it ended the program (found by fuzzing).
+    return usage_error(subject, "is not valid JSON (a number is too large)");
   }
   if (!patch.is_object()) return usage_error(subject, "a policy must be a JSON object");
   std::set<std::string> known_metrics;

@@ -7,6 +7,7 @@
 #include <string>
 
 #include "framelint/gate.h"
+#include "framelint/policy.h"
 #include "framelint/report_io.h"
 #include "support/clips.h"
 #include "support/gate_files.h"
@@ -77,4 +78,17 @@ TEST(FuzzFindings, HugeUnsignedManifestIdsKeepTheirDigits) {
   EXPECT_EQ(got->inputs[0].id, "18446744073709551615");
   EXPECT_EQ(got->inputs[1].id, "-1");
   EXPECT_EQ(got->inputs[1].prompt_id, "9223372036854775808");
+}
+
+// The policy fuzz target: a number too large for a double made the JSON
+// parser throw out_of_range, which parse_policy did not catch (the program
+// ended). Now a usage error naming the file.
+TEST(FuzzFindings, PolicyWithAnOverflowingNumberIsAUsageError) {
+  for (const std::string text : {std::string(R"({"name": 4e4666666666})"),
+                                 std::string(R"({"rules": {"coherence_review_below": -1e400}})")}) {
+    auto policy = parse_policy(text, "p.json");
+    ASSERT_FALSE(policy) << text;
+    EXPECT_EQ(policy.error().kind, ErrorKind::usage);
+    EXPECT_EQ(policy.error().subject, "p.json");
+  }
 }
