@@ -203,7 +203,10 @@ std::vector<RegionProposal> propose_scene_cells(const cv::Mat& magnitude, const 
             continue;
           }
           const cv::Point2f p = grid.position(c, r);
-          texture += magnitude.at<float>(cvRound(p.y), cvRound(p.x));
+          // A node can sit past the last row or column of a frame only a
+          // few pixels tall or wide (a 16384x16 clip is 512x1 at work).
+          texture += magnitude.at<float>(std::clamp(cvRound(p.y), 0, magnitude.rows - 1),
+                                         std::clamp(cvRound(p.x), 0, magnitude.cols - 1));
           cell.points.push_back(p);
         }
       }
