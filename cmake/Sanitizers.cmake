@@ -28,4 +28,14 @@ endif()
 if(FRAMELINT_TSAN)
   add_compile_options(-fsanitize=thread -fno-omit-frame-pointer)
   add_link_options(-fsanitize=thread)
+  # The suppressions are built into the library, and every program linked
+  # against it pulls them in (the runtime asks for
+  # __tsan_default_suppressions at start-up), so a TSan binary run by hand
+  # reports only what CI would.
+  file(READ ${PROJECT_SOURCE_DIR}/.ci/tsan.supp FRAMELINT_TSAN_SUPPRESSIONS)
+  set_property(DIRECTORY APPEND PROPERTY CMAKE_CONFIGURE_DEPENDS ${PROJECT_SOURCE_DIR}/.ci/tsan.supp)
+  configure_file(${CMAKE_CURRENT_LIST_DIR}/tsan_default_suppressions.cpp.in
+                 ${PROJECT_BINARY_DIR}/generated/tsan_default_suppressions.cpp @ONLY)
+  set(FRAMELINT_SANITIZER_SOURCES ${PROJECT_BINARY_DIR}/generated/tsan_default_suppressions.cpp)
+  add_link_options(-Wl,--undefined=framelint_tsan_suppressions_anchor)
 endif()
