@@ -18,21 +18,15 @@ int run_analyze(const std::vector<std::string>& args) {
   specs.push_back({"out", true, "output folder (default framelint-out)"});
   specs.push_back({"no-html", false, "write only the JSON report"});
   specs.push_back({"quiet", false, "no progress on stderr"});
-  if (wants_help(args)) {
-    std::fputs(format_help("analyze", "CLIP... [options]",
-                           "Analyzes each clip and writes DIR/<name>.json and DIR/<name>.html.\n"
-                           "Exit status: 0 all passed the gate, 1 a clip was rejected, 2 bad usage,\n"
-                           "3 a clip could not be read (the others are still analyzed).",
-                           specs)
-                   .c_str(),
-               stdout);
-    return kExitOk;
-  }
-  auto parsed = parse_args(args, specs);
-  if (!parsed) {
-    print_error(parsed.error().message());
-    return kExitUsage;
-  }
+  int stop_status = kExitOk;
+  auto parsed = parse_command_line(
+      args, specs,
+      {"analyze", "CLIP... [options]",
+       "Analyzes each clip and writes DIR/<name>.json and DIR/<name>.html.\n"
+       "Exit status: 0 all passed the gate, 1 a clip was rejected, 2 bad usage,\n"
+       "3 a clip could not be read (the others are still analyzed)."},
+      stop_status);
+  if (!parsed) return stop_status;
   if (parsed->positionals.empty()) {
     print_error("analyze needs at least one CLIP (see framelint analyze --help)");
     return kExitUsage;
@@ -78,8 +72,9 @@ int run_analyze(const std::vector<std::string>& args) {
       continue;
     }
     if (!quiet)
-      std::printf("%s: %s (coherence %.1f) -> %s.json%s\n", clip.c_str(), to_string(report->verdict.status),
-                  report->summary.coherence, base.c_str(), html ? (", " + base + ".html").c_str() : "");
+      std::printf("%s: %s (coherence %.1f) -> %s.json%s\n", clip.c_str(),
+                  to_string(report->verdict.status), report->summary.coherence, base.c_str(),
+                  html ? (", " + base + ".html").c_str() : "");
     if (report->verdict.status == Verdict::reject && status == kExitOk) status = kExitGateFailed;
   }
   return status;

@@ -3,8 +3,11 @@
 #pragma once
 
 #include <functional>
+#include <optional>
 #include <string>
 #include <vector>
+
+#include "analyzer/cli/args.h"
 
 namespace framelint::cli {
 
@@ -18,7 +21,7 @@ enum ExitStatus : int {
 
 struct Command {
   const char* name;
-  const char* summary;  // one line for `framelint --help`
+  const char* summary;                                           // one line for `framelint --help`
   std::function<int(const std::vector<std::string>& args)> run;  // args after the name
 };
 
@@ -28,5 +31,20 @@ const std::vector<Command>& commands();
 // program name; progress only when stderr is a terminal and not --quiet.
 void print_error(const std::string& line);
 bool stderr_is_terminal();
+
+// How a command describes itself in --help.
+struct CommandHelp {
+  const char* name;
+  const char* synopsis;
+  std::string description;
+};
+
+// What every command does first: with -h or --help it prints the help and
+// stops with status 0; a bad argument prints its one-line error and stops
+// with status 2. Returns the parsed arguments, or nothing with
+// `exit_status` set when the command is to stop.
+std::optional<ParsedArgs> parse_command_line(const std::vector<std::string>& args,
+                                             const std::vector<OptionSpec>& specs,
+                                             const CommandHelp& help, int& exit_status);
 
 }  // namespace framelint::cli

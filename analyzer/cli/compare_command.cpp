@@ -98,16 +98,10 @@ void print_summary(const Comparison& c, const std::string& out_dir) {
 
 int run_compare(const std::vector<std::string>& args) {
   const auto specs = compare_specs();
-  if (wants_help(args)) {
-    std::fputs(format_help("compare", "A B --out DIR [options]", kDescription, specs).c_str(),
-               stdout);
-    return kExitOk;
-  }
-  auto parsed = parse_args(args, specs);
-  if (!parsed) {
-    print_error(parsed.error().message());
-    return kExitUsage;
-  }
+  int stop_status = kExitOk;
+  auto parsed = parse_command_line(
+      args, specs, {"compare", "A B --out DIR [options]", kDescription}, stop_status);
+  if (!parsed) return stop_status;
   if (parsed->positionals.size() != 2) {
     print_error("compare takes two folders, A and B (see framelint compare --help)");
     return kExitUsage;

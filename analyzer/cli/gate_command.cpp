@@ -76,13 +76,10 @@ void assign_output_names(std::vector<GateInput>& inputs) {
 
 int run_gate(const std::vector<std::string>& args) {
   const auto specs = gate_specs();
-  if (wants_help(args)) {
-    std::fputs(format_help("gate", "INPUT... --out DIR [options]", kDescription, specs).c_str(),
-               stdout);
-    return kExitOk;
-  }
-  auto parsed = parse_args(args, specs);
-  if (!parsed) return print_error(parsed.error().message()), kExitUsage;
+  int stop_status = kExitOk;
+  auto parsed = parse_command_line(
+      args, specs, {"gate", "INPUT... --out DIR [options]", kDescription}, stop_status);
+  if (!parsed) return stop_status;
   if (parsed->has("print-default-policy")) {
     std::printf("%s\n", policy_to_json(default_policy()).dump(2).c_str());
     return kExitOk;

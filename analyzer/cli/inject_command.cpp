@@ -19,14 +19,17 @@ Expected<VideoCodec> codec_from_args(const ParsedArgs& parsed) {
 }
 
 int exit_status_for(const Error& e) {
-  return e.kind == ErrorKind::usage ? kExitUsage : e.kind == ErrorKind::input ? kExitInputError : kExitUsage;
+  return e.kind == ErrorKind::usage   ? kExitUsage
+         : e.kind == ErrorKind::input ? kExitInputError
+                                      : kExitUsage;
 }
 
 }  // namespace
 
 int run_inject(const std::vector<std::string>& args) {
   const std::vector<OptionSpec> specs = {
-      {"defect", true, "a defect, CLASS@RANGE[:KEY=VALUE,...] (repeat for more; docs/inject.md)", "", true},
+      {"defect", true, "a defect, CLASS@RANGE[:KEY=VALUE,...] (repeat for more; docs/inject.md)",
+       "", true},
       {"output", true, "the output clip (.mp4 for H.264, .mkv for FFV1)", "o"},
       {"truth", true, "the truth JSON (default: OUT's name with .truth.json)"},
       {"seed", true, "seed of every random choice (default 1)"},
@@ -34,22 +37,16 @@ int run_inject(const std::vector<std::string>& args) {
       {"crf", true, "H.264 quality, 0 (best) to 51 (default 18)"},
       {"quiet", false, "no progress on stderr"},
   };
-  if (wants_help(args)) {
-    std::fputs(format_help("inject", "CLIP --defect SPEC... -o OUT [options]",
-                           "Writes a copy of a clean clip with known defects injected, and a JSON truth\n"
-                           "file of where they are. Classes: flicker, local_flicker, boiling,\n"
-                           "colour_drift, shape_drift, vanish, freeze, drop, cut, jerk, strobe.\n"
-                           "Example: framelint inject shot.mp4 --defect flicker@30-59:strength=0.1 -o bad.mp4",
-                           specs)
-                   .c_str(),
-               stdout);
-    return kExitOk;
-  }
-  auto parsed = parse_args(args, specs);
-  if (!parsed) {
-    print_error(parsed.error().message());
-    return kExitUsage;
-  }
+  int stop_status = kExitOk;
+  auto parsed = parse_command_line(
+      args, specs,
+      {"inject", "CLIP --defect SPEC... -o OUT [options]",
+       "Writes a copy of a clean clip with known defects injected, and a JSON truth\n"
+       "file of where they are. Classes: flicker, local_flicker, boiling,\n"
+       "colour_drift, shape_drift, vanish, freeze, drop, cut, jerk, strobe.\n"
+       "Example: framelint inject shot.mp4 --defect flicker@30-59:strength=0.1 -o bad.mp4"},
+      stop_status);
+  if (!parsed) return stop_status;
   if (parsed->positionals.size() != 1) {
     print_error("inject takes exactly one CLIP (see framelint inject --help)");
     return kExitUsage;

@@ -17,23 +17,16 @@ int run_inspect(const std::vector<std::string>& args) {
       {"width", true, "long side of the analysis frames in px (default 512)"},
       {"fps", true, "frame rate for folders of numbered images (default 24)"},
   };
-  if (wants_help(args)) {
-    std::fputs(
-        format_help("inspect", "CLIP --frame N [options]",
-                    "Writes PNG panels for one frame: previous, current, previous warped onto\n"
-                    "current, warp-error heat map and its colour bar, optical flow in the\n"
-                    "Middlebury colour coding and its colour wheel, occlusion mask.\n"
-                    "Prints the paths written, one per line.",
-                    specs)
-            .c_str(),
-        stdout);
-    return kExitOk;
-  }
-  auto parsed = parse_args(args, specs);
-  if (!parsed) {
-    print_error(parsed.error().message());
-    return kExitUsage;
-  }
+  int stop_status = kExitOk;
+  auto parsed = parse_command_line(
+      args, specs,
+      {"inspect", "CLIP --frame N [options]",
+       "Writes PNG panels for one frame: previous, current, previous warped onto\n"
+       "current, warp-error heat map and its colour bar, optical flow in the\n"
+       "Middlebury colour coding and its colour wheel, occlusion mask.\n"
+       "Prints the paths written, one per line."},
+      stop_status);
+  if (!parsed) return stop_status;
   if (parsed->positionals.size() != 1) {
     print_error("inspect takes exactly one CLIP (see framelint inspect --help)");
     return kExitUsage;

@@ -14,20 +14,16 @@ int run_merge(const std::vector<std::string>& args) {
       {"fail-on", true, "review or reject (default): exit 1 when a merged clip has it"},
       {"quiet", false, "no summary line"},
   };
-  if (wants_help(args)) {
-    std::fputs(format_help(
-                   "merge", "DIR... --out DIR [options]",
-                   "Joins the output folders of `framelint gate --shard` runs: one queue.jsonl in\n"
-                   "input order without duplicates, the reports, one framelint.db and index.html.\n"
-                   "Exit status as for gate: 0, 1 (a clip reached --fail-on), 2 bad usage,\n"
-                   "3 a clip could not be read.",
-                   specs)
-                   .c_str(),
-               stdout);
-    return kExitOk;
-  }
-  auto parsed = parse_args(args, specs);
-  if (!parsed) return print_error(parsed.error().message()), kExitUsage;
+  int stop_status = kExitOk;
+  auto parsed = parse_command_line(
+      args, specs,
+      {"merge", "DIR... --out DIR [options]",
+       "Joins the output folders of `framelint gate --shard` runs: one queue.jsonl in\n"
+       "input order without duplicates, the reports, one framelint.db and index.html.\n"
+       "Exit status as for gate: 0, 1 (a clip reached --fail-on), 2 bad usage,\n"
+       "3 a clip could not be read."},
+      stop_status);
+  if (!parsed) return stop_status;
   if (parsed->positionals.empty() || !parsed->get("out"))
     return print_error("merge needs DIR... and --out DIR (see framelint merge --help)"), kExitUsage;
   auto fail_on = fail_on_from_args(*parsed);

@@ -11,17 +11,11 @@ int run_probe(const std::vector<std::string>& args) {
   const std::vector<OptionSpec> specs = {
       {"fps", true, "frame rate for a folder of numbered images"},
   };
-  if (wants_help(args)) {
-    std::fputs(format_help("probe", "CLIP", "Prints what the clip's container holds, as JSON.", specs)
-                   .c_str(),
-               stdout);
-    return kExitOk;
-  }
-  auto parsed = parse_args(args, specs);
-  if (!parsed) {
-    print_error(parsed.error().message());
-    return kExitUsage;
-  }
+  int stop_status = kExitOk;
+  auto parsed = parse_command_line(
+      args, specs, {"probe", "CLIP", "Prints what the clip's container holds, as JSON."},
+      stop_status);
+  if (!parsed) return stop_status;
   if (parsed->positionals.size() != 1) {
     print_error("probe takes exactly one CLIP (see framelint probe --help)");
     return kExitUsage;
