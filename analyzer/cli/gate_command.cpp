@@ -75,6 +75,9 @@ void assign_output_names(std::vector<GateInput>& inputs) {
 }  // namespace
 
 int run_gate(const std::vector<std::string>& args) {
+  // First of all: a signal that comes while the inputs are still being
+  // listed must stop the batch cleanly too, not kill it.
+  install_stop_handlers();
   const auto specs = gate_specs();
   int stop_status = kExitOk;
   auto parsed = parse_command_line(
@@ -125,7 +128,6 @@ int run_gate(const std::vector<std::string>& args) {
     progress.update(counts);
   };
   gate.stop = &g_stop;
-  install_stop_handlers();
   auto run = framelint::run_gate(inputs, gate, observer);
   progress.finish();
   if (!run) return print_error(run.error().message()), kExitUsage;
