@@ -52,6 +52,7 @@ static void dis_flow(cv::DISOpticalFlow& dis, const cv::Mat& from, const cv::Mat
 struct PairBuilder::Impl {
   cv::Ptr<cv::DISOpticalFlow> dis;
   cv::Mat map;                // x + flow_backward(x)
+  cv::Mat map_xy, map_fraction;  // the same map in cv::remap's fixed-point form
   cv::Mat forward_at_target;  // flow_forward sampled at x + flow_backward(x)
 };
 
@@ -76,14 +77,18 @@ void PairBuilder::build(const FramePlanes& prev, const FramePlanes& cur, FramePa
 
   // One sampling map serves the occlusion check and both warps, so each
   // plane of frame t-1 is read once (bilinear, as the warping error expects).
+  // cv::remap turns a float map into 1/32-pixel fixed point block by block
+  // on every call; converting it once for the three planes gives the same
+  // bytes (checked by a unit test) for a third of the conversions.
   flow_to_map(pair.flow_backward, impl_->map);
-  cv::remap(pair.flow_forward, impl_->forward_at_target, impl_->map, cv::noArray(), cv::INTER_LINEAR,
-            cv::BORDER_REPLICATE);
+  cv::convertMaps(impl_->map, cv::noArray(), impl_->map_xy, impl_->map_fraction, CV_16SC2);
+  const auto warp = [&](const cv::Mat& from, cv::Mat& to) {
+    cv::remap(from, to, impl_->map_xy, impl_->map_fraction, cv::INTER_LINEAR, cv::BORDER_REPLICATE);
+  };
+  warp(pair.flow_forward, impl_->forward_at_target);
   pair.valid_fraction = forward_backward_check(pair.flow_backward, impl_->forward_at_target, pair.valid);
-  cv::remap(prev.bgr, pair.warped_prev_bgr, impl_->map, cv::noArray(), cv::INTER_LINEAR,
-            cv::BORDER_REPLICATE);
-  cv::remap(prev.luminance, pair.warped_prev_luminance, impl_->map, cv::noArray(), cv::INTER_LINEAR,
-            cv::BORDER_REPLICATE);
+  warp(prev.bgr, pair.warped_prev_bgr);
+  warp(prev.luminance, pair.warped_prev_luminance);
 
   const CameraMotion camera = fit_camera_motion(pair.flow_backward, pair.valid);
   pair.camera_homography = camera.homography;
