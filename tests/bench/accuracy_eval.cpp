@@ -10,6 +10,7 @@
 //       [--levels weak,moderate,strong] [--placements N] [--bases a,b]
 //       [--classes a,b] [--seed N] [--json FILE] [--markdown FILE] [--sweep]
 //       [--reports DIR]   (also write every analysed report to DIR)
+//       [--preset fast|balanced|thorough]   (flow effort; default balanced)
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
@@ -66,6 +67,11 @@ EvalOptions parse(int argc, char** argv, std::string& json_path, std::string& md
     else if (a == "--markdown") md_path = value();
     else if (a == "--sweep") sweep = true;
     else if (a == "--reports") o.reports_dir = value();
+    else if (a == "--preset") {
+      auto preset = preset_from_string(value());
+      if (!preset) usage("--preset is fast, balanced or thorough");
+      o.analysis.preset = *preset;
+    }
     else if (a == "--levels") {
       o.levels.clear();
       for (const auto& l : split(value())) {

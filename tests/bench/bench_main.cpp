@@ -160,6 +160,17 @@ int bench_clip(const std::string& clip, const cli::AnalysisOptions& options) {
   std::printf("  thread time per frame (ms):");
   for (const auto& [stage, ms] : ana["stages_ms"].items()) std::printf(" %s %.2f", stage.c_str(), ms.get<double>() / frames);
   std::printf("\n  decode-only peak %.1f MB\n", dec["peak_rss_mb"].get<double>());
+  // CPU time per frame does not depend on how well a program spreads over
+  // the cores, so it is steadier than fps on a shared machine: with both
+  // cores busy, the fps ratio tends to (2 cores / analysis CPU) / (FFmpeg's
+  // cores used / FFmpeg CPU).
+  const double ff_cpu = ff.contains("cpu_s") ? 1000.0 * ff["cpu_s"].get<double>() / frames : 0;
+  const double dec_cpu = 1000.0 * dec["cpu_s"].get<double>() / dec["frames"].get<double>();
+  const double ana_cpu = 1000.0 * ana["cpu_s"].get<double>() / frames;
+  std::printf("  CPU per frame (ms): ffmpeg decode-only %.2f (at %.0f%% CPU), our decode+scale %.2f, "
+              "analysis %.2f\n",
+              ff_cpu, ff.contains("seconds") ? 100.0 * ff["cpu_s"].get<double>() / ff["seconds"].get<double>() : 0.0,
+              dec_cpu, ana_cpu);
   return 0;
 }
 
