@@ -37,24 +37,42 @@ int DriftTracker::active_count() const {
                                         [](const ObjectTrack& o) { return !o.ended; }));
 }
 
+namespace {
+
+bool followable(const FramePair& pair) {
+  return pair.prev && pair.cur && !pair.cur->bgr.empty() && !pair.flow_forward.empty() &&
+         !pair.flow_backward.empty();
+}
+
+}  // namespace
+
+void DriftTracker::prepare(const FramePair& pair) const {
+  if (!followable(pair)) return;
+  // The same radius as step() uses: params_ is a function of the frame size.
+  const int radius =
+      DriftParams::for_frame(pair.cur->bgr.cols, pair.cur->bgr.rows, max_objects_).window_radius_px;
+  feature_cache_.prepare(pair.cur->index, pair.cur->gray, pair.cur->bgr, radius);
+}
+
 FrameDrift DriftTracker::step(const FramePair& pair) {
   FrameDrift result;
-  if (!pair.prev || !pair.cur || pair.cur->bgr.empty() || pair.flow_forward.empty() ||
-      pair.flow_backward.empty()) {
-    return result;
-  }
+  if (!followable(pair)) return result;
   if (!params_ready_) {
     params_ = DriftParams::for_frame(pair.cur->bgr.cols, pair.cur->bgr.rows, max_objects_);
     params_ready_ = true;
   }
   // Features of the previous frame are normally those computed as "current"
-  // one step earlier.
+  // one step earlier; those of the current frame were normally prepared.
   std::swap(prev_features_, cur_features_);
-  if (prev_features_.frame_index() != pair.prev->index) {
+  if (prev_features_.frame_index() != pair.prev->index &&
+      !feature_cache_.take(pair.prev->index, prev_features_)) {
     prev_features_.compute(pair.prev->index, pair.prev->gray, pair.prev->bgr,
                            params_.window_radius_px);
   }
-  cur_features_.compute(pair.cur->index, pair.cur->gray, pair.cur->bgr, params_.window_radius_px);
+  if (!feature_cache_.take(pair.cur->index, cur_features_)) {
+    cur_features_.compute(pair.cur->index, pair.cur->gray, pair.cur->bgr,
+                          params_.window_radius_px);
+  }
 
   if (shot_active_ && is_cut(pair)) {
     end_shot(pair);

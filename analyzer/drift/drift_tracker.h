@@ -17,6 +17,7 @@
 #include <opencv2/core.hpp>
 
 #include "analyzer/drift/drift_params.h"
+#include "analyzer/drift/feature_cache.h"
 #include "analyzer/drift/frame_features.h"
 #include "analyzer/drift/illumination_fit.h"
 #include "analyzer/drift/object_track.h"
@@ -77,6 +78,12 @@ class DriftTracker {
  public:
   explicit DriftTracker(int max_objects);
 
+  // Computes the features of the pair's current frame ahead of step();
+  // depends on the pair only, so it may run on any thread, for several
+  // pairs at once (Metric::measure_pair). Optional: step() computes
+  // whatever was not prepared.
+  void prepare(const FramePair& pair) const;
+
   FrameDrift step(const FramePair& pair);
   // Ends every object still followed ("clip_end").
   void finish();
@@ -120,6 +127,7 @@ class DriftTracker {
   double last_proposal_t_s_ = 0;
 
   FrameFeatures prev_features_, cur_features_;
+  mutable FeatureCache feature_cache_;  // filled by prepare(), emptied by step()
   cv::Matx33d camera_path_prev_ = cv::Matx33d::eye();  // shot start -> previous frame
   cv::Matx33d camera_path_cur_ = cv::Matx33d::eye();
   IlluminationMap illumination_prev_, illumination_cur_;

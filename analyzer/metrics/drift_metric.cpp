@@ -47,7 +47,11 @@ class DriftMetric final : public Metric {
     return {"drift", "drift_color_de00", "drift_structure", "drift_size_pct"};
   }
 
-  void measure_pair(const FramePair& /*pair*/, std::span<double> /*out*/) const override {}
+  // The per-frame feature planes are computed here, concurrently, ahead of
+  // the serial tracker (they depend on the frame's pixels only).
+  void measure_pair(const FramePair& pair, std::span<double> /*out*/) const override {
+    if (enabled_) tracker_.prepare(pair);
+  }
 
   bool needs_in_order() const override { return enabled_; }
 
