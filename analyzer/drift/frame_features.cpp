@@ -4,6 +4,7 @@
 
 #include <opencv2/imgproc.hpp>
 
+#include "analyzer/drift/box_mean.h"
 #include "analyzer/drift/sampling.h"
 
 namespace framelint::drift {
@@ -11,9 +12,9 @@ namespace framelint::drift {
 void FrameFeatures::compute(int64_t frame_index, const cv::Mat& gray, const cv::Mat& bgr,
                             int window_radius) {
   frame_index_ = frame_index;
-  const int side = 2 * window_radius + 1;
-  cv::blur(bgr, window_colour_, cv::Size(side, side), cv::Point(-1, -1), cv::BORDER_REPLICATE);
-  cv::blur(gray, window_gray_, cv::Size(side, side), cv::Point(-1, -1), cv::BORDER_REPLICATE);
+  // box_mean gives cv::blur's values, faster.
+  box_mean(bgr, window_radius, window_colour_, box_scratch_);
+  box_mean(gray, window_radius, window_gray_, box_scratch_);
   // sigma 1 smoothing keeps the orientation of fine texture but removes the
   // pixel noise and block edges of compressed video (common practice).
   cv::GaussianBlur(gray, smoothed_, cv::Size(5, 5), 1.0, 1.0, cv::BORDER_REPLICATE);

@@ -8,6 +8,7 @@
 
 #include <array>
 #include <cstdint>
+#include <vector>
 
 #include <opencv2/core.hpp>
 
@@ -41,6 +42,7 @@ class FrameFeatures {
  private:
   int64_t frame_index_ = -1;
   cv::Mat smoothed_, gx_, gy_, magnitude_, angle_, window_colour_, window_gray_;
+  std::vector<uint16_t> box_scratch_;
 };
 
 // Generalised Hellinger distance between two non-negative measures, after
