@@ -26,6 +26,14 @@ void gray_histogram(const cv::Mat& gray, cv::Mat& hist) {
   cv::normalize(hist, hist, 1, 0, cv::NORM_L1);
 }
 
+// Bhattacharyya distance between the gray-level histograms of the pair.
+double histogram_distance(const FramePair& pair) {
+  cv::Mat prev, cur;
+  gray_histogram(pair.prev->gray, prev);
+  gray_histogram(pair.cur->gray, cur);
+  return cv::compareHist(prev, cur, cv::HISTCMP_BHATTACHARYYA);
+}
+
 }  // namespace
 
 const char* to_string(ObjectKind kind) { return kind == ObjectKind::moving ? "moving" : "scene"; }
@@ -49,9 +57,13 @@ bool followable(const FramePair& pair) {
 void DriftTracker::prepare(const FramePair& pair) const {
   if (!followable(pair)) return;
   // The same radius as step() uses: params_ is a function of the frame size.
-  const int radius =
-      DriftParams::for_frame(pair.cur->bgr.cols, pair.cur->bgr.rows, max_objects_).window_radius_px;
-  feature_cache_.prepare(pair.cur->index, pair.cur->gray, pair.cur->bgr, radius);
+  const DriftParams params = DriftParams::for_frame(pair.cur->bgr.cols, pair.cur->bgr.rows, max_objects_);
+  // The histogram distance is needed only where the flow fails (is_cut).
+  const double cut_distance = pair.valid_fraction < params.cut_valid_fraction
+                                  ? histogram_distance(pair)
+                                  : std::numeric_limits<double>::quiet_NaN();
+  feature_cache_.prepare(pair.cur->index, pair.cur->gray, pair.cur->bgr, params.window_radius_px,
+                         cut_distance);
 }
 
 FrameDrift DriftTracker::step(const FramePair& pair) {
@@ -64,17 +76,19 @@ FrameDrift DriftTracker::step(const FramePair& pair) {
   // Features of the previous frame are normally those computed as "current"
   // one step earlier; those of the current frame were normally prepared.
   std::swap(prev_features_, cur_features_);
+  double cut_distance = std::numeric_limits<double>::quiet_NaN();
   if (prev_features_.frame_index() != pair.prev->index &&
-      !feature_cache_.take(pair.prev->index, prev_features_)) {
+      !feature_cache_.take(pair.prev->index, prev_features_, cut_distance)) {
     prev_features_.compute(pair.prev->index, pair.prev->gray, pair.prev->bgr,
                            params_.window_radius_px);
   }
-  if (!feature_cache_.take(pair.cur->index, cur_features_)) {
+  cut_distance = std::numeric_limits<double>::quiet_NaN();  // the previous pair's, if any
+  if (!feature_cache_.take(pair.cur->index, cur_features_, cut_distance)) {
     cur_features_.compute(pair.cur->index, pair.cur->gray, pair.cur->bgr,
                           params_.window_radius_px);
   }
 
-  if (shot_active_ && is_cut(pair)) {
+  if (shot_active_ && is_cut(pair, cut_distance)) {
     end_shot(pair);
     result.cut = true;
     return result;
@@ -120,15 +134,13 @@ void DriftTracker::finish() {
   }
 }
 
-bool DriftTracker::is_cut(const FramePair& pair) {
+bool DriftTracker::is_cut(const FramePair& pair, double distance) {
   // A cut: the flow finds almost no consistent correspondence AND the
   // picture's gray-level distribution changes a lot (a fast pan keeps its
   // histogram; common practice in shot-boundary detection).
   if (pair.valid_fraction >= params_.cut_valid_fraction) return false;
-  gray_histogram(pair.prev->gray, hist_prev_);
-  gray_histogram(pair.cur->gray, hist_cur_);
-  return cv::compareHist(hist_prev_, hist_cur_, cv::HISTCMP_BHATTACHARYYA) >
-         params_.cut_histogram_distance;
+  if (std::isnan(distance)) distance = histogram_distance(pair);
+  return distance > params_.cut_histogram_distance;
 }
 
 void DriftTracker::start_shot(const FramePair& pair) {

@@ -16,6 +16,7 @@
 
 #include <opencv2/core.hpp>
 
+#include "analyzer/color/color_space.h"
 #include "analyzer/drift/drift_params.h"
 #include "analyzer/drift/feature_cache.h"
 #include "analyzer/drift/frame_features.h"
@@ -37,7 +38,8 @@ struct AppearanceSums {
   OrientationHistogram ref_hist{}, cur_hist{};
   float ref_mass = 0;
   int count = 0;
-  void add(const TrackPoint& p, const cv::Vec3f& predicted, const cv::Vec3f& cur,
+  // `predicted` and `cur` in CIELAB (converted once per point, by the caller).
+  void add(const TrackPoint& p, const color::Lab& predicted, const color::Lab& cur,
            const OrientationHistogram& hist);
 };
 
@@ -115,7 +117,8 @@ class DriftTracker {
   static float last_size_pct(const ObjectTrack& object);
   float size_change_over_window(const ObjectTrack& object, const ObjectSample& now) const;
   bool point_present(const TrackPoint& point, const GrayFit& fit) const;
-  bool is_cut(const FramePair& pair);
+  // `histogram_distance` as prepared, or NaN to compute it here.
+  bool is_cut(const FramePair& pair, double histogram_distance);
   void mark_covered_nodes(const NodeGrid& grid, cv::Mat& covered) const;
   int active_count() const;
 
@@ -146,7 +149,7 @@ class DriftTracker {
   std::vector<float> ratios_;
   AppearanceSums all_, interior_;
   MotionMasks motion_masks_;
-  cv::Mat covered_nodes_, hist_prev_, hist_cur_;
+  cv::Mat covered_nodes_;
 };
 
 }  // namespace framelint::drift

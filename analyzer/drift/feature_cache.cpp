@@ -12,7 +12,7 @@ constexpr size_t kMaxSpare = 8;
 }  // namespace
 
 void FeatureCache::prepare(int64_t frame_index, const cv::Mat& gray, const cv::Mat& bgr,
-                           int window_radius) {
+                           int window_radius, double cut_distance) {
   FrameFeatures features;
   {
     std::lock_guard lock(mutex_);
@@ -23,22 +23,23 @@ void FeatureCache::prepare(int64_t frame_index, const cv::Mat& gray, const cv::M
   }
   features.compute(frame_index, gray, bgr, window_radius);
   std::lock_guard lock(mutex_);
-  ready_.push_back(std::move(features));
+  ready_.push_back(Entry{std::move(features), cut_distance});
 }
 
-bool FeatureCache::take(int64_t frame_index, FrameFeatures& into) {
+bool FeatureCache::take(int64_t frame_index, FrameFeatures& into, double& cut_distance) {
   std::lock_guard lock(mutex_);
   bool found = false;
   for (auto it = ready_.begin(); it != ready_.end();) {
-    if (it->frame_index() > frame_index) {
+    if (it->features.frame_index() > frame_index) {
       ++it;
       continue;
     }
-    if (it->frame_index() == frame_index && !found) {
-      std::swap(into, *it);
+    if (it->features.frame_index() == frame_index && !found) {
+      std::swap(into, it->features);
+      cut_distance = it->cut_distance;
       found = true;
     }
-    if (spare_.size() < kMaxSpare) spare_.push_back(std::move(*it));
+    if (spare_.size() < kMaxSpare) spare_.push_back(std::move(it->features));
     it = ready_.erase(it);
   }
   return found;

@@ -30,9 +30,8 @@ bool valid_at(const cv::Mat& valid, cv::Point2f p) {
 
 }  // namespace
 
-void AppearanceSums::add(const TrackPoint& p, const cv::Vec3f& predicted, const cv::Vec3f& cur,
+void AppearanceSums::add(const TrackPoint& p, const color::Lab& lp, const color::Lab& lc,
                          const OrientationHistogram& hist) {
-  const color::Lab lp = lab_of(predicted), lc = lab_of(cur);
   pred[0] += lp.l, pred[1] += lp.a, pred[2] += lp.b;
   now[0] += lc.l, now[1] += lc.a, now[2] += lc.b;
   for (int k = 0; k < kOrientationBins; ++k) ref_hist[k] += p.ref_hist[k], cur_hist[k] += hist[k];
@@ -213,13 +212,12 @@ void DriftTracker::observe_points(const FramePair& pair, ObjectTrack& object, Po
       ++counts.revealed;  // new content at its place: nothing visible before covers it
       continue;
     }
-    const cv::Vec3f predicted = illumination_cur_.apply(p.ref_rgb);
-    const cv::Vec3f cur = cur_features_.colour(p.pos);
+    const color::Lab predicted = lab_of(illumination_cur_.apply(p.ref_rgb));
+    const color::Lab cur = lab_of(cur_features_.colour(p.pos));
     p.present = point_present(p, fit);
     if (was_hidden) {
       // Re-acquired only when both its gray pattern and its colour match.
-      const bool colour_match = color::ciede2000(lab_of(predicted), lab_of(cur)) <
-                                params_.reacquire_colour_de00;
+      const bool colour_match = color::ciede2000(predicted, cur) < params_.reacquire_colour_de00;
       if (!p.present || !colour_match) {
         ++counts.covered;  // something that was visible before is in front of it
         continue;

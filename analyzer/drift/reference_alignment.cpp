@@ -53,9 +53,14 @@ bool align_to_reference(const cv::Mat& gray, std::span<const cv::Point2f> positi
       const double qx = (positions[i].x - centre.x) / radius, qy = (positions[i].y - centre.y) / radius;
       const cv::Vec<double, kParams> j(gx, gy, gx * qx + gy * qy, -gx * qy + gy * qx,
                                        -templates[i], -1.0);
-      h += w * (j * j.t());
+      // Upper triangle only (mirrored below): j_a j_b = j_b j_a exactly, so
+      // the sums are those of the full outer product.
+      for (int a = 0; a < kParams; ++a)
+        for (int b = a; b < kParams; ++b) h(a, b) += w * (j[a] * j[b]);
       g += w * res * j;
     }
+    for (int a = 0; a < kParams; ++a)
+      for (int b = 0; b < a; ++b) h(a, b) = h(b, a);
     // Levenberg damping keeps untextured objects where the flow put them.
     for (int d = 0; d < 4; ++d) h(d, d) += 1e-3 * h(d, d) + 1e-9;
     // A prior holds the gain near 1: with the gain free, shrinking every
