@@ -1,6 +1,8 @@
 #include "analyzer/drift/frame_features.h"
 
+#include <algorithm>
 #include <cmath>
+#include <iterator>
 
 #include <opencv2/imgproc.hpp>
 
@@ -8,6 +10,20 @@
 #include "analyzer/drift/sampling.h"
 
 namespace framelint::drift {
+namespace {
+
+// std::floor for the bin positions here (|v| <= 2 * kOrientationBins):
+// without SSE4.1 in the target, std::floor is a library call, and this
+// loop runs for every sample of every followed point on the serial path.
+// Equal to std::floor for every |v| < 2^31 (a zero's sign may differ,
+// which changes no sum below); larger or NaN values go to std::floor.
+inline float floor_of(float v) {
+  if (!(std::abs(v) < 1e9f)) return std::floor(v);
+  const float t = static_cast<float>(static_cast<int>(v));  // toward zero
+  return t > v ? t - 1.0f : t;
+}
+
+}  // namespace
 
 void FrameFeatures::compute(int64_t frame_index, const cv::Mat& gray, const cv::Mat& bgr,
                             int window_radius) {
@@ -30,13 +46,15 @@ float FrameFeatures::gray(cv::Point2f p) const { return sample_gray(window_gray_
 
 float FrameFeatures::local_histogram(cv::Point2f p, int radius, int stride, float rotation_rad,
                                      OrientationHistogram& out) const {
-  out.fill(0.f);
   const int cx = static_cast<int>(std::lround(p.x));
   const int cy = static_cast<int>(std::lround(p.y));
   const int x0 = std::max(0, cx - radius), x1 = std::min(magnitude_.cols - 1, cx + radius);
   const int y0 = std::max(0, cy - radius), y1 = std::min(magnitude_.rows - 1, cy + radius);
   constexpr float kBinsPerRad = kOrientationBins / (2.0f * static_cast<float>(M_PI));
   const float shift = rotation_rad * kBinsPerRad;
+  // Summed in a local array: stores to `out` could alias the planes' rows
+  // (both float) and would keep the compiler from holding the sums.
+  float bins[kOrientationBins] = {};
   float total = 0;
   for (int y = y0; y <= y1; y += stride) {
     const float* mag = magnitude_.ptr<float>(y);
@@ -45,14 +63,16 @@ float FrameFeatures::local_histogram(cv::Point2f p, int radius, int stride, floa
       const float m = mag[x];
       if (m <= 0) continue;
       float pos = ang[x] * kBinsPerRad - shift;
-      pos -= kOrientationBins * std::floor(pos / kOrientationBins);
+      pos -= kOrientationBins * floor_of(pos / kOrientationBins);
       const int lo = static_cast<int>(pos) % kOrientationBins;
-      const float frac = pos - std::floor(pos);
-      out[lo] += m * (1.0f - frac);
-      out[(lo + 1) % kOrientationBins] += m * frac;
+      const int hi = lo + 1 == kOrientationBins ? 0 : lo + 1;
+      const float frac = pos - floor_of(pos);
+      bins[lo] += m * (1.0f - frac);
+      bins[hi] += m * frac;
       total += m;
     }
   }
+  std::copy(std::begin(bins), std::end(bins), out.begin());
   return total;
 }
 

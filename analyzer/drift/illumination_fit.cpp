@@ -24,26 +24,27 @@ bool usable(float ref, float cur) {
 }
 
 ChannelAffine fit_channel(std::span<const cv::Vec3f> ref, std::span<const cv::Vec3f> cur, int c,
-                          std::vector<float>& scratch, int min_samples) {
+                          std::vector<float>& scratch, std::vector<cv::Vec2f>& samples,
+                          int min_samples) {
+  // The usable (reference, current) values of the channel, in input order,
+  // gathered once for all iterations.
+  samples.clear();
+  for (size_t i = 0; i < ref.size(); ++i) {
+    if (usable(ref[i][c], cur[i][c])) samples.emplace_back(ref[i][c], cur[i][c]);
+  }
   // Start from a pure offset (median difference), robust to outliers.
   scratch.clear();
-  for (size_t i = 0; i < ref.size(); ++i) {
-    if (usable(ref[i][c], cur[i][c])) scratch.push_back(cur[i][c] - ref[i][c]);
-  }
+  for (const cv::Vec2f& s : samples) scratch.push_back(s[1] - s[0]);
   if (static_cast<int>(scratch.size()) < min_samples) return {};
   ChannelAffine fit{1.0f, median_in_place(scratch)};
   for (int iter = 0; iter < kIterations; ++iter) {
     scratch.clear();
-    for (size_t i = 0; i < ref.size(); ++i) {
-      if (!usable(ref[i][c], cur[i][c])) continue;
-      scratch.push_back(std::abs(cur[i][c] - (fit.gain * ref[i][c] + fit.offset)));
-    }
+    for (const cv::Vec2f& s : samples) scratch.push_back(std::abs(s[1] - (fit.gain * s[0] + fit.offset)));
     const float scale = std::max(kMinScale, 1.4826f * median_in_place(scratch));
     const float cutoff = kTukeyC * scale;
     double sw = 0, sx = 0, sy = 0, sxx = 0, sxy = 0;
-    for (size_t i = 0; i < ref.size(); ++i) {
-      const float x = ref[i][c], y = cur[i][c];
-      if (!usable(x, y)) continue;
+    for (const cv::Vec2f& s : samples) {
+      const float x = s[0], y = s[1];
       const float u = (y - (fit.gain * x + fit.offset)) / cutoff;
       if (std::abs(u) >= 1) continue;
       const double w = (1 - u * u) * (1 - u * u);
@@ -87,8 +88,10 @@ IlluminationMap fit_illumination(std::span<const cv::Vec3f> reference,
                                  int min_samples) {
   IlluminationMap map;
   const size_t n = std::min(reference.size(), current.size());
+  thread_local std::vector<cv::Vec2f> samples;  // reused: no allocation per frame
   for (int c = 0; c < 3; ++c) {
-    map.channel[c] = fit_channel(reference.first(n), current.first(n), c, scratch, min_samples);
+    map.channel[c] =
+        fit_channel(reference.first(n), current.first(n), c, scratch, samples, min_samples);
   }
   return map;
 }
