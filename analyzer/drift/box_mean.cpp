@@ -28,7 +28,9 @@ struct Divider {
     exact = t_max * e < (1ull << kShift) && t_max * m < (1ull << 32);
   }
   // round(sum / count) = floor((sum + (count - 1) / 2) / count) for odd count.
-  uint8_t operator()(uint32_t sum) const { return static_cast<uint8_t>(((sum + half) * m) >> kShift); }
+  uint8_t operator()(uint32_t sum) const {
+    return static_cast<uint8_t>(((sum + half) * m) >> kShift);
+  }
 };
 
 }  // namespace

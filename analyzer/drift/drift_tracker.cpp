@@ -57,7 +57,8 @@ bool followable(const FramePair& pair) {
 void DriftTracker::prepare(const FramePair& pair) const {
   if (!followable(pair)) return;
   // The same radius as step() uses: params_ is a function of the frame size.
-  const DriftParams params = DriftParams::for_frame(pair.cur->bgr.cols, pair.cur->bgr.rows, max_objects_);
+  const DriftParams params =
+      DriftParams::for_frame(pair.cur->bgr.cols, pair.cur->bgr.rows, max_objects_);
   // The histogram distance is needed only where the flow fails (is_cut).
   const double cut_distance = pair.valid_fraction < params.cut_valid_fraction
                                   ? histogram_distance(pair)
@@ -84,8 +85,7 @@ FrameDrift DriftTracker::step(const FramePair& pair) {
   }
   cut_distance = std::numeric_limits<double>::quiet_NaN();  // the previous pair's, if any
   if (!feature_cache_.take(pair.cur->index, cur_features_, cut_distance)) {
-    cur_features_.compute(pair.cur->index, pair.cur->gray, pair.cur->bgr,
-                          params_.window_radius_px);
+    cur_features_.compute(pair.cur->index, pair.cur->gray, pair.cur->bgr, params_.window_radius_px);
   }
 
   if (shot_active_ && is_cut(pair, cut_distance)) {

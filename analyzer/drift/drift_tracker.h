@@ -130,7 +130,8 @@ class DriftTracker {
   double last_proposal_t_s_ = 0;
 
   FrameFeatures prev_features_, cur_features_;
-  mutable FeatureCache feature_cache_;  // filled by prepare(), emptied by step()
+  // Filled by prepare() (any thread), emptied by step().
+  mutable FeatureCache feature_cache_;
   cv::Matx33d camera_path_prev_ = cv::Matx33d::eye();  // shot start -> previous frame
   cv::Matx33d camera_path_cur_ = cv::Matx33d::eye();
   IlluminationMap illumination_prev_, illumination_cur_;

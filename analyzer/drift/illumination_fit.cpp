@@ -39,7 +39,8 @@ ChannelAffine fit_channel(std::span<const cv::Vec3f> ref, std::span<const cv::Ve
   ChannelAffine fit{1.0f, median_in_place(scratch)};
   for (int iter = 0; iter < kIterations; ++iter) {
     scratch.clear();
-    for (const cv::Vec2f& s : samples) scratch.push_back(std::abs(s[1] - (fit.gain * s[0] + fit.offset)));
+    for (const cv::Vec2f& s : samples)
+      scratch.push_back(std::abs(s[1] - (fit.gain * s[0] + fit.offset)));
     const float scale = std::max(kMinScale, 1.4826f * median_in_place(scratch));
     const float cutoff = kTukeyC * scale;
     double sw = 0, sx = 0, sy = 0, sxx = 0, sxy = 0;
