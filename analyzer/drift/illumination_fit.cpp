@@ -97,8 +97,8 @@ IlluminationMap fit_illumination(std::span<const cv::Vec3f> reference,
   thread_local std::vector<cv::Vec2f> samples;
   thread_local std::vector<float> bracket;
   for (int c = 0; c < 3; ++c) {
-    map.channel[c] = fit_channel(reference.first(n), current.first(n), c, scratch, samples,
-                                 bracket, min_samples);
+    map.channel[c] = fit_channel(reference.first(n), current.first(n), c, scratch, samples, bracket,
+                                 min_samples);
   }
   return map;
 }

@@ -30,8 +30,13 @@ TEST(DriftMedianSelect, SameValueAsNthElementForAnyHint) {
       x = ties ? static_cast<float>(rng.uniform(0, 6)) * 0.01f : std::abs(rng.gaussian(0.02));
     }
     const float expected = reference_median(v);
-    const float hints[] = {-1.0f,           0.0f,           expected,       expected * 0.8f,
-                           expected * 1.25f, expected * 0.5f, expected * 3.0f,
+    const float hints[] = {-1.0f,
+                           0.0f,
+                           expected,
+                           expected * 0.8f,
+                           expected * 1.25f,
+                           expected * 0.5f,
+                           expected * 3.0f,
                            static_cast<float>(rng.uniform(0.0, 0.05))};
     for (const float hint : hints) {
       std::vector<float> copy = v;
