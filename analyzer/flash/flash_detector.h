@@ -44,6 +44,7 @@
 
 #include <opencv2/core.hpp>
 
+#include "analyzer/flash/cell_means.h"
 #include "analyzer/flash/swing_tracker.h"
 
 namespace framelint::flash {
@@ -88,6 +89,10 @@ class FlashDetector {
   // linearised sRGB values of the "relative luminance" definition).
   FlashFrame add_frame(double t_s, const cv::Mat& luminance, const cv::Mat& linear_bgr);
 
+  // The same from the frame's cell means on grid() (cell_means.h), which a
+  // caller can compute elsewhere (the flash metric does so concurrently).
+  FlashFrame add_cells(double t_s, const CellMeans& cells);
+
   cv::Size grid() const { return grid_; }
   cv::Size field() const { return field_; }
 
@@ -101,6 +106,11 @@ class FlashDetector {
   struct Kind {
     SwingRule rule;
     std::vector<SwingTracker> trackers;
+    // Per cell, the samples its tracker certainly ignores (quiet_range):
+    // most cells skip update() on most frames.
+    std::vector<float> quiet_lo, quiet_hi;
+    // Cells that went up / down in this frame and the one before.
+    int ups = 0, downs = 0, previous_ups = 0, previous_downs = 0;
     cv::Mat direction, previous_direction;  // CV_8SC1: +1 up, -1 down, 0
     cv::Mat previous_credited;              // CV_8UC1
     cv::Mat transitions;                    // CV_32SC1
@@ -108,6 +118,7 @@ class FlashDetector {
     std::deque<Stamped> window;
   };
   void init(Kind& k, const SwingRule& rule);
+  void follow_cells(const CellMeans& cells);
   void credit_concurrent(Kind& k, double t_s);
   void push(Kind& k, Stamped&& s);
   void expire(Kind& k, double t_s);
@@ -117,7 +128,9 @@ class FlashDetector {
   Kind general_, red_;
   double previous_t_s_ = 0;
   bool has_previous_ = false;
-  cv::Mat luminance_cells_, colour_cells_, flash_counts_;  // scratch
+  CellMeans cells_;       // scratch of add_frame
+  cv::Mat flash_counts_;  // scratch
+  std::vector<int32_t> flags_;  // scratch: a row's cells to update
 };
 
 }  // namespace framelint::flash

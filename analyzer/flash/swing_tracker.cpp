@@ -65,4 +65,28 @@ Swing SwingTracker::update(const SwingSample& s, const SwingRule& rule) {
   return dir_;
 }
 
+// Why these samples change nothing. Before the first swing, a sample within
+// [lowest, highest] moves neither, and rise and fall are at most the range,
+// which has not met the size (or a swing would have begun): update returns
+// before the report check. Inside a swing, a sample that does not go beyond
+// the extreme and comes back by less than the size changes no state; the
+// report check then gives what it gave at the previous sample (every change
+// of state ends in that check), i.e. nothing new. The comeback bound is
+// checked with size_met itself, so float rounding cannot make it wrong:
+// size_met is monotonic and so is the rounded difference.
+void SwingTracker::quiet_range(const SwingRule& rule, float& lo, float& hi) const {
+  lo = 1.0f, hi = 0.0f;  // empty
+  if (!started_) return;
+  const float margin = 0.99f * rule.min_change;
+  if (dir_ == Swing::none) {
+    if (!size_met(extreme_ - origin_, rule)) lo = origin_, hi = extreme_;
+  } else if (dir_ == Swing::up) {
+    const float bound = extreme_ - margin;
+    if (bound <= extreme_ && !size_met(extreme_ - bound, rule)) lo = bound, hi = extreme_;
+  } else {
+    const float bound = extreme_ + margin;
+    if (bound >= extreme_ && !size_met(bound - extreme_, rule)) lo = extreme_, hi = bound;
+  }
+}
+
 }  // namespace framelint::flash

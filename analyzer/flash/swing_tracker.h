@@ -52,6 +52,11 @@ class SwingTracker {
   float origin() const { return origin_; }
   float extreme() const { return extreme_; }
 
+  // Samples in [lo, hi] certainly leave the tracker as it is and report
+  // nothing, so a caller may skip update() for them (the flash grid's cells
+  // are quiet most of the time). Empty (lo > hi) before the first sample.
+  void quiet_range(const SwingRule& rule, float& lo, float& hi) const;
+
  private:
   bool qualifies(const SwingRule& rule) const;
 

@@ -12,7 +12,7 @@
 
 #include <opencv2/core.hpp>
 
-#include "analyzer/color/relative_luminance.h"
+#include "analyzer/flash/cell_means.h"
 #include "analyzer/flash/flash_detector.h"
 #include "analyzer/metrics/flash_metric.h"
 #include "analyzer/metrics/metric.h"
@@ -32,15 +32,18 @@ class FlashMetric final : public Metric {
   std::vector<std::string> columns() const override { return {"flash"}; }
   bool needs_in_order() const override { return true; }
 
-  // All the work is serial: every frame feeds the per-cell trackers in turn.
-  void measure_pair(const FramePair&, std::span<double>) const override {}
+  // The per-pixel part, the cell means of the current frame, is computed
+  // here, concurrently; the per-cell trackers follow the frames serially.
+  void measure_pair(const FramePair& pair, std::span<double>) const override {
+    cells_of(*pair.cur, pair.scratch.slot<flash::CellMeans>(this));
+  }
 
   void observe_in_order(const FramePair& pair, std::span<double> out) override {
     if (!detector_) {
       detector_.emplace(pair.prev->bgr.size());
-      add(*pair.prev);
+      add(*pair.prev, first_cells_);
     }
-    out[0] = add(*pair.cur);
+    out[0] = add(*pair.cur, pair.scratch.slot<flash::CellMeans>(this));
   }
 
   void finish(Report& report) override {
@@ -56,15 +59,22 @@ class FlashMetric final : public Metric {
   }
 
  private:
-  double add(const FramePlanes& frame) {
-    // Linear-light colour for the red rule: the linearised R, G, B of the
-    // "relative luminance" definition, from the same table as luminance.
-    if (lut_.empty()) {
-      const auto& table = srgb8_to_linear_table();
-      lut_ = cv::Mat(1, 256, CV_32FC1, const_cast<float*>(table.data())).clone();
-    }
-    cv::LUT(frame.bgr, lut_, linear_bgr_);
-    frames_.push_back(detector_->add_frame(frame.t_s, frame.luminance, linear_bgr_));
+  // Linear-light colour for the red rule: the linearised R, G, B of the
+  // "relative luminance" definition, from the same table as luminance.
+  static void cells_of(const FramePlanes& frame, flash::CellMeans& cells) {
+    const cv::Size grid = flash::flash_grid(frame.bgr.size(), flash::kGridCellsPerAxis);
+    flash::compute_cell_means(frame.luminance, frame.bgr, grid, cells);
+    cells.frame_index = frame.index;
+    cells.t_s = frame.t_s;
+  }
+
+  // `cells` may hold another frame's means (see PairScratch): then they are
+  // computed here.
+  double add(const FramePlanes& frame, flash::CellMeans& cells) {
+    if (cells.frame_index != frame.index || cells.t_s != frame.t_s ||
+        cells.luminance.size() != detector_->grid())
+      cells_of(frame, cells);
+    frames_.push_back(detector_->add_cells(frame.t_s, cells));
     return frames_.back().flashes();
   }
 
@@ -166,7 +176,7 @@ class FlashMetric final : public Metric {
 
   std::optional<flash::FlashDetector> detector_;
   std::vector<flash::FlashFrame> frames_;
-  cv::Mat lut_, linear_bgr_;
+  flash::CellMeans first_cells_;  // frame 0's
 };
 
 }  // namespace
