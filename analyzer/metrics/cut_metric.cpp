@@ -15,13 +15,32 @@
 namespace framelint {
 namespace {
 
+// The 8x8x8 histogram cv::calcHist gives for channels {0, 1, 2}, 8 bins
+// each over [0, 256): bin = value / 32 per channel, counts as floats in a
+// 3-D CV_32F array (calcHist counts 8-bit images in integers and converts),
+// so compareHist reads exactly the same numbers. One pass with a 512-entry
+// count table instead of calcHist's general machinery.
 cv::Mat colour_histogram(const cv::Mat& bgr) {
-  static const int channels[] = {0, 1, 2};
+  CV_Assert(bgr.type() == CV_8UC3);
+  // Four tables for pixels in turn: neighbours often share a bin, and one
+  // table would make each count wait for the one before.
+  int counts[4][512] = {};
+  auto bin = [](const uint8_t* p) { return (p[0] >> 5) << 6 | (p[1] >> 5) << 3 | p[2] >> 5; };
+  for (int y = 0; y < bgr.rows; ++y) {
+    const uint8_t* p = bgr.ptr<uint8_t>(y);
+    int x = 0;
+    for (; x + 3 < bgr.cols; x += 4, p += 12) {
+      ++counts[0][bin(p)];
+      ++counts[1][bin(p + 3)];
+      ++counts[2][bin(p + 6)];
+      ++counts[3][bin(p + 9)];
+    }
+    for (; x < bgr.cols; ++x, p += 3) ++counts[0][bin(p)];
+  }
   static const int bins[] = {8, 8, 8};
-  static const float range[] = {0, 256};
-  static const float* ranges[] = {range, range, range};
-  cv::Mat hist;
-  cv::calcHist(&bgr, 1, channels, cv::noArray(), hist, 3, bins, ranges);
+  cv::Mat hist(3, bins, CV_32F);
+  float* h = hist.ptr<float>();
+  for (int i = 0; i < 512; ++i) h[i] = static_cast<float>(counts[0][i] + counts[1][i] + counts[2][i] + counts[3][i]);
   return hist;
 }
 
