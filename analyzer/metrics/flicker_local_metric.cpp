@@ -37,14 +37,20 @@ class FlickerLocalMetric final : public Metric {
  public:
   std::vector<std::string> columns() const override { return {"flicker_local"}; }
   bool needs_in_order() const override { return true; }
-  void measure_pair(const FramePair&, std::span<double>) const override {}
+  // The block changes need only this pair: computed here, concurrently;
+  // only the pulse tracking follows the frames in order.
+  void measure_pair(const FramePair& pair, std::span<double>) const override {
+    BlockChanges& c = pair.scratch.slot<BlockChanges>(this);
+    c.changes = changes_of(pair);
+    c.frame_index = pair.cur->index;
+    c.t_s = pair.cur->t_s;
+  }
 
   void observe_in_order(const FramePair& pair, std::span<double>) override {
-    std::vector<float> changes =
-        block_luminance_changes(pair.cur->luminance, pair.warped_prev_luminance, pair.valid,
-                                kGridCols, kGridRows, kDarkLevelFloor);
-    remove_common_change(changes);
-    tracker_.add(pair.cur->index, pair.cur->t_s, changes);
+    BlockChanges& c = pair.scratch.slot<BlockChanges>(this);
+    if (c.frame_index != pair.cur->index || c.t_s != pair.cur->t_s) c.changes = changes_of(pair);
+    c.frame_index = -1;  // used
+    tracker_.add(pair.cur->index, pair.cur->t_s, c.changes);
     block_size_ = {pair.cur->luminance.cols / kGridCols, pair.cur->luminance.rows / kGridRows};
   }
 
@@ -65,6 +71,20 @@ class FlickerLocalMetric final : public Metric {
   }
 
  private:
+  struct BlockChanges {
+    std::vector<float> changes;
+    int64_t frame_index = -1;  // which frame's changes it holds; -1: none
+    double t_s = 0;
+  };
+
+  static std::vector<float> changes_of(const FramePair& pair) {
+    std::vector<float> changes =
+        block_luminance_changes(pair.cur->luminance, pair.warped_prev_luminance, pair.valid,
+                                kGridCols, kGridRows, kDarkLevelFloor);
+    remove_common_change(changes);
+    return changes;
+  }
+
   nlohmann::json details(const std::vector<Pulse>& pulses, const std::vector<int>& blocks_pulsing) const {
     struct BlockSummary {
       int pulses = 0;
