@@ -13,14 +13,19 @@ namespace {
 // brightness pulse lifts or lowers a whole region, while a mouth opening or
 // an object turning changes part of a block and leaves the rest.
 float uniform_change(std::vector<float>& diffs) {
-  const auto at = [&](size_t k) {
-    std::nth_element(diffs.begin(), diffs.begin() + k, diffs.end());
+  // Order statistics by partial sorting. Once the median's place is fixed,
+  // the n/2 values before it are the n/2 smallest, so the lower quartile is
+  // found among them alone (and the upper among those after it); for tiny
+  // n a quartile may fall on the median's own place.
+  const auto at = [&](size_t k, size_t from, size_t to) {
+    if (k < from || k >= to) return diffs[k];
+    std::nth_element(diffs.begin() + from, diffs.begin() + k, diffs.begin() + to);
     return diffs[k];
   };
   const size_t n = diffs.size();
-  const float median = at(n / 2);
-  if (median > 0) return at(n / 4) > 0 ? median : 0.0f;
-  if (median < 0) return at(n - 1 - n / 4) < 0 ? median : 0.0f;
+  const float median = at(n / 2, 0, n);
+  if (median > 0) return at(n / 4, 0, n / 2) > 0 ? median : 0.0f;
+  if (median < 0) return at(n - 1 - n / 4, n / 2 + 1, n) < 0 ? median : 0.0f;
   return 0.0f;
 }
 
