@@ -45,46 +45,80 @@ class WarpErrorLongMetric final : public Metric {
 
   std::vector<std::string> columns() const override { return {"warp_error_long"}; }
   bool needs_in_order() const override { return true; }
-  void measure_pair(const FramePair&, std::span<double>) const override {}
+  // The copies the rings keep are made here, concurrently, into the pair's
+  // scratch; observe_in_order swaps them in.
+  void measure_pair(const FramePair& pair, std::span<double>) const override {
+    Copies& c = pair.scratch.slot<Copies>(this);
+    pair.flow_backward.copyTo(c.flow);
+    pair.valid.copyTo(c.valid);
+    pair.cur->bgr.copyTo(c.bgr);
+    c.frame_index = pair.cur->index;
+    c.t_s = pair.cur->t_s;
+  }
 
   void observe_in_order(const FramePair& pair, std::span<double> out) override {
     // Rings of the last k pairs' flows and the last k+1 frames; buffers are
-    // reused, nothing is allocated once they are filled.
+    // swapped with the pair's scratch and reused, nothing is allocated once
+    // they are filled.
     if (seen_ == 0) pair.prev->bgr.copyTo(frames_[0]);
     ++seen_;
     Step& step = steps_[(seen_ - 1) % k_];
-    pair.flow_backward.copyTo(step.flow);
-    pair.valid.copyTo(step.valid);
-    pair.cur->bgr.copyTo(frames_[seen_ % (k_ + 1)]);
+    cv::Mat& newest = frames_[seen_ % (k_ + 1)];
+    Copies& c = pair.scratch.slot<Copies>(this);
+    if (c.frame_index == pair.cur->index && c.t_s == pair.cur->t_s) {
+      std::swap(step.flow, c.flow);
+      std::swap(step.valid, c.valid);
+      std::swap(newest, c.bgr);
+      c.frame_index = -1;  // taken
+    } else {
+      pair.flow_backward.copyTo(step.flow);
+      pair.valid.copyTo(step.valid);
+      pair.cur->bgr.copyTo(newest);
+    }
     if (seen_ < k_) return;  // stays undefined for the first k frames
 
     const cv::Mat& cur = pair.cur->bgr;
     const cv::Mat& oldest = frames_[(seen_ - k_) % (k_ + 1)];
+    // The k steps, newest first: (seen_-1) % k_, then older ones.
+    chain_.resize(k_);
+    for (int j = 0; j < k_; ++j) chain_[j] = &steps_[(seen_ - 1 - j) % k_];
     const float max_x = static_cast<float>(cur.cols - 1), max_y = static_cast<float>(cur.rows - 1);
-    double sum = 0;
-    uint64_t count = 0;
+    auto inside = [&](float px, float py) { return px >= 0 && py >= 0 && px <= max_x && py <= max_y; };
+    // Walk back, one step at a time for all points (each step's flow stays
+    // in cache). The first step starts on the grid point itself; a step that
+    // fails the check or leaves the frame drops the point. The list keeps
+    // raster order, so the sum below adds in the same order as point by point.
+    points_.clear();
     for (int y = 0; y < cur.rows; y += kGridStep) {
+      const uint8_t* valid0 = chain_[0]->valid.ptr<uint8_t>(y);
+      const cv::Vec2f* flow0 = chain_[0]->flow.ptr<cv::Vec2f>(y);
       for (int x = 0; x < cur.cols; x += kGridStep) {
-        float px = static_cast<float>(x), py = static_cast<float>(y);
-        bool ok = true;
-        // Walk back: the newest step first, (seen_-1) % k_, then older ones.
-        for (int j = 0; j < k_ && ok; ++j) {
-          const Step& s = steps_[(seen_ - 1 - j) % k_];
-          const int ix = static_cast<int>(px + 0.5f), iy = static_cast<int>(py + 0.5f);
-          ok = s.valid.ptr<uint8_t>(iy)[ix] != 0;
-          const cv::Vec2f f = j == 0 ? s.flow.ptr<cv::Vec2f>(y)[x] : sample_flow(s.flow, px, py);
-          px += f[0];
-          py += f[1];
-          ok = ok && px >= 0 && py >= 0 && px <= max_x && py <= max_y;
-        }
-        if (!ok) continue;
-        const cv::Vec3b c = cur.ptr<cv::Vec3b>(y)[x];
-        const cv::Vec3f o = sample_bgr(oldest, px, py);
-        const float d0 = c[0] - o[0], d1 = c[1] - o[1], d2 = c[2] - o[2];
-        sum += d0 * d0 + d1 * d1 + d2 * d2;
-        ++count;
+        if (!valid0[x]) continue;
+        const float px = static_cast<float>(x) + flow0[x][0], py = static_cast<float>(y) + flow0[x][1];
+        if (inside(px, py)) points_.push_back({px, py, x, y});
       }
     }
+    for (int j = 1; j < k_; ++j) {
+      const Step& s = *chain_[j];
+      size_t kept = 0;
+      for (Point p : points_) {
+        const int ix = static_cast<int>(p.px + 0.5f), iy = static_cast<int>(p.py + 0.5f);
+        if (!s.valid.ptr<uint8_t>(iy)[ix]) continue;
+        const cv::Vec2f f = sample_flow(s.flow, p.px, p.py);
+        p.px += f[0];
+        p.py += f[1];
+        if (inside(p.px, p.py)) points_[kept++] = p;
+      }
+      points_.resize(kept);
+    }
+    double sum = 0;
+    for (const Point& p : points_) {
+      const cv::Vec3b c = cur.ptr<cv::Vec3b>(p.y)[p.x];
+      const cv::Vec3f o = sample_bgr(oldest, p.px, p.py);
+      const float d0 = c[0] - o[0], d1 = c[1] - o[1], d2 = c[2] - o[2];
+      sum += d0 * d0 + d1 * d1 + d2 * d2;
+    }
+    const uint64_t count = points_.size();
     if (count > 0) out[0] = sum / (255.0 * 255.0) / static_cast<double>(count);
   }
 
@@ -96,6 +130,11 @@ class WarpErrorLongMetric final : public Metric {
   }
 
  private:
+  struct Copies {
+    cv::Mat flow, valid, bgr;
+    int64_t frame_index = -1;  // which frame's copies it holds; -1: none
+    double t_s = 0;
+  };
   struct Step {
     cv::Mat flow;   // backward flow of one pair, in the later frame's coordinates
     cv::Mat valid;  // its forward-backward mask
@@ -104,6 +143,12 @@ class WarpErrorLongMetric final : public Metric {
   int64_t seen_ = 0;            // pairs observed
   std::vector<Step> steps_;     // ring of k
   std::vector<cv::Mat> frames_; // ring of k+1
+  std::vector<const Step*> chain_;  // the ring's steps, newest first (scratch)
+  struct Point {
+    float px, py;  // where the chain has reached
+    int x, y;      // grid point in the current frame
+  };
+  std::vector<Point> points_;  // scratch
 };
 
 }  // namespace
