@@ -4,7 +4,9 @@
 // instances each round) over the stored pairs: measure_pair and
 // observe_in_order, timed separately with the thread's CPU clock
 // (CLOCK_THREAD_CPUTIME_ID), so other processes on a shared machine do not
-// inflate the figures. Prints the minimum over the rounds.
+// inflate the figures. Prints the minimum over the rounds. As in the
+// pipeline, a few FramePair objects are reused in turn, so per-pair scratch
+// (FramePair::scratch) is reused rather than allocated for every pair.
 //
 //   framelint_metric_bench CLIP [--frames N] [--rounds R] [--only NAME]
 #include <time.h>
@@ -75,13 +77,22 @@ int main(int argc, char** argv) {
               planes.empty() ? 0 : planes[0]->bgr.rows, rounds);
   std::map<std::string, std::pair<double, double>> best;  // name -> (measure, in order)
   for (int r = 0; r < rounds; ++r) {
+    std::vector<FramePair> jobs(3);  // reused in turn, like the pipeline's jobs
+    auto job_for = [&](size_t i) -> const FramePair& {
+      FramePair& job = jobs[i % jobs.size()];
+      PairScratch keep = job.scratch;
+      job = pairs[i];  // Mat headers only
+      job.scratch = keep;
+      return job;
+    };
     auto metrics = make_metrics(settings);
     for (auto& m : metrics) {
       const std::string name = m->columns().front();
       if (!only.empty() && name != only) continue;
       std::vector<double> row(m->columns().size());
       double measure = 0, in_order = 0;
-      for (const FramePair& pair : pairs) {
+      for (size_t i = 0; i < pairs.size(); ++i) {
+        const FramePair& pair = job_for(i);
         std::fill(row.begin(), row.end(), kUndefined);
         double t0 = thread_ms();
         m->measure_pair(pair, row);
