@@ -142,16 +142,25 @@ class BoilingMetric final : public Metric {
   // scaled as convertTo(CV_32F, 1/255) scales it (a float product), then
   // subtracted. OpenCV's vectorized passes give exactly the values of a
   // per-element loop, at a fraction of the cost. `warped_scaled` is scratch.
+  // Done in bands of rows, so the scratch holds a band, not a frame.
   static void compute_residual(const cv::Mat& cur, const cv::Mat& warped, cv::Mat& residual,
                                cv::Mat& warped_scaled) {
-    cur.convertTo(residual, CV_32F, 1.0 / 255.0);
-    warped.convertTo(warped_scaled, CV_32F, 1.0 / 255.0);
-    cv::subtract(residual, warped_scaled, residual);
+    constexpr int kBand = 32;
+    residual.create(cur.size(), CV_32FC3);
+    warped_scaled.create(std::min(kBand, cur.rows), cur.cols, CV_32FC3);
+    for (int y = 0; y < cur.rows; y += kBand) {
+      const cv::Range rows(y, std::min(cur.rows, y + kBand));
+      cv::Mat out = residual.rowRange(rows);
+      cv::Mat band = warped_scaled.rowRange(0, rows.size());
+      cur.rowRange(rows).convertTo(out, CV_32F, 1.0 / 255.0);
+      warped.rowRange(rows).convertTo(band, CV_32F, 1.0 / 255.0);
+      cv::subtract(out, band, out);
+    }
   }
 
   struct Residual {
     cv::Mat values;  // CV_32FC3
-    cv::Mat warped_scaled;  // scratch of compute_residual
+    cv::Mat warped_scaled;  // scratch of compute_residual (one band)
     int64_t frame_index = -1;  // which frame's residual it holds; -1: none
     double t_s = 0;
   };
