@@ -31,6 +31,7 @@
 #include <vector>
 
 #include <nlohmann/json.hpp>
+#include <opencv2/core/utility.hpp>
 
 #include "analyzer/cli/args.h"
 #include "analyzer/cli/command.h"
@@ -225,6 +226,7 @@ std::vector<cli::OptionSpec> bench_specs() {
 }  // namespace
 
 int main(int argc, char** argv) {
+  cv::setNumThreads(1);  // as the framelint CLI does (analyzer/cli/main.cpp)
   std::vector<std::string> args(argv + 1, argv + argc);
   auto parsed = cli::parse_args(args, bench_specs());
   if (!parsed) {
