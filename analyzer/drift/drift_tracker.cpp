@@ -54,17 +54,25 @@ bool followable(const FramePair& pair) {
 
 }  // namespace
 
+// What prepare() leaves in a pair's scratch for step(): the features of the
+// pair's current frame and the pair's histogram distance.
+struct DriftTracker::PreparedFrame {
+  FrameFeatures features;
+  double cut_distance = std::numeric_limits<double>::quiet_NaN();
+};
+
 void DriftTracker::prepare(const FramePair& pair) const {
   if (!followable(pair)) return;
   // The same radius as step() uses: params_ is a function of the frame size.
   const DriftParams params =
       DriftParams::for_frame(pair.cur->bgr.cols, pair.cur->bgr.rows, max_objects_);
+  PreparedFrame& prepared = pair.scratch.slot<PreparedFrame>(this);
   // The histogram distance is needed only where the flow fails (is_cut).
-  const double cut_distance = pair.valid_fraction < params.cut_valid_fraction
-                                  ? histogram_distance(pair)
-                                  : std::numeric_limits<double>::quiet_NaN();
-  feature_cache_.prepare(pair.cur->index, pair.cur->gray, pair.cur->bgr, params.window_radius_px,
-                         cut_distance);
+  prepared.cut_distance = pair.valid_fraction < params.cut_valid_fraction
+                              ? histogram_distance(pair)
+                              : std::numeric_limits<double>::quiet_NaN();
+  prepared.features.compute(pair.cur->index, pair.cur->gray, pair.cur->bgr,
+                            params.window_radius_px);
 }
 
 FrameDrift DriftTracker::step(const FramePair& pair) {
@@ -74,17 +82,21 @@ FrameDrift DriftTracker::step(const FramePair& pair) {
     params_ = DriftParams::for_frame(pair.cur->bgr.cols, pair.cur->bgr.rows, max_objects_);
     params_ready_ = true;
   }
-  // Features of the previous frame are normally those computed as "current"
-  // one step earlier; those of the current frame were normally prepared.
+  // Features of the previous frame are those of "current" one step earlier
+  // (computed here only for the first pair); those of the current frame were
+  // normally prepared in the pair's scratch. Swapping them in hands the
+  // scratch the old buffers for reuse.
   std::swap(prev_features_, cur_features_);
-  double cut_distance = std::numeric_limits<double>::quiet_NaN();
-  if (prev_features_.frame_index() != pair.prev->index &&
-      !feature_cache_.take(pair.prev->index, prev_features_, cut_distance)) {
+  if (prev_features_.frame_index() != pair.prev->index) {
     prev_features_.compute(pair.prev->index, pair.prev->gray, pair.prev->bgr,
                            params_.window_radius_px);
   }
-  cut_distance = std::numeric_limits<double>::quiet_NaN();  // the previous pair's, if any
-  if (!feature_cache_.take(pair.cur->index, cur_features_, cut_distance)) {
+  double cut_distance = std::numeric_limits<double>::quiet_NaN();
+  PreparedFrame& prepared = pair.scratch.slot<PreparedFrame>(this);
+  if (prepared.features.frame_index() == pair.cur->index) {
+    std::swap(cur_features_, prepared.features);
+    cut_distance = prepared.cut_distance;
+  } else {
     cur_features_.compute(pair.cur->index, pair.cur->gray, pair.cur->bgr, params_.window_radius_px);
   }
 

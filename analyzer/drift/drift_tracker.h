@@ -18,7 +18,6 @@
 
 #include "analyzer/color/color_space.h"
 #include "analyzer/drift/drift_params.h"
-#include "analyzer/drift/feature_cache.h"
 #include "analyzer/drift/frame_features.h"
 #include "analyzer/drift/illumination_fit.h"
 #include "analyzer/drift/object_track.h"
@@ -80,10 +79,10 @@ class DriftTracker {
  public:
   explicit DriftTracker(int max_objects);
 
-  // Computes the features of the pair's current frame ahead of step();
-  // depends on the pair only, so it may run on any thread, for several
-  // pairs at once (Metric::measure_pair). Optional: step() computes
-  // whatever was not prepared.
+  // Computes the features of the pair's current frame ahead of step() into
+  // the pair's scratch (FramePair::scratch); depends on the pair only, so it
+  // may run on any thread, for several pairs at once (Metric::measure_pair).
+  // Optional: step() computes whatever was not prepared.
   void prepare(const FramePair& pair) const;
 
   FrameDrift step(const FramePair& pair);
@@ -94,6 +93,7 @@ class DriftTracker {
   const std::vector<ObjectTrack>& objects() const { return objects_; }
 
  private:
+  struct PreparedFrame;
   void start_shot(const FramePair& pair);
   void end_shot(const FramePair& pair);
   void propose(const FramePair& pair, bool shot_start);
@@ -130,8 +130,6 @@ class DriftTracker {
   double last_proposal_t_s_ = 0;
 
   FrameFeatures prev_features_, cur_features_;
-  // Filled by prepare() (any thread), emptied by step().
-  mutable FeatureCache feature_cache_;
   cv::Matx33d camera_path_prev_ = cv::Matx33d::eye();  // shot start -> previous frame
   cv::Matx33d camera_path_cur_ = cv::Matx33d::eye();
   IlluminationMap illumination_prev_, illumination_cur_;
