@@ -16,7 +16,8 @@
 // --clips-dir, default /tmp/framelint-bench): --standard 1080p24 10 s (also
 // the default when no clip is given), --uhd 2160p24 10 s, --long 1080p24
 // 60 s; --gate times `framelint gate --jobs 1` against `--jobs 2` on 20
-// short clips (360p24 2 s, testsrc2 and mandelbrot), in fresh output folders.
+// distinct short clips (360p24 2 s, testsrc2 and mandelbrot at 20 hues and
+// start times), in fresh output folders.
 #include <sys/resource.h>
 #include <sys/stat.h>
 #include <sys/wait.h>
