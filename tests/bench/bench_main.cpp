@@ -2,7 +2,7 @@
 // clip in the same run, and how much memory it holds.
 //
 //   framelint_bench [CLIP...] [--standard] [--uhd] [--long] [--gate]
-//                   [--clips-dir DIR] [--preset P] [--width N] [--threads N]
+//                   [--clips-dir DIR] [--repeat N] [--preset P] [--width N] [--threads N]
 //
 // For each clip, three measurements, each in a child process so that its
 // peak resident memory (ru_maxrss from wait4) is its own:
@@ -23,6 +23,7 @@
 #include <sys/wait.h>
 #include <unistd.h>
 
+#include <algorithm>
 #include <chrono>
 #include <cstdio>
 #include <cstdlib>
@@ -140,7 +141,12 @@ bool make_clip(const std::string& path, const std::string& source, const std::st
   return std::system(cmd.c_str()) == 0;
 }
 
-int bench_clip(const std::string& clip, const cli::AnalysisOptions& options) {
+// One run's frame rates, kept to summarise repeated runs.
+struct ClipRates {
+  double ffmpeg_fps = 0, analysis_fps = 0;
+};
+
+int bench_clip(const std::string& clip, const cli::AnalysisOptions& options, std::vector<ClipRates>& runs) {
   const json ff = ffmpeg_decode(clip);
   const json dec = our_decode(clip, options.settings);
   const json ana = full_analysis(clip, options.settings, options.policy);
@@ -152,6 +158,7 @@ int bench_clip(const std::string& clip, const cli::AnalysisOptions& options) {
   const double ff_fps = ff.contains("seconds") ? frames / ff["seconds"].get<double>() : 0;
   const double dec_fps = dec["frames"].get<double>() / dec["seconds"].get<double>();
   const double ana_fps = frames / ana["seconds"].get<double>();
+  runs.push_back({ff_fps, ana_fps});
   const std::string source =
       std::to_string(ana["source_width"].get<int>()) + "x" + std::to_string(ana["source_height"].get<int>());
   std::string name = fs::path(clip).filename().string();
@@ -174,6 +181,27 @@ int bench_clip(const std::string& clip, const cli::AnalysisOptions& options) {
               ff_cpu, ff.contains("seconds") ? 100.0 * ff["cpu_s"].get<double>() / ff["seconds"].get<double>() : 0.0,
               dec_cpu, ana_cpu);
   return 0;
+}
+
+double median(std::vector<double> v) {
+  std::sort(v.begin(), v.end());
+  const size_t n = v.size();
+  return n == 0 ? 0 : n % 2 ? v[n / 2] : 0.5 * (v[n / 2 - 1] + v[n / 2]);
+}
+
+// Over --repeat runs: the spread of both rates and the ratio of medians
+// (a single run on a shared machine can be 15% off).
+void print_spread(const std::string& clip, const std::vector<ClipRates>& runs) {
+  if (runs.size() < 2) return;
+  std::vector<double> ff, ana;
+  for (const auto& r : runs) ff.push_back(r.ffmpeg_fps), ana.push_back(r.analysis_fps);
+  const auto [ff_lo, ff_hi] = std::minmax_element(ff.begin(), ff.end());
+  const auto [ana_lo, ana_hi] = std::minmax_element(ana.begin(), ana.end());
+  const double ff_median = median(ff), ana_median = median(ana);
+  std::printf("%s over %zu runs: ffmpeg %.0f-%.0f fps (median %.0f), analysis %.1f-%.1f fps (median %.1f), "
+              "ratio of medians %.2f\n",
+              fs::path(clip).filename().string().c_str(), runs.size(), *ff_lo, *ff_hi, ff_median, *ana_lo, *ana_hi,
+              ana_median, ff_median > 0 ? ana_median / ff_median : 0.0);
 }
 
 // `framelint gate FOLDER --jobs N` in a child, into a fresh output folder
@@ -221,6 +249,7 @@ std::vector<cli::OptionSpec> bench_specs() {
   specs.push_back({"long", false, "also a 1080p24 60 s clip"});
   specs.push_back({"gate", false, "gate --jobs 1 vs --jobs 2 on 20 short clips"});
   specs.push_back({"clips-dir", true, "where generated clips are kept (default /tmp/framelint-bench)"});
+  specs.push_back({"repeat", true, "runs per clip, interleaved across clips, then their spread (default 1)"});
   return specs;
 }
 
@@ -240,6 +269,11 @@ int main(int argc, char** argv) {
     return 2;
   }
   const std::string clips_dir = parsed->get("clips-dir").value_or("/tmp/framelint-bench");
+  const int repeat = std::atoi(parsed->get("repeat").value_or("1").c_str());
+  if (repeat < 1 || repeat > 100) {
+    std::fprintf(stderr, "framelint_bench: --repeat must be 1-100\n");
+    return 2;
+  }
   fs::create_directories(clips_dir);
   std::vector<std::string> clips = parsed->positionals;
   const bool standard = parsed->has("standard") ||
@@ -265,7 +299,10 @@ int main(int argc, char** argv) {
     std::printf("%-24s %-10s %6s %9s %9s %9s %6s %8s %7s\n", "clip", "source", "frames", "ffmpeg", "decode",
                 "analyze", "ratio", "peak MB", "CPU");
     std::printf("%-24s %-10s %6s %9s %9s %9s %6s %8s %7s\n", "", "", "", "fps", "fps", "fps", "", "", "");
-    for (const auto& clip : clips) status = std::max(status, bench_clip(clip, *options));
+    std::vector<std::vector<ClipRates>> runs(clips.size());
+    for (int round = 0; round < repeat; ++round)
+      for (size_t i = 0; i < clips.size(); ++i) status = std::max(status, bench_clip(clips[i], *options, runs[i]));
+    for (size_t i = 0; i < clips.size(); ++i) print_spread(clips[i], runs[i]);
     std::printf("ratio = analysis fps / ffmpeg decode-only fps; CPU = analysis CPU time / wall time\n");
   }
   if (parsed->has("gate")) status = std::max(status, bench_gate(clips_dir));
