@@ -105,7 +105,7 @@ JSON.stringify({
 
 
 class Browser:
-    def __init__(self, chromium, profile):
+    def __init__(self, chromium, profile, deadline_s):
         to_browser_r, self.to_browser = os.pipe()
         self.from_browser, from_browser_w = os.pipe()
 
@@ -131,7 +131,8 @@ class Browser:
         self.next_id = 0
         self.buffer = b''
         self.events = []
-        self.deadline = time.monotonic() + DEADLINE_S
+        self.deadline_s = deadline_s
+        self.deadline = time.monotonic() + deadline_s
 
     def send(self, method, params=None, session=None):
         self.next_id += 1
@@ -145,7 +146,7 @@ class Browser:
         while b'\0' not in self.buffer:
             left = self.deadline - time.monotonic()
             if left <= 0:
-                raise TimeoutError('the browser did not answer within %d s' % DEADLINE_S)
+                raise TimeoutError('the browser did not answer within %d s' % self.deadline_s)
             ready, _, _ = select.select([self.from_browser], [], [], left)
             if not ready:
                 continue
@@ -192,9 +193,9 @@ def evaluate(browser, session, expression):
     return json.loads(result['result']['value'])
 
 
-def check(chromium, page, screenshot, literals_file=None):
+def check(chromium, page, screenshot, literals_file=None, deadline_s=DEADLINE_S):
     profile = tempfile.mkdtemp(prefix='framelint-chromium-')
-    browser = Browser(chromium, profile)
+    browser = Browser(chromium, profile, deadline_s)
     try:
         target = browser.call('Target.createTarget', {'url': 'about:blank'})['targetId']
         session = browser.call('Target.attachToTarget', {'targetId': target, 'flatten': True})['sessionId']
@@ -256,7 +257,15 @@ def main():
         print(__doc__, file=sys.stderr)
         return 2
     try:
-        print(json.dumps(check(*sys.argv[1:])))
+        try:
+            result = check(*sys.argv[1:])
+        except TimeoutError:
+            # Chromium can take most of the deadline just to start on a
+            # loaded 2-core machine (tests run two at a time): one more try
+            # with twice the time. A page that hangs the browser still
+            # fails, after both.
+            result = check(*sys.argv[1:], deadline_s=2 * DEADLINE_S)
+        print(json.dumps(result))
     except Exception as e:  # one line for the test's failure message
         print('page_check: %s: %s' % (type(e).__name__, e), file=sys.stderr)
         return 1
