@@ -6,31 +6,16 @@
 
 #include <opencv2/imgproc.hpp>
 
-#include "analyzer/drift/box_mean.h"
 #include "analyzer/drift/sampling.h"
 
 namespace framelint::drift {
-namespace {
-
-// std::floor for the bin positions here (|v| <= 2 * kOrientationBins):
-// without SSE4.1 in the target, std::floor is a library call, and this
-// loop runs for every sample of every followed point on the serial path.
-// Equal to std::floor for every |v| < 2^31 (a zero's sign may differ,
-// which changes no sum below); larger or NaN values go to std::floor.
-inline float floor_of(float v) {
-  if (!(std::abs(v) < 1e9f)) return std::floor(v);
-  const float t = static_cast<float>(static_cast<int>(v));  // toward zero
-  return t > v ? t - 1.0f : t;
-}
-
-}  // namespace
 
 void FrameFeatures::compute(int64_t frame_index, const cv::Mat& gray, const cv::Mat& bgr,
                             int window_radius) {
   frame_index_ = frame_index;
-  // box_mean gives cv::blur's values, faster.
-  box_mean(bgr, window_radius, window_colour_, box_scratch_);
-  box_mean(gray, window_radius, window_gray_, box_scratch_);
+  const int side = 2 * window_radius + 1;
+  cv::blur(bgr, window_colour_, cv::Size(side, side), cv::Point(-1, -1), cv::BORDER_REPLICATE);
+  cv::blur(gray, window_gray_, cv::Size(side, side), cv::Point(-1, -1), cv::BORDER_REPLICATE);
   // sigma 1 smoothing keeps the orientation of fine texture but removes the
   // pixel noise and block edges of compressed video (common practice).
   cv::GaussianBlur(gray, smoothed_, cv::Size(5, 5), 1.0, 1.0, cv::BORDER_REPLICATE);
@@ -63,10 +48,10 @@ float FrameFeatures::local_histogram(cv::Point2f p, int radius, int stride, floa
       const float m = mag[x];
       if (m <= 0) continue;
       float pos = ang[x] * kBinsPerRad - shift;
-      pos -= kOrientationBins * floor_of(pos / kOrientationBins);
+      pos -= kOrientationBins * std::floor(pos / kOrientationBins);
       const int lo = static_cast<int>(pos) % kOrientationBins;
       const int hi = lo + 1 == kOrientationBins ? 0 : lo + 1;
-      const float frac = pos - floor_of(pos);
+      const float frac = pos - std::floor(pos);
       bins[lo] += m * (1.0f - frac);
       bins[hi] += m * frac;
       total += m;

@@ -42,7 +42,6 @@ class FrameFeatures {
  private:
   int64_t frame_index_ = -1;
   cv::Mat smoothed_, gx_, gy_, magnitude_, angle_, window_colour_, window_gray_;
-  std::vector<uint16_t> box_scratch_;
 };
 
 // Generalised Hellinger distance between two non-negative measures, after

@@ -3,8 +3,6 @@
 #include <algorithm>
 #include <cmath>
 
-#include "analyzer/drift/median_select.h"
-
 namespace framelint::drift {
 namespace {
 
@@ -27,7 +25,7 @@ bool usable(float ref, float cur) {
 
 ChannelAffine fit_channel(std::span<const cv::Vec3f> ref, std::span<const cv::Vec3f> cur, int c,
                           std::vector<float>& scratch, std::vector<cv::Vec2f>& samples,
-                          std::vector<float>& bracket, int min_samples) {
+                          int min_samples) {
   // The usable (reference, current) values of the channel, in input order,
   // gathered once for all iterations.
   samples.clear();
@@ -39,13 +37,11 @@ ChannelAffine fit_channel(std::span<const cv::Vec3f> ref, std::span<const cv::Ve
   for (const cv::Vec2f& s : samples) scratch.push_back(s[1] - s[0]);
   if (static_cast<int>(scratch.size()) < min_samples) return {};
   ChannelAffine fit{1.0f, median_in_place(scratch)};
-  float residual_median = -1;  // the last pass's, a close guess for the next
   for (int iter = 0; iter < kIterations; ++iter) {
     scratch.clear();
     for (const cv::Vec2f& s : samples)
       scratch.push_back(std::abs(s[1] - (fit.gain * s[0] + fit.offset)));
-    residual_median = median_near(scratch, residual_median, bracket);
-    const float scale = std::max(kMinScale, 1.4826f * residual_median);
+    const float scale = std::max(kMinScale, 1.4826f * median_in_place(scratch));
     const float cutoff = kTukeyC * scale;
     double sw = 0, sx = 0, sy = 0, sxx = 0, sxy = 0;
     for (const cv::Vec2f& s : samples) {
@@ -95,10 +91,9 @@ IlluminationMap fit_illumination(std::span<const cv::Vec3f> reference,
   const size_t n = std::min(reference.size(), current.size());
   // Reused: no allocation per frame.
   thread_local std::vector<cv::Vec2f> samples;
-  thread_local std::vector<float> bracket;
   for (int c = 0; c < 3; ++c) {
-    map.channel[c] = fit_channel(reference.first(n), current.first(n), c, scratch, samples, bracket,
-                                 min_samples);
+    map.channel[c] =
+        fit_channel(reference.first(n), current.first(n), c, scratch, samples, min_samples);
   }
   return map;
 }
