@@ -121,9 +121,12 @@ TEST(Pipeline, ResultsDoNotDependOnTheThreadCount) {
 }
 
 TEST(Pipeline, LongRangeWarpErrorGrowsWithTheSpanOfASlowChange) {
+  // Source: the warping error's definition (Lai et al., ECCV 2018: squared
+  // RGB differences over consistent pixels, summed over channels, as
+  // README's metric table states), worked by hand here.
   // In a still scene a patch brightens by 2 levels per frame. One step sees a
-  // 2-level change, the k=5 chain a 10-level one: by the warping error's
-  // definition (squared differences) the long-range error is k^2 = 25 times
+  // 2-level change, the k=5 chain a 10-level one: by that definition
+  // (squared differences) the long-range error is k^2 = 25 times
   // the single-step error, and both equal 3 (d/255)^2 times the patch's share
   // of the frame.
   const cv::Mat texture = smooth_texture({400, 200}, 13);
