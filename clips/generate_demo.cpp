@@ -1,12 +1,12 @@
-// framelint_demo_clips OUT_DIR: renders the demo clips of clips/README.md.
+// clipwarden_demo_clips OUT_DIR: renders the demo clips of clips/README.md.
 //
 // Lanternfish Studio (an invented animation studio) reviews generated shots
 // of a paper lantern drifting across a harbour at dusk. Four 5-second clips,
 // 480x270 at 24 fps, H.264:
 //   lanternfish_clean.mp4    the shot as it should be
-//   lanternfish_flicker.mp4  the light pulses for one second (framelint inject)
+//   lanternfish_flicker.mp4  the light pulses for one second (clipwarden inject)
 //   lanternfish_drift.mp4    the lantern slowly changes colour (rendered)
-//   lanternfish_jump.mp4     the shot jumps to another take at 3 s (framelint inject)
+//   lanternfish_jump.mp4     the shot jumps to another take at 3 s (clipwarden inject)
 // plus a truth file for each defect clip. Rendering and encoding are
 // deterministic: running it again writes the same files.
 #include <cstdio>
@@ -15,12 +15,12 @@
 #include <string>
 
 #include "analyzer/inject/frame_effects.h"
-#include "framelint/clip_writer.h"
-#include "framelint/inject.h"
+#include "clipwarden/clip_writer.h"
+#include "clipwarden/inject.h"
 #include "lantern_scene.h"
 
 namespace fs = std::filesystem;
-using namespace framelint;
+using namespace clipwarden;
 
 namespace {
 
@@ -102,7 +102,7 @@ nlohmann::json drift_truth(const lanternfish::ShotParams& drift) {
 }
 
 int fail(const Error& e) {
-  std::fprintf(stderr, "framelint_demo_clips: %s\n", e.message().c_str());
+  std::fprintf(stderr, "clipwarden_demo_clips: %s\n", e.message().c_str());
   return 1;
 }
 
@@ -110,7 +110,7 @@ int fail(const Error& e) {
 
 int main(int argc, char** argv) {
   if (argc != 2) {
-    std::fprintf(stderr, "usage: framelint_demo_clips OUT_DIR   (writes the demo clips of clips/README.md)\n");
+    std::fprintf(stderr, "usage: clipwarden_demo_clips OUT_DIR   (writes the demo clips of clips/README.md)\n");
     return 2;
   }
   const fs::path out(argv[1]);

@@ -1,13 +1,13 @@
 # Turns every file in the given folders into a C++ string constant, looked up
-# by file name through framelint::asset("name") (analyzer/core/assets.h).
-function(framelint_embed_assets out_var)
+# by file name through clipwarden::asset("name") (analyzer/core/assets.h).
+function(clipwarden_embed_assets out_var)
   set(files "")
   foreach(dir ${ARGN})
     file(GLOB found CONFIGURE_DEPENDS ${dir}/*)
     list(APPEND files ${found})
   endforeach()
   list(SORT files)
-  set(out ${PROJECT_BINARY_DIR}/generated/framelint_assets.cpp)
+  set(out ${PROJECT_BINARY_DIR}/generated/clipwarden_assets.cpp)
   # A list would be split into separate arguments of the command; pass it
   # joined with '|' (not a path character we use) and split it in the script.
   string(REPLACE ";" "|" files_arg "${files}")

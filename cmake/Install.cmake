@@ -1,13 +1,13 @@
 include(GNUInstallDirs)
 include(CMakePackageConfigHelpers)
-install(TARGETS framelint framelint_cli EXPORT framelintTargets
+install(TARGETS clipwarden clipwarden_cli EXPORT clipwardenTargets
   ARCHIVE DESTINATION ${CMAKE_INSTALL_LIBDIR}
   LIBRARY DESTINATION ${CMAKE_INSTALL_LIBDIR}
   RUNTIME DESTINATION ${CMAKE_INSTALL_BINDIR})
-install(DIRECTORY ${PROJECT_SOURCE_DIR}/include/framelint DESTINATION ${CMAKE_INSTALL_INCLUDEDIR})
-install(EXPORT framelintTargets NAMESPACE framelint:: DESTINATION ${CMAKE_INSTALL_LIBDIR}/cmake/framelint)
-configure_package_config_file(${PROJECT_SOURCE_DIR}/cmake/framelintConfig.cmake.in
-  ${PROJECT_BINARY_DIR}/framelintConfig.cmake INSTALL_DESTINATION ${CMAKE_INSTALL_LIBDIR}/cmake/framelint)
-write_basic_package_version_file(${PROJECT_BINARY_DIR}/framelintConfigVersion.cmake COMPATIBILITY SameMinorVersion)
-install(FILES ${PROJECT_BINARY_DIR}/framelintConfig.cmake ${PROJECT_BINARY_DIR}/framelintConfigVersion.cmake
-  DESTINATION ${CMAKE_INSTALL_LIBDIR}/cmake/framelint)
+install(DIRECTORY ${PROJECT_SOURCE_DIR}/include/clipwarden DESTINATION ${CMAKE_INSTALL_INCLUDEDIR})
+install(EXPORT clipwardenTargets NAMESPACE clipwarden:: DESTINATION ${CMAKE_INSTALL_LIBDIR}/cmake/clipwarden)
+configure_package_config_file(${PROJECT_SOURCE_DIR}/cmake/clipwardenConfig.cmake.in
+  ${PROJECT_BINARY_DIR}/clipwardenConfig.cmake INSTALL_DESTINATION ${CMAKE_INSTALL_LIBDIR}/cmake/clipwarden)
+write_basic_package_version_file(${PROJECT_BINARY_DIR}/clipwardenConfigVersion.cmake COMPATIBILITY SameMinorVersion)
+install(FILES ${PROJECT_BINARY_DIR}/clipwardenConfig.cmake ${PROJECT_BINARY_DIR}/clipwardenConfigVersion.cmake
+  DESTINATION ${CMAKE_INSTALL_LIBDIR}/cmake/clipwarden)

@@ -1,4 +1,4 @@
-// framelint analyze CLIP... : one JSON (and HTML) report per clip.
+// clipwarden analyze CLIP... : one JSON (and HTML) report per clip.
 #include <cstdio>
 #include <filesystem>
 #include <thread>
@@ -8,14 +8,14 @@
 #include "analyzer/cli/output_names.h"
 #include "analyzer/cli/progress.h"
 #include "analyzer/cli/settings_args.h"
-#include "framelint/analysis.h"
-#include "framelint/report_io.h"
+#include "clipwarden/analysis.h"
+#include "clipwarden/report_io.h"
 
-namespace framelint::cli {
+namespace clipwarden::cli {
 
 int run_analyze(const std::vector<std::string>& args) {
   std::vector<OptionSpec> specs = analysis_option_specs();
-  specs.push_back({"out", true, "output folder (default framelint-out)"});
+  specs.push_back({"out", true, "output folder (default clipwarden-out)"});
   specs.push_back({"no-html", false, "write only the JSON report"});
   specs.push_back({"quiet", false, "no progress on stderr"});
   int stop_status = kExitOk;
@@ -28,7 +28,7 @@ int run_analyze(const std::vector<std::string>& args) {
       stop_status);
   if (!parsed) return stop_status;
   if (parsed->positionals.empty()) {
-    print_error("analyze needs at least one CLIP (see framelint analyze --help)");
+    print_error("analyze needs at least one CLIP (see clipwarden analyze --help)");
     return kExitUsage;
   }
   auto options = analysis_options_from_args(*parsed);
@@ -36,7 +36,7 @@ int run_analyze(const std::vector<std::string>& args) {
     print_error(options.error().message());
     return kExitUsage;
   }
-  const std::string out_dir = parsed->get("out").value_or("framelint-out");
+  const std::string out_dir = parsed->get("out").value_or("clipwarden-out");
   std::error_code ec;
   std::filesystem::create_directories(out_dir, ec);
   if (ec) {
@@ -80,4 +80,4 @@ int run_analyze(const std::vector<std::string>& args) {
   return status;
 }
 
-}  // namespace framelint::cli
+}  // namespace clipwarden::cli

@@ -3,7 +3,7 @@
 #include <charconv>
 #include <cstdlib>
 
-namespace framelint::cli {
+namespace clipwarden::cli {
 
 std::optional<std::string> ParsedArgs::get(const std::string& name) const {
   auto it = values_.find(name);
@@ -89,7 +89,7 @@ Expected<ParsedArgs> parse_args(const std::vector<std::string>& args,
 
 std::string format_help(const std::string& name, const std::string& synopsis,
                         const std::string& description, const std::vector<OptionSpec>& specs) {
-  std::string out = "usage: framelint " + name + " " + synopsis + "\n\n" + description + "\n";
+  std::string out = "usage: clipwarden " + name + " " + synopsis + "\n\n" + description + "\n";
   if (!specs.empty()) out += "\noptions:\n";
   for (const auto& s : specs) {
     std::string left = "  ";
@@ -108,4 +108,4 @@ bool wants_help(const std::vector<std::string>& args) {
   return false;
 }
 
-}  // namespace framelint::cli
+}  // namespace clipwarden::cli

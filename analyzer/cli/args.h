@@ -8,9 +8,9 @@
 #include <string>
 #include <vector>
 
-#include "framelint/error.h"
+#include "clipwarden/error.h"
 
-namespace framelint::cli {
+namespace clipwarden::cli {
 
 struct OptionSpec {
   std::string name;     // without dashes, e.g. "out"
@@ -39,11 +39,11 @@ class ParsedArgs {
 Expected<ParsedArgs> parse_args(const std::vector<std::string>& args,
                                 const std::vector<OptionSpec>& specs);
 
-// "usage: framelint NAME SYNOPSIS" then the options, one per line.
+// "usage: clipwarden NAME SYNOPSIS" then the options, one per line.
 std::string format_help(const std::string& name, const std::string& synopsis,
                         const std::string& description, const std::vector<OptionSpec>& specs);
 
 // True if args ask for help (-h or --help anywhere).
 bool wants_help(const std::vector<std::string>& args);
 
-}  // namespace framelint::cli
+}  // namespace clipwarden::cli

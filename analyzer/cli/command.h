@@ -9,7 +9,7 @@
 
 #include "analyzer/cli/args.h"
 
-namespace framelint::cli {
+namespace clipwarden::cli {
 
 // Exit statuses fixed by DESIGN.md.
 enum ExitStatus : int {
@@ -21,7 +21,7 @@ enum ExitStatus : int {
 
 struct Command {
   const char* name;
-  const char* summary;                                           // one line for `framelint --help`
+  const char* summary;                                           // one line for `clipwarden --help`
   std::function<int(const std::vector<std::string>& args)> run;  // args after the name
 };
 
@@ -47,4 +47,4 @@ std::optional<ParsedArgs> parse_command_line(const std::vector<std::string>& arg
                                              const std::vector<OptionSpec>& specs,
                                              const CommandHelp& help, int& exit_status);
 
-}  // namespace framelint::cli
+}  // namespace clipwarden::cli

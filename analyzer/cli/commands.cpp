@@ -4,7 +4,7 @@
 
 #include "analyzer/cli/command.h"
 
-namespace framelint::cli {
+namespace clipwarden::cli {
 
 // Each command lives in its own file; one line here registers it.
 int run_analyze(const std::vector<std::string>& args);
@@ -29,7 +29,7 @@ const std::vector<Command>& commands() {
   return table;
 }
 
-void print_error(const std::string& line) { std::fprintf(stderr, "framelint: %s\n", line.c_str()); }
+void print_error(const std::string& line) { std::fprintf(stderr, "clipwarden: %s\n", line.c_str()); }
 
 bool stderr_is_terminal() { return isatty(2) == 1; }
 
@@ -50,4 +50,4 @@ std::optional<ParsedArgs> parse_command_line(const std::vector<std::string>& arg
   return std::move(*parsed);
 }
 
-}  // namespace framelint::cli
+}  // namespace clipwarden::cli

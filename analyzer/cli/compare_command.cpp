@@ -1,17 +1,17 @@
-// framelint compare A B --out DIR: two model versions on the same prompts.
+// clipwarden compare A B --out DIR: two model versions on the same prompts.
 #include <algorithm>
 #include <charconv>
 #include <cstdio>
 
 #include "analyzer/cli/args.h"
 #include "analyzer/cli/command.h"
-#include "framelint/compare.h"
+#include "clipwarden/compare.h"
 
-namespace framelint::cli {
+namespace clipwarden::cli {
 namespace {
 
 const char* kDescription =
-    "Compares two folders of per-clip reports (framelint analyze output, or gate output folders\n"
+    "Compares two folders of per-clip reports (clipwarden analyze output, or gate output folders\n"
     "with queue.jsonl) clip by clip and writes DIR/compare.json and DIR/compare.html.\n"
     "Clips are paired by --pair-by (default: prompt_id when every queue line has one, else the\n"
     "report name); several clips per key on one side (seeds) are averaged per key first.\n"
@@ -103,12 +103,12 @@ int run_compare(const std::vector<std::string>& args) {
       args, specs, {"compare", "A B --out DIR [options]", kDescription}, stop_status);
   if (!parsed) return stop_status;
   if (parsed->positionals.size() != 2) {
-    print_error("compare takes two folders, A and B (see framelint compare --help)");
+    print_error("compare takes two folders, A and B (see clipwarden compare --help)");
     return kExitUsage;
   }
   const auto out_dir = parsed->get("out");
   if (!out_dir) {
-    print_error("compare needs --out DIR (see framelint compare --help)");
+    print_error("compare needs --out DIR (see clipwarden compare --help)");
     return kExitUsage;
   }
   auto options = options_from_args(*parsed);
@@ -152,4 +152,4 @@ int run_compare(const std::vector<std::string>& args) {
   return status;
 }
 
-}  // namespace framelint::cli
+}  // namespace clipwarden::cli

@@ -1,5 +1,5 @@
-// framelint gate INPUT... --out DIR : the review queue. Only parses
-// arguments; the batch is run by the library (include/framelint/gate.h).
+// clipwarden gate INPUT... --out DIR : the review queue. Only parses
+// arguments; the batch is run by the library (include/clipwarden/gate.h).
 #include <signal.h>
 #include <unistd.h>
 
@@ -12,15 +12,15 @@
 #include "analyzer/cli/gate_output.h"
 #include "analyzer/cli/output_names.h"
 #include "analyzer/cli/settings_args.h"
-#include "framelint/gate.h"
+#include "clipwarden/gate.h"
 
-namespace framelint::cli {
+namespace clipwarden::cli {
 namespace {
 
 std::vector<OptionSpec> gate_specs() {
   std::vector<OptionSpec> specs = analysis_option_specs();
   specs.push_back({"out", true, "output folder (required)"});
-  specs.push_back({"db", true, "results store (default DIR/framelint.db); share one across runs"});
+  specs.push_back({"db", true, "results store (default DIR/clipwarden.db); share one across runs"});
   specs.push_back({"jobs", true, "clips analysed at once (default: number of cores)"});
   specs.push_back(
       {"shard", true, "I/N: this job's share, I from 0; auto/N reads the scheduler's index"});
@@ -88,9 +88,9 @@ int run_gate(const std::vector<std::string>& args) {
     return kExitOk;
   }
   if (parsed->positionals.empty())
-    return print_error("gate needs at least one INPUT (see framelint gate --help)"), kExitUsage;
+    return print_error("gate needs at least one INPUT (see clipwarden gate --help)"), kExitUsage;
   if (!parsed->get("out"))
-    return print_error("gate needs --out DIR (see framelint gate --help)"), kExitUsage;
+    return print_error("gate needs --out DIR (see clipwarden gate --help)"), kExitUsage;
   auto options = analysis_options_from_args(*parsed);
   if (!options) return print_error(options.error().message()), kExitUsage;
   auto jobs = parsed->get_int("jobs", 1, 1024);
@@ -128,7 +128,7 @@ int run_gate(const std::vector<std::string>& args) {
     progress.update(counts);
   };
   gate.stop = &g_stop;
-  auto run = framelint::run_gate(inputs, gate, observer);
+  auto run = clipwarden::run_gate(inputs, gate, observer);
   progress.finish();
   if (!run) return print_error(run.error().message()), kExitUsage;
   if (run->stopped) {
@@ -154,4 +154,4 @@ int run_gate(const std::vector<std::string>& args) {
   return gate_exit_status(run->counts, *fail_on);
 }
 
-}  // namespace framelint::cli
+}  // namespace clipwarden::cli

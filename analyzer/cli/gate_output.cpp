@@ -4,7 +4,7 @@
 
 #include "analyzer/cli/command.h"
 
-namespace framelint::cli {
+namespace clipwarden::cli {
 namespace {
 
 std::string duration_text(double s) {
@@ -78,4 +78,4 @@ int gate_exit_status(const GateCounts& c, Verdict fail_on) {
   return failed > 0 ? kExitGateFailed : kExitOk;
 }
 
-}  // namespace framelint::cli
+}  // namespace clipwarden::cli

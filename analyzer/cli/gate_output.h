@@ -7,9 +7,9 @@
 #include <string>
 
 #include "analyzer/cli/args.h"
-#include "framelint/gate.h"
+#include "clipwarden/gate.h"
 
-namespace framelint::cli {
+namespace clipwarden::cli {
 
 class BatchProgress {
  public:
@@ -39,4 +39,4 @@ Expected<Verdict> fail_on_from_args(const ParsedArgs& args);
 // is at or above fail_on, else 0.
 int gate_exit_status(const GateCounts& counts, Verdict fail_on);
 
-}  // namespace framelint::cli
+}  // namespace clipwarden::cli

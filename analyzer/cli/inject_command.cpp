@@ -1,13 +1,13 @@
-// framelint inject CLIP --defect SPEC... -o OUT [--truth FILE] [--seed N]:
+// clipwarden inject CLIP --defect SPEC... -o OUT [--truth FILE] [--seed N]:
 // a copy of a clean clip with known defects, and the truth of where they are.
 #include <cstdio>
 
 #include "analyzer/cli/args.h"
 #include "analyzer/cli/command.h"
 #include "analyzer/cli/progress.h"
-#include "framelint/inject.h"
+#include "clipwarden/inject.h"
 
-namespace framelint::cli {
+namespace clipwarden::cli {
 namespace {
 
 Expected<VideoCodec> codec_from_args(const ParsedArgs& parsed) {
@@ -44,11 +44,11 @@ int run_inject(const std::vector<std::string>& args) {
        "Writes a copy of a clean clip with known defects injected, and a JSON truth\n"
        "file of where they are. Classes: flicker, local_flicker, boiling,\n"
        "colour_drift, shape_drift, vanish, freeze, drop, cut, jerk, strobe.\n"
-       "Example: framelint inject shot.mp4 --defect flicker@30-59:strength=0.1 -o bad.mp4"},
+       "Example: clipwarden inject shot.mp4 --defect flicker@30-59:strength=0.1 -o bad.mp4"},
       stop_status);
   if (!parsed) return stop_status;
   if (parsed->positionals.size() != 1) {
-    print_error("inject takes exactly one CLIP (see framelint inject --help)");
+    print_error("inject takes exactly one CLIP (see clipwarden inject --help)");
     return kExitUsage;
   }
   InjectOptions options;
@@ -84,4 +84,4 @@ int run_inject(const std::vector<std::string>& args) {
   return kExitOk;
 }
 
-}  // namespace framelint::cli
+}  // namespace clipwarden::cli

@@ -1,18 +1,18 @@
-// framelint inspect CLIP --frame N: the panels of one frame as PNG files.
+// clipwarden inspect CLIP --frame N: the panels of one frame as PNG files.
 #include <cstdio>
 
 #include "analyzer/cli/args.h"
 #include "analyzer/cli/command.h"
 #include "analyzer/cli/output_names.h"
 #include "analyzer/cli/settings_args.h"
-#include "framelint/inspect.h"
+#include "clipwarden/inspect.h"
 
-namespace framelint::cli {
+namespace clipwarden::cli {
 
 int run_inspect(const std::vector<std::string>& args) {
   const std::vector<OptionSpec> specs = {
       {"frame", true, "index of the frame to inspect (0-based decode order, as in the report)"},
-      {"out", true, "output folder (default framelint-out)"},
+      {"out", true, "output folder (default clipwarden-out)"},
       {"preset", true, "optical flow effort: fast, balanced (default) or thorough"},
       {"width", true, "long side of the analysis frames in px (default 512)"},
       {"fps", true, "frame rate for folders of numbered images (default 24)"},
@@ -28,7 +28,7 @@ int run_inspect(const std::vector<std::string>& args) {
       stop_status);
   if (!parsed) return stop_status;
   if (parsed->positionals.size() != 1) {
-    print_error("inspect takes exactly one CLIP (see framelint inspect --help)");
+    print_error("inspect takes exactly one CLIP (see clipwarden inspect --help)");
     return kExitUsage;
   }
   auto frame = parsed->get_int("frame", 0, 1 << 30);
@@ -37,7 +37,7 @@ int run_inspect(const std::vector<std::string>& args) {
     return kExitUsage;
   }
   if (!*frame) {
-    print_error("inspect needs --frame N (see framelint inspect --help)");
+    print_error("inspect needs --frame N (see clipwarden inspect --help)");
     return kExitUsage;
   }
   auto options = analysis_options_from_args(*parsed);
@@ -51,7 +51,7 @@ int run_inspect(const std::vector<std::string>& args) {
     print_error(panels.error().message());
     return panels.error().kind == ErrorKind::usage ? kExitUsage : kExitInputError;
   }
-  const std::string out_dir = parsed->get("out").value_or("framelint-out");
+  const std::string out_dir = parsed->get("out").value_or("clipwarden-out");
   auto paths = write_panel_pngs(*panels, out_dir, safe_stem(clip));
   if (!paths) {
     print_error(paths.error().message());
@@ -63,4 +63,4 @@ int run_inspect(const std::vector<std::string>& args) {
   return kExitOk;
 }
 
-}  // namespace framelint::cli
+}  // namespace clipwarden::cli

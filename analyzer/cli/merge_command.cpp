@@ -1,12 +1,12 @@
-// framelint merge DIR... --out DIR : joins the outputs of gate shards.
+// clipwarden merge DIR... --out DIR : joins the outputs of gate shards.
 #include <cstdio>
 
 #include "analyzer/cli/args.h"
 #include "analyzer/cli/command.h"
 #include "analyzer/cli/gate_output.h"
-#include "framelint/gate.h"
+#include "clipwarden/gate.h"
 
-namespace framelint::cli {
+namespace clipwarden::cli {
 
 int run_merge(const std::vector<std::string>& args) {
   const std::vector<OptionSpec> specs = {
@@ -18,14 +18,14 @@ int run_merge(const std::vector<std::string>& args) {
   auto parsed = parse_command_line(
       args, specs,
       {"merge", "DIR... --out DIR [options]",
-       "Joins the output folders of `framelint gate --shard` runs: one queue.jsonl in\n"
-       "input order without duplicates, the reports, one framelint.db and index.html.\n"
+       "Joins the output folders of `clipwarden gate --shard` runs: one queue.jsonl in\n"
+       "input order without duplicates, the reports, one clipwarden.db and index.html.\n"
        "Exit status as for gate: 0, 1 (a clip reached --fail-on), 2 bad usage,\n"
        "3 a clip could not be read."},
       stop_status);
   if (!parsed) return stop_status;
   if (parsed->positionals.empty() || !parsed->get("out"))
-    return print_error("merge needs DIR... and --out DIR (see framelint merge --help)"), kExitUsage;
+    return print_error("merge needs DIR... and --out DIR (see clipwarden merge --help)"), kExitUsage;
   auto fail_on = fail_on_from_args(*parsed);
   if (!fail_on) return print_error(fail_on.error().message()), kExitUsage;
   auto run = merge_gate_outputs(parsed->positionals, *parsed->get("out"));
@@ -39,4 +39,4 @@ int run_merge(const std::vector<std::string>& args) {
   return gate_exit_status(run->counts, *fail_on);
 }
 
-}  // namespace framelint::cli
+}  // namespace clipwarden::cli

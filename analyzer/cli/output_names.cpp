@@ -2,7 +2,7 @@
 
 #include <filesystem>
 
-namespace framelint::cli {
+namespace clipwarden::cli {
 namespace {
 
 // UTF-8 of the Unicode bidirectional controls at `i`: U+200E/U+200F marks,
@@ -49,4 +49,4 @@ std::string OutputNamer::unique_name(const std::string& clip_path) {
   return name;
 }
 
-}  // namespace framelint::cli
+}  // namespace clipwarden::cli

@@ -6,7 +6,7 @@
 #include <set>
 #include <string>
 
-namespace framelint::cli {
+namespace clipwarden::cli {
 
 // "shots/take 01.mp4" -> "take_01"; never empty, never "." or "..", no '/'.
 std::string safe_stem(const std::string& clip_path);
@@ -20,4 +20,4 @@ class OutputNamer {
   std::set<std::string> used_;
 };
 
-}  // namespace framelint::cli
+}  // namespace clipwarden::cli

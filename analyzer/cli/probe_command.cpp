@@ -1,11 +1,11 @@
-// framelint probe CLIP: the container facts as JSON on stdout.
+// clipwarden probe CLIP: the container facts as JSON on stdout.
 #include <cstdio>
 
 #include "analyzer/cli/args.h"
 #include "analyzer/cli/command.h"
-#include "framelint/clip_source.h"
+#include "clipwarden/clip_source.h"
 
-namespace framelint::cli {
+namespace clipwarden::cli {
 
 int run_probe(const std::vector<std::string>& args) {
   const std::vector<OptionSpec> specs = {
@@ -17,7 +17,7 @@ int run_probe(const std::vector<std::string>& args) {
       stop_status);
   if (!parsed) return stop_status;
   if (parsed->positionals.size() != 1) {
-    print_error("probe takes exactly one CLIP (see framelint probe --help)");
+    print_error("probe takes exactly one CLIP (see clipwarden probe --help)");
     return kExitUsage;
   }
   auto fps = parsed->get_double("fps", 0.001, 1000);
@@ -36,4 +36,4 @@ int run_probe(const std::vector<std::string>& args) {
   return kExitOk;
 }
 
-}  // namespace framelint::cli
+}  // namespace clipwarden::cli

@@ -2,7 +2,7 @@
 
 #include <cstdio>
 
-namespace framelint::cli {
+namespace clipwarden::cli {
 
 ProgressLine::ProgressLine(std::string label, bool silent) : label_(std::move(label)), silent_(silent) {}
 
@@ -24,4 +24,4 @@ void ProgressLine::finish() {
   drawn_ = false;
 }
 
-}  // namespace framelint::cli
+}  // namespace clipwarden::cli

@@ -5,7 +5,7 @@
 #include <cstdint>
 #include <string>
 
-namespace framelint::cli {
+namespace clipwarden::cli {
 
 class ProgressLine {
  public:
@@ -20,4 +20,4 @@ class ProgressLine {
   std::chrono::steady_clock::time_point last_draw_{};
 };
 
-}  // namespace framelint::cli
+}  // namespace clipwarden::cli

@@ -1,8 +1,8 @@
 #include "analyzer/cli/settings_args.h"
 
-#include "framelint/report_io.h"
+#include "clipwarden/report_io.h"
 
-namespace framelint::cli {
+namespace clipwarden::cli {
 
 std::vector<OptionSpec> analysis_option_specs() {
   return {
@@ -60,4 +60,4 @@ Status write_reports(const Report& report, const std::string& base, bool html, c
   return write_html_report(report, base + ".html", settings, extras.html, extras.thumbnails);
 }
 
-}  // namespace framelint::cli
+}  // namespace clipwarden::cli

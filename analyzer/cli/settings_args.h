@@ -6,12 +6,12 @@
 #include <vector>
 
 #include "analyzer/cli/args.h"
-#include "framelint/analysis.h"
-#include "framelint/html_report.h"
-#include "framelint/policy.h"
-#include "framelint/report.h"
+#include "clipwarden/analysis.h"
+#include "clipwarden/html_report.h"
+#include "clipwarden/policy.h"
+#include "clipwarden/report.h"
 
-namespace framelint::cli {
+namespace clipwarden::cli {
 
 struct AnalysisOptions {
   AnalysisSettings settings;
@@ -21,7 +21,7 @@ struct AnalysisOptions {
 std::vector<OptionSpec> analysis_option_specs();
 Expected<AnalysisOptions> analysis_options_from_args(const ParsedArgs& args);
 
-// What the HTML page needs beyond the report (framelint/html_report.h).
+// What the HTML page needs beyond the report (clipwarden/html_report.h).
 struct ReportExtras {
   // The settings the clip was analysed with: the page decodes the clip again
   // at the same working size to picture the worst frames. Null: read back
@@ -39,8 +39,8 @@ struct ReportExtras {
 Status write_reports(const Report& report, const std::string& base, bool html,
                      const ReportExtras& extras = {});
 
-// The analysis settings recorded in a report (framelint::settings_to_json),
+// The analysis settings recorded in a report (clipwarden::settings_to_json),
 // with defaults for anything missing.
 AnalysisSettings settings_from_report(const Report& report);
 
-}  // namespace framelint::cli
+}  // namespace clipwarden::cli

@@ -2,7 +2,7 @@
 
 #include <cmath>
 
-namespace framelint::color {
+namespace clipwarden::color {
 namespace {
 
 constexpr double kDegToRad = M_PI / 180.0;
@@ -83,4 +83,4 @@ double ciede2000(const Lab& lab1, const Lab& lab2, const De2000Weights& w) {
   return std::sqrt(tl * tl + tc * tc + th * th + r_t * tc * th);
 }
 
-}  // namespace framelint::color
+}  // namespace clipwarden::color

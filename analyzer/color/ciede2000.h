@@ -7,7 +7,7 @@
 
 #include "analyzer/color/color_space.h"
 
-namespace framelint::color {
+namespace clipwarden::color {
 
 // Parametric weights kL, kC, kH (1, 1, 1 for the reference conditions).
 struct De2000Weights {
@@ -17,4 +17,4 @@ struct De2000Weights {
 // Symmetric in its arguments; >= 0.
 double ciede2000(const Lab& reference, const Lab& sample, const De2000Weights& weights = {});
 
-}  // namespace framelint::color
+}  // namespace clipwarden::color

@@ -4,7 +4,7 @@
 #include <array>
 #include <cmath>
 
-namespace framelint::color {
+namespace clipwarden::color {
 namespace {
 
 // CIE 15:2004 constants of the L*a*b* companding function.
@@ -99,4 +99,4 @@ double lab_hue_deg(const Lab& c) {
   return h < 0 ? h + 360.0 : h;
 }
 
-}  // namespace framelint::color
+}  // namespace clipwarden::color

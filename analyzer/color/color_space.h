@@ -3,7 +3,7 @@
 // (CIE 15:2004) relative to the D65 white. Pure functions on plain values.
 #pragma once
 
-namespace framelint::color {
+namespace clipwarden::color {
 
 // Colour triples. RGB components are in [0,1] (nominal range); XYZ is
 // scaled so that the white point has Y = 1.
@@ -51,4 +51,4 @@ Rgb lab_to_srgb(const Lab& lab);
 double lab_chroma(const Lab& lab);
 double lab_hue_deg(const Lab& lab);
 
-}  // namespace framelint::color
+}  // namespace clipwarden::color

@@ -2,7 +2,7 @@
 
 #include <cmath>
 
-namespace framelint {
+namespace clipwarden {
 
 double srgb_to_linear(double encoded, double threshold) {
   // IEC 61966-2-1:1999, section 5.2, inverse of the encoding curve.
@@ -31,4 +31,4 @@ void relative_luminance(const cv::Mat& bgr8, cv::Mat& out) {
   }
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

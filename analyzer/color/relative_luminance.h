@@ -6,7 +6,7 @@
 
 #include <opencv2/core.hpp>
 
-namespace framelint {
+namespace clipwarden {
 
 // The sRGB transfer threshold on the encoded value. IEC 61966-2-1 uses
 // 0.04045; WCAG 2.x quotes 0.03928. For 8-bit input both give identical
@@ -26,4 +26,4 @@ const std::array<float, 256>& srgb8_to_linear_table();
 // BGR 8-bit image -> CV_32FC1 relative luminance Y in [0,1]. `out` is reused.
 void relative_luminance(const cv::Mat& bgr8, cv::Mat& out);
 
-}  // namespace framelint
+}  // namespace clipwarden

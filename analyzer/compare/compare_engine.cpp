@@ -7,9 +7,9 @@
 #include "analyzer/compare/metric_direction.h"
 #include "analyzer/compare/paired_stats.h"
 #include "analyzer/compare/report_folder.h"
-#include "framelint/compare.h"
+#include "clipwarden/compare.h"
 
-namespace framelint {
+namespace clipwarden {
 namespace {
 
 using compare_detail::LoadedFolder;
@@ -283,4 +283,4 @@ std::optional<ZeroRule> zero_rule_from_string(const std::string& s) {
   return std::nullopt;
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -1,12 +1,12 @@
-// compare.json ("framelint.compare/1") and writing both output files.
+// compare.json ("clipwarden.compare/1") and writing both output files.
 #include <cmath>
 #include <filesystem>
 
-#include "framelint/compare.h"
-#include "framelint/report_io.h"
-#include "framelint/version.h"
+#include "clipwarden/compare.h"
+#include "clipwarden/report_io.h"
+#include "clipwarden/version.h"
 
-namespace framelint {
+namespace clipwarden {
 namespace {
 
 // Ordered, so compare.json reads top-down: schema first, details last.
@@ -100,7 +100,7 @@ nlohmann::ordered_json comparison_to_json(const Comparison& c) {
     failed.push_back({{"side", f.side}, {"path", f.path}, {"error", f.error}});
   return {
       {"schema", kCompareSchema},
-      {"tool", {{"name", "framelint"}, {"version", version()}}},
+      {"tool", {{"name", "clipwarden"}, {"version", version()}}},
       {"inputs",
        {{"a", c.a_dir}, {"b", c.b_dir}, {"a_clips", c.a_clip_count}, {"b_clips", c.b_clip_count}}},
       {"pair_by", to_string(c.pair_by)},
@@ -126,4 +126,4 @@ Status write_comparison(const Comparison& c, const std::string& out_dir) {
   return write_file_atomic(base + ".html", comparison_to_html(c, out_dir));
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

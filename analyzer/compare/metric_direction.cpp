@@ -1,6 +1,6 @@
 #include "analyzer/compare/metric_direction.h"
 
-namespace framelint::compare_detail {
+namespace clipwarden::compare_detail {
 
 Direction direction_of(const std::string& metric) {
   // coherence: the report's 0-100 score, 100 = no incoherence found.
@@ -14,4 +14,4 @@ Direction direction_of(const std::string& metric) {
   return Direction::lower_is_better;
 }
 
-}  // namespace framelint::compare_detail
+}  // namespace clipwarden::compare_detail

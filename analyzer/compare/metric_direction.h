@@ -6,10 +6,10 @@
 
 #include <string>
 
-namespace framelint::compare_detail {
+namespace clipwarden::compare_detail {
 
 enum class Direction { lower_is_better, higher_is_better, descriptive };
 
 Direction direction_of(const std::string& metric);
 
-}  // namespace framelint::compare_detail
+}  // namespace clipwarden::compare_detail

@@ -7,7 +7,7 @@
 #include <numbers>
 #include <numeric>
 
-namespace framelint::stats {
+namespace clipwarden::stats {
 
 // ---- SplitMix64 ---------------------------------------------------------------
 
@@ -347,4 +347,4 @@ double median_of(std::span<const double> values) {
   return v.size() % 2 ? v[h] : 0.5 * (v[h - 1] + v[h]);
 }
 
-}  // namespace framelint::stats
+}  // namespace clipwarden::stats

@@ -1,4 +1,4 @@
-// Paired-sample statistics for `framelint compare`: the Wilcoxon signed-rank
+// Paired-sample statistics for `clipwarden compare`: the Wilcoxon signed-rank
 // test, the matched-pairs rank-biserial correlation, a BCa bootstrap interval
 // of the mean difference, Holm's step-down adjustment and simple summaries.
 // Pure C++ on plain vectors of differences d = B - A; no other dependency.
@@ -8,7 +8,7 @@
 #include <span>
 #include <vector>
 
-namespace framelint::stats {
+namespace clipwarden::stats {
 
 // ---- pseudo-random numbers -------------------------------------------------
 
@@ -130,4 +130,4 @@ std::vector<double> holm_adjust(std::span<const double> p_values);
 double mean_of(std::span<const double> values);
 double median_of(std::span<const double> values);
 
-}  // namespace framelint::stats
+}  // namespace clipwarden::stats

@@ -6,9 +6,9 @@
 #include <fstream>
 #include <map>
 
-#include "framelint/report_io.h"
+#include "clipwarden/report_io.h"
 
-namespace framelint::compare_detail {
+namespace clipwarden::compare_detail {
 namespace {
 
 namespace fs = std::filesystem;
@@ -180,4 +180,4 @@ Expected<LoadedFolder> load_report_folder(const std::string& dir, const std::str
   return out;
 }
 
-}  // namespace framelint::compare_detail
+}  // namespace clipwarden::compare_detail

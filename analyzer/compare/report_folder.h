@@ -1,15 +1,15 @@
 // Reading one side of a comparison: a folder of per-clip reports (*.json,
-// schema framelint.report/1) or a gate output folder (queue.jsonl naming
+// schema clipwarden.report/1) or a gate output folder (queue.jsonl naming
 // each clip's report, with id, prompt_id, model and seed).
 #pragma once
 
 #include <string>
 #include <vector>
 
-#include "framelint/compare.h"
-#include "framelint/report.h"
+#include "clipwarden/compare.h"
+#include "clipwarden/report.h"
 
-namespace framelint::compare_detail {
+namespace clipwarden::compare_detail {
 
 struct LoadedFolder {
   std::vector<ClipEntry> clips;
@@ -26,4 +26,4 @@ Expected<LoadedFolder> load_report_folder(const std::string& dir, const std::str
 // "<metric>.segment_count" for every metric the report knows.
 std::vector<std::pair<std::string, double>> comparable_values(const Report& report);
 
-}  // namespace framelint::compare_detail
+}  // namespace clipwarden::compare_detail

@@ -2,7 +2,7 @@
 
 #include <utility>
 
-namespace framelint {
+namespace clipwarden {
 namespace embedded {
 extern const std::pair<std::string_view, std::string_view> kAssets[];
 }
@@ -12,4 +12,4 @@ std::string_view asset(std::string_view name) {
     if (embedded::kAssets[i].first == name) return embedded::kAssets[i].second;
   return {};
 }
-}  // namespace framelint
+}  // namespace clipwarden

@@ -4,8 +4,8 @@
 
 #include <string_view>
 
-namespace framelint {
+namespace clipwarden {
 // The bytes of an embedded file by its name (e.g. "report.css"); empty if
 // there is no such asset.
 std::string_view asset(std::string_view name);
-}  // namespace framelint
+}  // namespace clipwarden

@@ -1,7 +1,7 @@
-// Small helpers of the report model (include/framelint/report.h).
-#include "framelint/report.h"
+// Small helpers of the report model (include/clipwarden/report.h).
+#include "clipwarden/report.h"
 
-namespace framelint {
+namespace clipwarden {
 
 const char* to_string(Severity s) {
   switch (s) {
@@ -46,4 +46,4 @@ const MetricSummary* Report::find_summary(const std::string& metric) const {
   return nullptr;
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

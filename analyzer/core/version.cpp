@@ -1,5 +1,5 @@
-#include "framelint/version.h"
+#include "clipwarden/version.h"
 
-namespace framelint {
-const char* version() { return FRAMELINT_VERSION; }
-}  // namespace framelint
+namespace clipwarden {
+const char* version() { return CLIPWARDEN_VERSION; }
+}  // namespace clipwarden

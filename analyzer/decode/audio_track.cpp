@@ -8,7 +8,7 @@ extern "C" {
 #include <libavutil/opt.h>
 }
 
-namespace framelint::decode {
+namespace clipwarden::decode {
 
 SilenceTail::SilenceTail(int sample_rate)
     : sample_rate_(sample_rate > 0 ? sample_rate : 48000),
@@ -133,4 +133,4 @@ AudioInfo AudioTrack::finish() {
   return result_;
 }
 
-}  // namespace framelint::decode
+}  // namespace clipwarden::decode

@@ -9,9 +9,9 @@
 #include <vector>
 
 #include "analyzer/decode/libav_util.h"
-#include "framelint/report.h"
+#include "clipwarden/report.h"
 
-namespace framelint::decode {
+namespace clipwarden::decode {
 
 // Silence threshold: a 100 ms window is silent when its RMS is below
 // -50 dBFS, i.e. RMS < 10^(-50/20) = 0.00316 of full scale (full-scale
@@ -78,4 +78,4 @@ class AudioTrack {
   AudioInfo result_;
 };
 
-}  // namespace framelint::decode
+}  // namespace clipwarden::decode

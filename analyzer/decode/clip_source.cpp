@@ -1,13 +1,13 @@
 // Which reader a clip needs, and `probe` as JSON.
-#include "framelint/clip_source.h"
+#include "clipwarden/clip_source.h"
 
 #include <filesystem>
 
 #include "analyzer/decode/image_sources.h"
 #include "analyzer/decode/libav_source.h"
-#include "framelint/report_io.h"
+#include "clipwarden/report_io.h"
 
-namespace framelint {
+namespace clipwarden {
 
 Expected<std::unique_ptr<ClipSource>> ClipSource::open(const std::string& path,
                                                        const SourceOptions& options) {
@@ -38,4 +38,4 @@ Expected<nlohmann::json> probe_clip(const std::string& path, const SourceOptions
   return out;
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -14,7 +14,7 @@ extern "C" {
 #include "analyzer/decode/libav_util.h"
 #include "analyzer/decode/stream_timing.h"
 
-namespace framelint::decode {
+namespace clipwarden::decode {
 namespace {
 
 std::string lower(std::string s) {
@@ -221,4 +221,4 @@ Expected<std::pair<ClipInfo, StreamFacts>> probe_folder(const std::string& folde
   return std::make_pair((*source)->info(), facts);
 }
 
-}  // namespace framelint::decode
+}  // namespace clipwarden::decode

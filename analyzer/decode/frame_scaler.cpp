@@ -9,7 +9,7 @@ extern "C" {
 #include <libavutil/pixdesc.h>
 }
 
-namespace framelint::decode {
+namespace clipwarden::decode {
 namespace {
 
 // Source pixel formats whose full range is implied by the format itself.
@@ -144,4 +144,4 @@ Status FrameScaler::convert(const AVFrame& frame, cv::Mat& bgr, const std::strin
   return Ok{};
 }
 
-}  // namespace framelint::decode
+}  // namespace clipwarden::decode

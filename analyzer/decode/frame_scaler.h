@@ -8,7 +8,7 @@
 
 #include "analyzer/decode/libav_util.h"
 
-namespace framelint::decode {
+namespace clipwarden::decode {
 
 // Size of the analysis frame for a displayed picture of width x height:
 // the long side becomes long_side_px (0 keeps the native size) and the
@@ -54,4 +54,4 @@ class FrameScaler {
   cv::Mat unrotated_;  // scaling target when a rotation follows
 };
 
-}  // namespace framelint::decode
+}  // namespace clipwarden::decode

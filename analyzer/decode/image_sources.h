@@ -8,9 +8,9 @@
 #include <utility>
 #include <vector>
 
-#include "framelint/clip_source.h"
+#include "clipwarden/clip_source.h"
 
-namespace framelint::decode {
+namespace clipwarden::decode {
 
 // Frame rate of a folder when SourceOptions::folder_fps is not given.
 inline constexpr double kDefaultFolderFps = 24.0;
@@ -37,4 +37,4 @@ Expected<std::unique_ptr<ClipSource>> open_webp_source(const std::string& path,
 // probe: frame count and timing from the WebP container, no decoding.
 Expected<std::pair<ClipInfo, StreamFacts>> probe_webp(const std::string& path);
 
-}  // namespace framelint::decode
+}  // namespace clipwarden::decode

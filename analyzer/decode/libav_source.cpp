@@ -14,7 +14,7 @@ extern "C" {
 #include "analyzer/decode/stream_timing.h"
 #include "analyzer/decode/truncation.h"
 
-namespace framelint::decode {
+namespace clipwarden::decode {
 namespace {
 
 // Undecodable packets in a row before we give up on the stream: enough to
@@ -335,4 +335,4 @@ Expected<std::pair<ClipInfo, StreamFacts>> probe_libav(const std::string& path) 
   return std::make_pair(std::move(info), facts);
 }
 
-}  // namespace framelint::decode
+}  // namespace clipwarden::decode

@@ -6,9 +6,9 @@
 #include <string>
 
 #include "analyzer/decode/libav_util.h"
-#include "framelint/clip_source.h"
+#include "clipwarden/clip_source.h"
 
-namespace framelint::decode {
+namespace clipwarden::decode {
 
 // What the container says about the clip before decoding: format, codec,
 // pixel format, displayed size and rotation, estimated frame count,
@@ -31,4 +31,4 @@ Expected<std::unique_ptr<ClipSource>> open_libav_source(FormatPtr format, const 
 // (no video decoding), audio facts from decoding the audio packets.
 Expected<std::pair<ClipInfo, StreamFacts>> probe_libav(const std::string& path);
 
-}  // namespace framelint::decode
+}  // namespace clipwarden::decode

@@ -17,11 +17,11 @@ extern "C" {
 #include <libavutil/display.h>
 }
 
-namespace framelint::decode {
+namespace clipwarden::decode {
 namespace {
 
 thread_local std::string t_last_av_error;
-bool g_forward_av_log = false;  // FRAMELINT_AV_LOG=1: also print libav's log (for debugging)
+bool g_forward_av_log = false;  // CLIPWARDEN_AV_LOG=1: also print libav's log (for debugging)
 
 void quiet_log_callback(void* context, int level, const char* format, va_list args) {
   if (g_forward_av_log) {
@@ -81,7 +81,7 @@ std::string av_error_text(int code) {
 void install_quiet_av_log() {
   static std::once_flag once;
   std::call_once(once, [] {
-    const char* forward = std::getenv("FRAMELINT_AV_LOG");
+    const char* forward = std::getenv("CLIPWARDEN_AV_LOG");
     g_forward_av_log = forward && std::string(forward) == "1";
     av_log_set_callback(quiet_log_callback);
   });
@@ -215,4 +215,4 @@ int stream_rotation_cw(const AVStream* stream) {
   return ((cw + 45) / 90) % 4 * 90;
 }
 
-}  // namespace framelint::decode
+}  // namespace clipwarden::decode

@@ -14,9 +14,9 @@ extern "C" {
 #include <libswscale/swscale.h>
 }
 
-#include "framelint/error.h"
+#include "clipwarden/error.h"
 
-namespace framelint::decode {
+namespace clipwarden::decode {
 
 struct FormatCloser {
   void operator()(AVFormatContext* c) const { avformat_close_input(&c); }
@@ -56,7 +56,7 @@ std::string frame_size_cause(int width, int height);
 std::string av_error_text(int code);
 
 // Routes libav's log through a filter: nothing is printed (the CLI's output
-// stays one clear line per problem; FRAMELINT_AV_LOG=1 prints it too, for
+// stays one clear line per problem; CLIPWARDEN_AV_LOG=1 prints it too, for
 // debugging); the last error-level message of the calling thread is kept so
 // errors can quote libav's own reason. Note: libav's log callback is
 // process-wide, so a host program's own libav logging is silenced too.
@@ -93,4 +93,4 @@ Expected<CodecPtr> open_decoder(const AVStream* stream, int threads, const std::
 // from its display matrix side data.
 int stream_rotation_cw(const AVStream* stream);
 
-}  // namespace framelint::decode
+}  // namespace clipwarden::decode

@@ -7,7 +7,7 @@
 #include "analyzer/decode/libav_source.h"
 #include "analyzer/decode/libav_util.h"
 
-namespace framelint::decode {
+namespace clipwarden::decode {
 namespace {
 
 // libav's read position in the bytes.
@@ -118,4 +118,4 @@ Expected<std::unique_ptr<ClipSource>> open_memory_source(const uint8_t* data, si
   return std::unique_ptr<ClipSource>(std::move(source));
 }
 
-}  // namespace framelint::decode
+}  // namespace clipwarden::decode

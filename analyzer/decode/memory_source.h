@@ -7,9 +7,9 @@
 #include <memory>
 #include <string>
 
-#include "framelint/clip_source.h"
+#include "clipwarden/clip_source.h"
 
-namespace framelint::decode {
+namespace clipwarden::decode {
 
 // Opens `size` bytes at `data` (copied; the caller's buffer may go away) as
 // a clip of any container libavformat reads by content. `name` only names
@@ -20,4 +20,4 @@ Expected<std::unique_ptr<ClipSource>> open_memory_source(const uint8_t* data, si
                                                          const std::string& name,
                                                          const SourceOptions& options);
 
-}  // namespace framelint::decode
+}  // namespace clipwarden::decode

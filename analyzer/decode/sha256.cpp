@@ -4,9 +4,9 @@
 #include <filesystem>
 #include <vector>
 
-#include "framelint/clip_source.h"
+#include "clipwarden/clip_source.h"
 
-namespace framelint::decode {
+namespace clipwarden::decode {
 namespace {
 
 // FIPS 180-4 section 4.2.2: the first 32 bits of the fractional parts of the
@@ -112,9 +112,9 @@ std::string Sha256::hex_digest() {
   return hex;
 }
 
-}  // namespace framelint::decode
+}  // namespace clipwarden::decode
 
-namespace framelint {
+namespace clipwarden {
 
 Expected<std::string> sha256_file(const std::string& path) {
   std::error_code ec;
@@ -133,4 +133,4 @@ Expected<std::string> sha256_file(const std::string& path) {
   return hash.hex_digest();
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -7,7 +7,7 @@
 #include <cstdint>
 #include <string>
 
-namespace framelint::decode {
+namespace clipwarden::decode {
 
 class Sha256 {
  public:
@@ -28,4 +28,4 @@ class Sha256 {
   uint64_t total_bytes_ = 0;
 };
 
-}  // namespace framelint::decode
+}  // namespace clipwarden::decode

@@ -3,7 +3,7 @@
 #include <algorithm>
 #include <cmath>
 
-namespace framelint::decode {
+namespace clipwarden::decode {
 
 StreamTiming::StreamTiming(double tick_s, double fallback_interval_s)
     : tick_s_(tick_s > 0 ? tick_s : 1.0),
@@ -64,4 +64,4 @@ StreamFacts StreamTiming::facts() const {
   return facts;
 }
 
-}  // namespace framelint::decode
+}  // namespace clipwarden::decode

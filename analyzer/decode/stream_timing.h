@@ -8,9 +8,9 @@
 #include <optional>
 #include <vector>
 
-#include "framelint/report.h"
+#include "clipwarden/report.h"
 
-namespace framelint::decode {
+namespace clipwarden::decode {
 
 class StreamTiming {
  public:
@@ -53,4 +53,4 @@ class StreamTiming {
   std::vector<int64_t> intervals_;  // 8 bytes a frame: the only per-frame state kept
 };
 
-}  // namespace framelint::decode
+}  // namespace clipwarden::decode

@@ -4,7 +4,7 @@
 #include <cstring>
 #include <filesystem>
 
-namespace framelint::decode {
+namespace clipwarden::decode {
 namespace {
 
 class DiskFile final : public FileBytes {
@@ -146,4 +146,4 @@ std::optional<std::string> find_truncation(const std::string& path) {
   return find_truncation(file);
 }
 
-}  // namespace framelint::decode
+}  // namespace clipwarden::decode

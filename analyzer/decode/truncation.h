@@ -11,7 +11,7 @@
 #include <string>
 #include <vector>
 
-namespace framelint::decode {
+namespace clipwarden::decode {
 
 // Why the file looks truncated ("the file ends at byte 1000 but its mdat
 // box runs to byte 5000"), or nothing when it looks whole or the container
@@ -27,4 +27,4 @@ struct FileBytes {
 };
 std::optional<std::string> find_truncation(const FileBytes& file);
 
-}  // namespace framelint::decode
+}  // namespace clipwarden::decode

@@ -12,7 +12,7 @@
 #include "analyzer/decode/libav_util.h"
 #include "analyzer/decode/stream_timing.h"
 
-namespace framelint::decode {
+namespace clipwarden::decode {
 namespace {
 
 struct AnimDecoderDeleter {
@@ -168,4 +168,4 @@ Expected<std::pair<ClipInfo, StreamFacts>> probe_webp(const std::string& path) {
   return std::make_pair(std::move(info), timing.facts());
 }
 
-}  // namespace framelint::decode
+}  // namespace clipwarden::decode

@@ -7,7 +7,7 @@
 #include <algorithm>
 #include <cmath>
 
-namespace framelint::drift {
+namespace clipwarden::drift {
 
 struct DriftParams {
   // Geometry (working pixels, already scaled to the frame).
@@ -75,4 +75,4 @@ struct DriftParams {
   }
 };
 
-}  // namespace framelint::drift
+}  // namespace clipwarden::drift

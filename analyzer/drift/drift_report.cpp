@@ -4,7 +4,7 @@
 #include <cmath>
 #include <map>
 
-namespace framelint::drift {
+namespace clipwarden::drift {
 namespace {
 
 constexpr double kSamplesPerSecond = 8;
@@ -205,4 +205,4 @@ nlohmann::json drift_summary(const std::vector<ObjectTrack>& objects) {
           {"peak_drift", worst < 0 ? nlohmann::json(nullptr) : number_or_null(worst, 1e-4)}};
 }
 
-}  // namespace framelint::drift
+}  // namespace clipwarden::drift

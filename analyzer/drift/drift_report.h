@@ -7,9 +7,9 @@
 #include <nlohmann/json.hpp>
 
 #include "analyzer/drift/object_track.h"
-#include "framelint/report.h"
+#include "clipwarden/report.h"
 
-namespace framelint::drift {
+namespace clipwarden::drift {
 
 // Hysteresis on an object's own drift series (same meaning as a policy
 // SegmentRule: open at `enter`, close below `leave`, keep >= min_frames).
@@ -32,4 +32,4 @@ double theil_sen_slope(const std::vector<double>& t, const std::vector<double>& 
 // Clip-level drift figures for summary.details["drift"].
 nlohmann::json drift_summary(const std::vector<ObjectTrack>& objects);
 
-}  // namespace framelint::drift
+}  // namespace clipwarden::drift

@@ -8,7 +8,7 @@
 
 #include "analyzer/drift/sampling.h"
 
-namespace framelint::drift {
+namespace clipwarden::drift {
 namespace {
 
 constexpr int kHistogramBins = 32;
@@ -358,4 +358,4 @@ void DriftTracker::fit_global_illumination() {
   contrast_gain_ = std::clamp(illumination_cur_.mean_gain(), 0.2f, 5.0f);
 }
 
-}  // namespace framelint::drift
+}  // namespace clipwarden::drift

@@ -24,7 +24,7 @@
 #include "analyzer/drift/proposals.h"
 #include "analyzer/metrics/frame_pair.h"
 
-namespace framelint::drift {
+namespace clipwarden::drift {
 
 // Marks the points whose four grid neighbours (at `spacing`) are also
 // points of the object: their windows hold no background.
@@ -151,4 +151,4 @@ class DriftTracker {
   cv::Mat covered_nodes_;
 };
 
-}  // namespace framelint::drift
+}  // namespace clipwarden::drift

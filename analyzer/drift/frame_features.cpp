@@ -8,7 +8,7 @@
 
 #include "analyzer/drift/sampling.h"
 
-namespace framelint::drift {
+namespace clipwarden::drift {
 
 void FrameFeatures::compute(int64_t frame_index, const cv::Mat& gray, const cv::Mat& bgr,
                             int window_radius) {
@@ -74,4 +74,4 @@ float histogram_distance(const float* reference, const float* current, float ref
   return std::sqrt(0.5f * sum);
 }
 
-}  // namespace framelint::drift
+}  // namespace clipwarden::drift

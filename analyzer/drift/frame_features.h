@@ -12,7 +12,7 @@
 
 #include <opencv2/core.hpp>
 
-namespace framelint::drift {
+namespace clipwarden::drift {
 
 inline constexpr int kOrientationBins = 12;  // 30 degrees each, signed (0-360)
 using OrientationHistogram = std::array<float, kOrientationBins>;
@@ -51,4 +51,4 @@ class FrameFeatures {
 float histogram_distance(const float* reference, const float* current, float reference_mass,
                          float current_scale);
 
-}  // namespace framelint::drift
+}  // namespace clipwarden::drift

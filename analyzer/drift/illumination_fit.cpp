@@ -3,7 +3,7 @@
 #include <algorithm>
 #include <cmath>
 
-namespace framelint::drift {
+namespace clipwarden::drift {
 namespace {
 
 constexpr float kClipLow = 1.5f / 255.0f;
@@ -98,4 +98,4 @@ IlluminationMap fit_illumination(std::span<const cv::Vec3f> reference,
   return map;
 }
 
-}  // namespace framelint::drift
+}  // namespace clipwarden::drift

@@ -16,7 +16,7 @@
 
 #include <opencv2/core.hpp>
 
-namespace framelint::drift {
+namespace clipwarden::drift {
 
 struct ChannelAffine {
   float gain = 1;
@@ -44,4 +44,4 @@ IlluminationMap fit_illumination(std::span<const cv::Vec3f> reference,
                                  std::span<const cv::Vec3f> current, std::vector<float>& scratch,
                                  int min_samples = 24);
 
-}  // namespace framelint::drift
+}  // namespace clipwarden::drift

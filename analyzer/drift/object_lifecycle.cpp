@@ -7,7 +7,7 @@
 #include "analyzer/color/ciede2000.h"
 #include "analyzer/drift/drift_tracker.h"
 
-namespace framelint::drift {
+namespace clipwarden::drift {
 
 // A moving region found by its motion in one frame pair carries a fringe of
 // background: flow is smeared across the object's edge, so background next
@@ -180,4 +180,4 @@ bool DriftTracker::looks_like_itself(const PointCounts& counts) const {
   return counts.tracked >= 3 && counts.visible * 2 >= counts.tracked;
 }
 
-}  // namespace framelint::drift
+}  // namespace clipwarden::drift

@@ -13,7 +13,7 @@
 #include "analyzer/drift/frame_features.h"
 #include "analyzer/drift/similarity_fit.h"
 
-namespace framelint::drift {
+namespace clipwarden::drift {
 
 enum class PointState : uint8_t {
   tracked,   // followed by the flow, forward-backward consistent
@@ -83,4 +83,4 @@ struct ObjectTrack {
   std::vector<ObjectSample> history;
 };
 
-}  // namespace framelint::drift
+}  // namespace clipwarden::drift

@@ -8,7 +8,7 @@
 #include "analyzer/drift/reference_alignment.h"
 #include "analyzer/drift/sampling.h"
 
-namespace framelint::drift {
+namespace clipwarden::drift {
 namespace {
 
 color::Lab lab_of(const cv::Vec3f& bgr) { return color::srgb_to_lab_fast({bgr[2], bgr[1], bgr[0]}); }
@@ -310,4 +310,4 @@ ObjectSample DriftTracker::update_object(const FramePair& pair, ObjectTrack& obj
 
 
 
-}  // namespace framelint::drift
+}  // namespace clipwarden::drift

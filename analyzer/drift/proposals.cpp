@@ -9,7 +9,7 @@
 #include "analyzer/drift/sampling.h"
 #include "analyzer/drift/similarity_fit.h"
 
-namespace framelint::drift {
+namespace clipwarden::drift {
 
 NodeGrid NodeGrid::for_frame(int width, int height, int step) {
   NodeGrid g;
@@ -222,4 +222,4 @@ std::vector<RegionProposal> propose_scene_cells(const cv::Mat& magnitude, const 
   return out;
 }
 
-}  // namespace framelint::drift
+}  // namespace clipwarden::drift

@@ -10,7 +10,7 @@
 
 #include "analyzer/metrics/frame_pair.h"
 
-namespace framelint::drift {
+namespace clipwarden::drift {
 
 // Node (col, row) sits at pixel ((col + 0.5) * step, (row + 0.5) * step).
 struct NodeGrid {
@@ -63,4 +63,4 @@ std::vector<RegionProposal> propose_scene_cells(const cv::Mat& magnitude, const 
                                                 const cv::Mat& covered, const NodeGrid& grid,
                                                 float min_texture);
 
-}  // namespace framelint::drift
+}  // namespace clipwarden::drift

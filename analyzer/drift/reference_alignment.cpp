@@ -5,7 +5,7 @@
 
 #include "analyzer/drift/sampling.h"
 
-namespace framelint::drift {
+namespace clipwarden::drift {
 namespace {
 
 constexpr int kParams = 6;  // dx, dy, scale, rotation (about the centroid), gain, offset
@@ -87,4 +87,4 @@ bool align_to_reference(const cv::Mat& gray, std::span<const cv::Point2f> positi
   return true;
 }
 
-}  // namespace framelint::drift
+}  // namespace clipwarden::drift

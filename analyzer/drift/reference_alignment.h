@@ -25,7 +25,7 @@
 
 #include "analyzer/drift/similarity_fit.h"
 
-namespace framelint::drift {
+namespace clipwarden::drift {
 
 struct AlignmentLimits {
   float max_shift_px = 2;  // translation per frame
@@ -42,4 +42,4 @@ bool align_to_reference(const cv::Mat& gray, std::span<const cv::Point2f> positi
                         std::span<const float> templates, const AlignmentLimits& limits,
                         Similarity& correction);
 
-}  // namespace framelint::drift
+}  // namespace clipwarden::drift

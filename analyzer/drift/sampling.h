@@ -7,7 +7,7 @@
 
 #include <opencv2/core.hpp>
 
-namespace framelint::drift {
+namespace clipwarden::drift {
 
 struct BilinearTap {
   int x0, y0, x1, y1;
@@ -80,4 +80,4 @@ inline cv::Point2f apply_homography(const cv::Matx33d& h, cv::Point2f p) {
           static_cast<float>((h(1, 0) * p.x + h(1, 1) * p.y + h(1, 2)) / w)};
 }
 
-}  // namespace framelint::drift
+}  // namespace clipwarden::drift

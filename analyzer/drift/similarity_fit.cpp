@@ -2,7 +2,7 @@
 
 #include <cmath>
 
-namespace framelint::drift {
+namespace clipwarden::drift {
 namespace {
 
 // Least squares over the flagged points (all when `mask` is empty).
@@ -97,4 +97,4 @@ bool fit_similarity(std::span<const cv::Point2f> src, std::span<const cv::Point2
   return true;
 }
 
-}  // namespace framelint::drift
+}  // namespace clipwarden::drift

@@ -11,7 +11,7 @@
 
 #include <opencv2/core.hpp>
 
-namespace framelint::drift {
+namespace clipwarden::drift {
 
 struct Similarity {
   // x' = [a -b; b a] x + t
@@ -30,4 +30,4 @@ bool fit_similarity(std::span<const cv::Point2f> src, std::span<const cv::Point2
                     float inlier_px, uint32_t seed, Similarity& fit, std::vector<uint8_t>& inliers,
                     int iterations = 48);
 
-}  // namespace framelint::drift
+}  // namespace clipwarden::drift

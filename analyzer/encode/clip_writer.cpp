@@ -14,9 +14,9 @@ extern "C" {
 }
 
 #include "analyzer/decode/libav_util.h"
-#include "framelint/clip_writer.h"
+#include "clipwarden/clip_writer.h"
 
-namespace framelint {
+namespace clipwarden {
 
 const char* to_string(VideoCodec codec) {
   switch (codec) {
@@ -262,4 +262,4 @@ Expected<std::unique_ptr<ClipWriter>> ClipWriter::create(const std::string& path
   return std::unique_ptr<ClipWriter>(std::move(writer));
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -5,7 +5,7 @@
 
 #include <opencv2/imgproc.hpp>
 
-namespace framelint::flash {
+namespace clipwarden::flash {
 
 cv::Size ten_degree_field(cv::Size grid) {
   const int w = static_cast<int>(std::lround(grid.width * kFieldWidth_px / kScreenWidth_px));
@@ -106,4 +106,4 @@ cv::Mat cells_in_dense_fields(const cv::Mat& same_way01, const cv::Mat& other_wa
   return out;
 }
 
-}  // namespace framelint::flash
+}  // namespace clipwarden::flash

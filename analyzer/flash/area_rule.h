@@ -9,7 +9,7 @@
 
 #include <opencv2/core.hpp>
 
-namespace framelint::flash {
+namespace clipwarden::flash {
 
 // The share of a 10-degree field that flashing may cover without failing.
 inline constexpr double kAreaFraction = 0.25;
@@ -43,4 +43,4 @@ AreaResult max_flashes_over_area(const cv::Mat& flash_counts, cv::Size field);
 cv::Mat cells_in_dense_fields(const cv::Mat& same_way01, const cv::Mat& other_way01,
                               cv::Size field);
 
-}  // namespace framelint::flash
+}  // namespace clipwarden::flash

@@ -8,7 +8,7 @@
 
 #include "analyzer/color/relative_luminance.h"
 
-namespace framelint::flash {
+namespace clipwarden::flash {
 namespace {
 
 // OpenCV's area-resampling table for one axis (imgproc/src/resize.cpp,
@@ -143,4 +143,4 @@ void compute_cell_means(const cv::Mat& luminance, const cv::Mat& bgr8, cv::Size 
   }
 }
 
-}  // namespace framelint::flash
+}  // namespace clipwarden::flash

@@ -15,7 +15,7 @@
 
 #include <opencv2/core.hpp>
 
-namespace framelint::flash {
+namespace clipwarden::flash {
 
 struct CellMeans {
   // CV_32FC1, grid size: relative luminance and linear-light R, G, B.
@@ -50,4 +50,4 @@ void compute_cell_means(const cv::Mat& luminance, const cv::Mat& bgr8, cv::Size 
 void cell_means_of_linear(const cv::Mat& luminance, const cv::Mat& linear_bgr, cv::Size grid,
                           CellMeans& out);
 
-}  // namespace framelint::flash
+}  // namespace clipwarden::flash

@@ -8,7 +8,7 @@
 
 #include "analyzer/flash/area_rule.h"
 
-namespace framelint::flash {
+namespace clipwarden::flash {
 namespace {
 
 const SwingRule kGeneralRule{kGeneralMinChange, false, kGeneralDarkerBelow, false};
@@ -234,4 +234,4 @@ FlashFrame FlashDetector::add_cells(double t_s, const CellMeans& cells) {
   return out;
 }
 
-}  // namespace framelint::flash
+}  // namespace clipwarden::flash

@@ -47,7 +47,7 @@
 #include "analyzer/flash/cell_means.h"
 #include "analyzer/flash/swing_tracker.h"
 
-namespace framelint::flash {
+namespace clipwarden::flash {
 
 // WCAG 2.x thresholds (definition quoted above).
 inline constexpr float kGeneralMinChange = 0.1f;     // "10% or more"
@@ -133,4 +133,4 @@ class FlashDetector {
   std::vector<int32_t> flags_;  // scratch: a row's cells to update
 };
 
-}  // namespace framelint::flash
+}  // namespace clipwarden::flash

@@ -3,7 +3,7 @@
 #include <algorithm>
 #include <cmath>
 
-namespace framelint::flash {
+namespace clipwarden::flash {
 namespace {
 
 // Values come from 8-bit frames through float arithmetic: a black-to-white
@@ -89,4 +89,4 @@ void SwingTracker::quiet_range(const SwingRule& rule, float& lo, float& hi) cons
   }
 }
 
-}  // namespace framelint::flash
+}  // namespace clipwarden::flash

@@ -13,7 +13,7 @@
 
 #include <cstdint>
 
-namespace framelint::flash {
+namespace clipwarden::flash {
 
 enum class Swing : int8_t { none = 0, up = 1, down = -1 };
 
@@ -69,4 +69,4 @@ class SwingTracker {
   Swing dir_ = Swing::none;
 };
 
-}  // namespace framelint::flash
+}  // namespace clipwarden::flash

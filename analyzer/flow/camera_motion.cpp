@@ -5,7 +5,7 @@
 
 #include <opencv2/calib3d.hpp>
 
-namespace framelint {
+namespace clipwarden {
 
 CameraMotion fit_camera_motion(const cv::Mat& flow_backward, const cv::Mat& valid) {
   // About 600 samples whatever the working size: enough for a stable fit,
@@ -35,4 +35,4 @@ CameraMotion fit_camera_motion(const cv::Mat& flow_backward, const cv::Mat& vali
   return out;
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -4,7 +4,7 @@
 
 #include <opencv2/core.hpp>
 
-namespace framelint {
+namespace clipwarden {
 
 struct CameraMotion {
   cv::Matx33d homography = cv::Matx33d::eye();  // prev -> cur pixel coordinates
@@ -14,4 +14,4 @@ struct CameraMotion {
 // flow_backward maps cur pixels to prev; valid marks consistent pixels.
 CameraMotion fit_camera_motion(const cv::Mat& flow_backward, const cv::Mat& valid);
 
-}  // namespace framelint
+}  // namespace clipwarden

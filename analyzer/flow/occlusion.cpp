@@ -1,6 +1,6 @@
 #include "analyzer/flow/occlusion.h"
 
-namespace framelint {
+namespace clipwarden {
 
 void flow_to_map(const cv::Mat& flow, cv::Mat& map) {
   CV_Assert(flow.type() == CV_32FC2);
@@ -38,4 +38,4 @@ double forward_backward_check(const cv::Mat& flow_backward, const cv::Mat& forwa
   return static_cast<double>(count) / (static_cast<double>(w) * h);
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -9,7 +9,7 @@
 
 #include <opencv2/core.hpp>
 
-namespace framelint {
+namespace clipwarden {
 
 inline constexpr float kOcclusionRelative = 0.01f;
 inline constexpr float kOcclusionAbsolute = 0.5f;
@@ -23,4 +23,4 @@ double forward_backward_check(const cv::Mat& flow_backward, const cv::Mat& forwa
 // Absolute sampling map x + flow(x) for cv::remap (CV_32FC2).
 void flow_to_map(const cv::Mat& flow, cv::Mat& map);
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -7,7 +7,7 @@
 #include "analyzer/flow/camera_motion.h"
 #include "analyzer/flow/occlusion.h"
 
-namespace framelint {
+namespace clipwarden {
 
 void prepare_planes(int64_t index, double t_s, const cv::Mat& bgr, FramePlanes& planes) {
   planes.index = index;
@@ -95,4 +95,4 @@ void PairBuilder::build(const FramePlanes& prev, const FramePlanes& cur, FramePa
   pair.camera_inlier_fraction = camera.inlier_fraction;
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

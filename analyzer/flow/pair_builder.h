@@ -7,9 +7,9 @@
 #include <memory>
 
 #include "analyzer/metrics/frame_pair.h"
-#include "framelint/analysis.h"
+#include "clipwarden/analysis.h"
 
-namespace framelint {
+namespace clipwarden {
 
 // Fills the per-frame planes (gray, luminance) of a decoded frame.
 void prepare_planes(int64_t index, double t_s, const cv::Mat& bgr, FramePlanes& planes);
@@ -31,4 +31,4 @@ class PairBuilder {
   std::unique_ptr<Impl> impl_;
 };
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -6,9 +6,9 @@
 #include <map>
 #include <set>
 
-#include "framelint/gate.h"
+#include "clipwarden/gate.h"
 
-namespace framelint {
+namespace clipwarden {
 namespace {
 
 namespace fs = std::filesystem;
@@ -177,4 +177,4 @@ Expected<CollectedInputs> collect_inputs(const std::vector<std::string>& args) {
   return out;
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

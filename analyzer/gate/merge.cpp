@@ -1,4 +1,4 @@
-// framelint merge: the outputs of shard runs joined into one folder. Report
+// clipwarden merge: the outputs of shard runs joined into one folder. Report
 // names are unique across shards (the gate names clips over the whole input
 // list before taking its share), so a merge normally copies them unchanged.
 #include <algorithm>
@@ -8,11 +8,11 @@
 #include <set>
 #include <sstream>
 
-#include "framelint/gate.h"
-#include "framelint/report_io.h"
-#include "framelint/store.h"
+#include "clipwarden/gate.h"
+#include "clipwarden/report_io.h"
+#include "clipwarden/store.h"
 
-namespace framelint {
+namespace clipwarden {
 namespace {
 
 namespace fs = std::filesystem;
@@ -94,7 +94,7 @@ struct Merger {
   }
 
   Status merge_store(const fs::path& dir, ResultStore& into) {
-    const fs::path db = dir / "framelint.db";
+    const fs::path db = dir / "clipwarden.db";
     std::error_code ec;
     if (!fs::exists(db, ec)) return Ok{};  // the shard used a shared --db
     auto from = ResultStore::open(db.string());
@@ -125,7 +125,7 @@ Expected<GateRun> merge_gate_outputs(const std::vector<std::string>& shard_dirs,
     if (canonical_text(dir) == out_canonical)
       return usage_error(dir, "merge output folder must not be one of its inputs");
 
-  auto store = ResultStore::open((fs::path(out_dir) / "framelint.db").string());
+  auto store = ResultStore::open((fs::path(out_dir) / "clipwarden.db").string());
   if (!store) return store.error();
   Merger merger{fs::path(out_dir)};
   std::map<std::string, std::string> seen;  // id -> the folder it came from
@@ -154,4 +154,4 @@ Expected<GateRun> merge_gate_outputs(const std::vector<std::string>& shard_dirs,
   return run;
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

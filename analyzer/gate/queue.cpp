@@ -1,11 +1,11 @@
 // Queue lines (DIR/queue.jsonl) and the files written from the queue.
 #include <filesystem>
 
-#include "framelint/gate.h"
-#include "framelint/report_io.h"
+#include "clipwarden/gate.h"
+#include "clipwarden/report_io.h"
 #include "report/html/queue_page.h"
 
-namespace framelint {
+namespace clipwarden {
 namespace {
 
 using nlohmann::json;
@@ -112,4 +112,4 @@ Status write_queue_outputs(const std::string& out_dir, const std::vector<ClipRes
                            render_queue_page(results, links));
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

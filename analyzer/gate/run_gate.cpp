@@ -26,12 +26,12 @@
 #include <mutex>
 #include <thread>
 
-#include "framelint/gate.h"
-#include "framelint/report_io.h"
-#include "framelint/store.h"
-#include "framelint/version.h"
+#include "clipwarden/gate.h"
+#include "clipwarden/report_io.h"
+#include "clipwarden/store.h"
+#include "clipwarden/version.h"
 
-namespace framelint {
+namespace clipwarden {
 namespace {
 
 namespace fs = std::filesystem;
@@ -233,7 +233,7 @@ Expected<GateRun> run_gate(const std::vector<GateInput>& inputs, const GateOptio
   fs::create_directories(options.out_dir, ec);
   if (ec) return output_error(options.out_dir, "cannot create output folder: " + ec.message());
   const std::string db_path = options.db_path.empty()
-                                  ? (fs::path(options.out_dir) / "framelint.db").string()
+                                  ? (fs::path(options.out_dir) / "clipwarden.db").string()
                                   : options.db_path;
   auto opened = ResultStore::open(db_path);
   if (!opened) return opened.error();
@@ -280,4 +280,4 @@ Expected<GateRun> run_gate(const std::vector<GateInput>& inputs, const GateOptio
   return run;
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

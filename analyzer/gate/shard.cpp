@@ -2,9 +2,9 @@
 // the same input list and keeps the clips whose id hashes to its index.
 #include <charconv>
 
-#include "framelint/gate.h"
+#include "clipwarden/gate.h"
 
-namespace framelint {
+namespace clipwarden {
 namespace {
 
 Expected<int> parse_int(const std::string& text, const std::string& subject) {
@@ -93,4 +93,4 @@ std::vector<GateInput> select_shard(const std::vector<GateInput>& inputs, const 
   return out;
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -6,7 +6,7 @@
 
 #include "analyzer/color/relative_luminance.h"
 
-namespace framelint::inject {
+namespace clipwarden::inject {
 namespace {
 
 constexpr double kTimeEpsilon_s = 1e-6;
@@ -234,4 +234,4 @@ nlohmann::json ActiveDefect::truth() const {
   return j;
 }
 
-}  // namespace framelint::inject
+}  // namespace clipwarden::inject

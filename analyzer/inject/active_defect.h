@@ -13,7 +13,7 @@
 #include "analyzer/inject/frame_effects.h"
 #include "analyzer/inject/region_tracker.h"
 
-namespace framelint::inject {
+namespace clipwarden::inject {
 
 // What a defect may look at for the current frame.
 struct FrameContext {
@@ -84,4 +84,4 @@ class ActiveDefect {
   double first_output_t_ = 0, last_output_t_ = 0;
 };
 
-}  // namespace framelint::inject
+}  // namespace clipwarden::inject

@@ -6,7 +6,7 @@
 #include <cstdlib>
 #include <map>
 
-namespace framelint::inject {
+namespace clipwarden::inject {
 namespace {
 
 struct ClassInfo {
@@ -279,4 +279,4 @@ Expected<DefectSpec> parse_defect_spec(const std::string& text) {
   return d;
 }
 
-}  // namespace framelint::inject
+}  // namespace clipwarden::inject

@@ -1,4 +1,4 @@
-// The --defect SPEC language of `framelint inject` (docs/inject.md):
+// The --defect SPEC language of `clipwarden inject` (docs/inject.md):
 //
 //   CLASS@RANGE[:KEY=VALUE[,KEY=VALUE...]]
 //
@@ -17,9 +17,9 @@
 #include <string>
 #include <vector>
 
-#include "framelint/error.h"
+#include "clipwarden/error.h"
 
-namespace framelint::inject {
+namespace clipwarden::inject {
 
 enum class DefectClass {
   flicker,        // whole-frame luminance pulses
@@ -91,4 +91,4 @@ struct DefectSpec {
 
 Expected<DefectSpec> parse_defect_spec(const std::string& text);
 
-}  // namespace framelint::inject
+}  // namespace clipwarden::inject

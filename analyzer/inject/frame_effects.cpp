@@ -9,7 +9,7 @@
 
 #include "analyzer/color/relative_luminance.h"
 
-namespace framelint::inject {
+namespace clipwarden::inject {
 namespace {
 
 // Linear light in [0, 1] -> 8-bit sRGB code, on a 65536-step grid: fine
@@ -267,4 +267,4 @@ double chroma_shift_for_de(const cv::Vec3d& lab, const cv::Vec2d& direction, dou
   return (lo + hi) / 2;
 }
 
-}  // namespace framelint::inject
+}  // namespace clipwarden::inject

@@ -5,7 +5,7 @@
 
 #include <opencv2/core.hpp>
 
-namespace framelint::inject {
+namespace clipwarden::inject {
 
 // A weight in [0, 1] over part of a frame: `weight` (CV_32FC1) covers `roi`.
 // An empty weight means 1 over the roi.
@@ -66,4 +66,4 @@ double ciede2000(const cv::Vec3d& lab1, const cv::Vec3d& lab2);
 // `target_de` (bisection; direction is a unit vector in the a*b* plane).
 double chroma_shift_for_de(const cv::Vec3d& lab, const cv::Vec2d& direction, double target_de);
 
-}  // namespace framelint::inject
+}  // namespace clipwarden::inject

@@ -11,11 +11,11 @@
 #include <opencv2/imgproc.hpp>
 
 #include "analyzer/inject/active_defect.h"
-#include "framelint/clip_source.h"
-#include "framelint/inject.h"
-#include "framelint/report_io.h"
+#include "clipwarden/clip_source.h"
+#include "clipwarden/inject.h"
+#include "clipwarden/report_io.h"
 
-namespace framelint {
+namespace clipwarden {
 namespace {
 
 using inject::ActiveDefect;
@@ -251,4 +251,4 @@ Expected<nlohmann::json> inject_defects(const std::string& clip_path, const Inje
   return Injector(clip_path, options).run();
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -5,7 +5,7 @@
 
 #include <opencv2/imgproc.hpp>
 
-namespace framelint::inject {
+namespace clipwarden::inject {
 namespace {
 
 double median_of(std::vector<float>& v) {
@@ -105,4 +105,4 @@ cv::Rect2d choose_region(const cv::Mat& bgr, MotionField& motion, cv::Size2d box
   return chosen;
 }
 
-}  // namespace framelint::inject
+}  // namespace clipwarden::inject

@@ -6,7 +6,7 @@
 #include <opencv2/core.hpp>
 #include <opencv2/video/tracking.hpp>
 
-namespace framelint::inject {
+namespace clipwarden::inject {
 
 // Optical flow (OpenCV DIS) from one clean frame to the next, computed on a
 // copy scaled to at most kFlowLongSide pixels, only when asked for.
@@ -43,4 +43,4 @@ class MotionField {
 cv::Rect2d choose_region(const cv::Mat& bgr, MotionField& motion, cv::Size2d box_size, bool prefer_motion,
                          cv::RNG& rng);
 
-}  // namespace framelint::inject
+}  // namespace clipwarden::inject

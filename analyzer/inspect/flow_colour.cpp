@@ -8,7 +8,7 @@
 
 #include <opencv2/imgproc.hpp>
 
-namespace framelint {
+namespace clipwarden {
 namespace {
 
 std::array<Rgb8, 55> build_wheel() {
@@ -110,4 +110,4 @@ cv::Mat flow_colour_wheel_image(int size_px) {
   return out;
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

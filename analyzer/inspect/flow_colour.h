@@ -12,7 +12,7 @@
 
 #include <opencv2/core.hpp>
 
-namespace framelint {
+namespace clipwarden {
 
 // One colour of the wheel, RGB order.
 struct Rgb8 {
@@ -38,4 +38,4 @@ cv::Mat flow_to_bgr(const cv::Mat& flow, double max_length_px = 0, double* used_
 // axes. CV_8UC3 BGR.
 cv::Mat flow_colour_wheel_image(int size_px);
 
-}  // namespace framelint
+}  // namespace clipwarden

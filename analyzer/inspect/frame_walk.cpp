@@ -4,7 +4,7 @@
 
 #include "analyzer/flow/pair_builder.h"
 
-namespace framelint {
+namespace clipwarden {
 
 SourceOptions source_options(const AnalysisSettings& settings) {
   SourceOptions options;
@@ -56,4 +56,4 @@ Expected<FrameWalkResult> walk_frames(const std::string& clip_path,
   return result;
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

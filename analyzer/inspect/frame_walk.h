@@ -10,11 +10,11 @@
 #include <string>
 
 #include "analyzer/metrics/frame_pair.h"
-#include "framelint/analysis.h"
-#include "framelint/clip_source.h"
-#include "framelint/error.h"
+#include "clipwarden/analysis.h"
+#include "clipwarden/clip_source.h"
+#include "clipwarden/error.h"
 
-namespace framelint {
+namespace clipwarden {
 
 struct FrameWalk {
   std::set<int64_t> pair_frames;  // build the pair (t-1, t) at each of these t >= 1
@@ -37,4 +37,4 @@ SourceOptions source_options(const AnalysisSettings& settings);
 Expected<FrameWalkResult> walk_frames(const std::string& clip_path,
                                       const AnalysisSettings& settings, const FrameWalk& walk);
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -1,4 +1,4 @@
-// framelint::inspect_frame and write_panel_pngs (include/framelint/inspect.h).
+// clipwarden::inspect_frame and write_panel_pngs (include/clipwarden/inspect.h).
 #include <cstdio>
 #include <filesystem>
 
@@ -6,10 +6,10 @@
 
 #include "analyzer/inspect/frame_walk.h"
 #include "analyzer/inspect/panels.h"
-#include "framelint/inspect.h"
-#include "framelint/report_io.h"
+#include "clipwarden/inspect.h"
+#include "clipwarden/report_io.h"
 
-namespace framelint {
+namespace clipwarden {
 
 Expected<FramePanels> inspect_frame(const std::string& clip_path, int64_t frame_index,
                                     const AnalysisSettings& settings) {
@@ -68,4 +68,4 @@ Expected<std::vector<std::string>> write_panel_pngs(const FramePanels& panels,
   return paths;
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -8,7 +8,7 @@
 
 #include "analyzer/inspect/flow_colour.h"
 
-namespace framelint {
+namespace clipwarden {
 namespace {
 
 // The heat map's colour scale: OpenCV's "inferno" map, dark for no error and
@@ -135,4 +135,4 @@ double warp_error_at_position(double position) { return kWarpErrorHeatMax * posi
 
 cv::Mat flow_colour_key(int size_px) { return flow_colour_wheel_image(size_px); }
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -1,13 +1,13 @@
-// Pictures of one frame pair (include/framelint/inspect.h): computed from a
+// Pictures of one frame pair (include/clipwarden/inspect.h): computed from a
 // FramePair built by PairBuilder, so they show exactly what the metrics saw.
 #pragma once
 
 #include <vector>
 
 #include "analyzer/metrics/frame_pair.h"
-#include "framelint/inspect.h"
+#include "clipwarden/inspect.h"
 
-namespace framelint {
+namespace clipwarden {
 
 // Per-pixel warp error, CV_32FC1: the squared difference of current and
 // warped previous summed over B, G, R, channels scaled to [0, 1].
@@ -30,4 +30,4 @@ FramePanels make_pair_panels(const FramePair& pair);
 // The panels of a frame with no predecessor (frame 0): only `current`.
 FramePanels make_first_frame_panels(const FramePlanes& frame);
 
-}  // namespace framelint
+}  // namespace clipwarden

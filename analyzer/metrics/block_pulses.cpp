@@ -4,7 +4,7 @@
 #include <cmath>
 #include <limits>
 
-namespace framelint {
+namespace clipwarden {
 
 namespace {
 
@@ -125,4 +125,4 @@ void BlockPulseTracker::add(int64_t frame, double t_s, std::span<const float> ch
   }
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

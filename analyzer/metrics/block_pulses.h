@@ -22,7 +22,7 @@
 
 #include "analyzer/flash/swing_tracker.h"
 
-namespace framelint {
+namespace clipwarden {
 
 // Block b = row * cols + col. Blocks with fewer than half their pixels valid
 // are NaN (unknown this pair). With level_floor > 0 each change is divided
@@ -77,4 +77,4 @@ class BlockPulseTracker {
   double max_pulse_s_;
 };
 
-}  // namespace framelint
+}  // namespace clipwarden

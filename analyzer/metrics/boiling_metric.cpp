@@ -38,7 +38,7 @@
 #include "analyzer/metrics/metric.h"
 #include "analyzer/metrics/shot_boundaries.h"
 
-namespace framelint {
+namespace clipwarden {
 namespace {
 
 constexpr int kCellsPerLongSide = 8;
@@ -176,4 +176,4 @@ std::unique_ptr<Metric> make_boiling_metric(const AnalysisSettings&) {
   return std::make_unique<BoilingMetric>();
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

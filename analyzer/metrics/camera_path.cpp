@@ -3,7 +3,7 @@
 #include <cmath>
 #include <limits>
 
-namespace framelint {
+namespace clipwarden {
 
 std::array<cv::Point2d, 5> camera_reference_points(cv::Size frame) {
   const double cx = frame.width / 2.0, cy = frame.height / 2.0;
@@ -48,4 +48,4 @@ std::vector<double> camera_jerk(const std::vector<CameraStep>& steps, cv::Size f
   return jerk;
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

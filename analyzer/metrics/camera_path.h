@@ -28,7 +28,7 @@
 
 #include <opencv2/core.hpp>
 
-namespace framelint {
+namespace clipwarden {
 
 struct CameraStep {
   double dt_s = 0;
@@ -47,4 +47,4 @@ CameraStep camera_step(const cv::Matx33d& prev_to_cur, cv::Size frame, double dt
 // per frame (steps.size()), NaN where undefined.
 std::vector<double> camera_jerk(const std::vector<CameraStep>& steps, cv::Size frame);
 
-}  // namespace framelint
+}  // namespace clipwarden

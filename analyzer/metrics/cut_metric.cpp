@@ -12,7 +12,7 @@
 
 #include "analyzer/metrics/metric.h"
 
-namespace framelint {
+namespace clipwarden {
 namespace {
 
 // The 8x8x8 histogram cv::calcHist gives for channels {0, 1, 2}, 8 bins
@@ -58,4 +58,4 @@ class CutMetric final : public Metric {
 
 std::unique_ptr<Metric> make_cut_metric(const AnalysisSettings&) { return std::make_unique<CutMetric>(); }
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -3,7 +3,7 @@
 // combined drift and its colour (CIEDE2000), structure and size components;
 // per object: report.objects.
 //
-// Setting FRAMELINT_DISABLE_DRIFT=1 in the environment turns the follower
+// Setting CLIPWARDEN_DISABLE_DRIFT=1 in the environment turns the follower
 // off (columns stay, values null); it exists to measure drift's share of the
 // analysis time.
 #include <cmath>
@@ -14,13 +14,13 @@
 #include "analyzer/drift/drift_report.h"
 #include "analyzer/drift/drift_tracker.h"
 #include "analyzer/metrics/metric.h"
-#include "framelint/policy.h"
+#include "clipwarden/policy.h"
 
-namespace framelint {
+namespace clipwarden {
 namespace {
 
 bool drift_disabled_by_environment() {
-  const char* v = std::getenv("FRAMELINT_DISABLE_DRIFT");
+  const char* v = std::getenv("CLIPWARDEN_DISABLE_DRIFT");
   return v && *v && std::string(v) != "0";
 }
 
@@ -102,4 +102,4 @@ std::unique_ptr<Metric> make_drift_metric(const AnalysisSettings& settings) {
   return std::make_unique<DriftMetric>(settings);
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -17,7 +17,7 @@
 #include "analyzer/metrics/flash_metric.h"
 #include "analyzer/metrics/metric.h"
 
-namespace framelint {
+namespace clipwarden {
 
 const char* const kFlashCaution =
     "Flash screening is a screening aid, not a certification: it applies the WCAG 2.x general "
@@ -185,4 +185,4 @@ std::unique_ptr<Metric> make_flash_metric(const AnalysisSettings&) {
   return std::make_unique<FlashMetric>();
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

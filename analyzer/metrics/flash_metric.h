@@ -2,8 +2,8 @@
 // summary.flash.details) and the reporters that show it.
 #pragma once
 
-namespace framelint {
+namespace clipwarden {
 
 extern const char* const kFlashCaution;
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -17,7 +17,7 @@
 #include "analyzer/metrics/block_pulses.h"
 #include "analyzer/metrics/metric.h"
 
-namespace framelint {
+namespace clipwarden {
 namespace {
 
 constexpr int kGridCols = 16, kGridRows = 16;
@@ -129,4 +129,4 @@ std::unique_ptr<Metric> make_flicker_local_metric(const AnalysisSettings&) {
   return std::make_unique<FlickerLocalMetric>();
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -26,7 +26,7 @@
 #include "analyzer/metrics/shot_boundaries.h"
 #include "analyzer/metrics/series_math.h"
 
-namespace framelint {
+namespace clipwarden {
 namespace {
 
 constexpr double kMedianWindow_s = 1.0;
@@ -119,4 +119,4 @@ std::unique_ptr<Metric> make_flicker_metric(const AnalysisSettings&) {
   return std::make_unique<FlickerMetric>();
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

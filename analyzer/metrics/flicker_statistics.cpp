@@ -10,7 +10,7 @@
 
 #include "analyzer/metrics/series_math.h"
 
-namespace framelint {
+namespace clipwarden {
 namespace {
 
 constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
@@ -153,4 +153,4 @@ FlickerStatistics flicker_statistics(std::span<const double> track,
   return out;
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

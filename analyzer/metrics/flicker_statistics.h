@@ -24,7 +24,7 @@
 #include <limits>
 #include <span>
 
-namespace framelint {
+namespace clipwarden {
 
 double percent_flicker(std::span<const double> values);
 double flicker_index(std::span<const double> values);
@@ -69,4 +69,4 @@ FlickerStatistics flicker_statistics(std::span<const double> track,
                                      double median_window_s = 1.0,
                                      double level = std::numeric_limits<double>::quiet_NaN());
 
-}  // namespace framelint
+}  // namespace clipwarden

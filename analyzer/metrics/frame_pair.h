@@ -11,7 +11,7 @@
 #include <opencv2/core.hpp>
 #include <opencv2/core/matx.hpp>
 
-namespace framelint {
+namespace clipwarden {
 
 // Per-frame planes prepared once per decoded frame.
 struct FramePlanes {
@@ -75,4 +75,4 @@ struct FramePair {
   PairScratch scratch;
 };
 
-}  // namespace framelint
+}  // namespace clipwarden

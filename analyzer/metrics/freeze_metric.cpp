@@ -6,7 +6,7 @@
 #include "analyzer/metrics/image_error.h"
 #include "analyzer/metrics/metric.h"
 
-namespace framelint {
+namespace clipwarden {
 namespace {
 
 constexpr double kRepeatMaxMeanDifference = 0.001;
@@ -23,4 +23,4 @@ class FreezeMetric final : public Metric {
 
 std::unique_ptr<Metric> make_freeze_metric(const AnalysisSettings&) { return std::make_unique<FreezeMetric>(); }
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -4,7 +4,7 @@
 #include <cstdlib>
 #include <limits>
 
-namespace framelint {
+namespace clipwarden {
 
 double masked_squared_rgb_error(const cv::Mat& a, const cv::Mat& b, const cv::Mat& mask) {
   CV_Assert(a.type() == CV_8UC3 && b.type() == CV_8UC3 && mask.type() == CV_8UC1);
@@ -51,4 +51,4 @@ double masked_mean_difference(const cv::Mat& a, const cv::Mat& b, const cv::Mat&
   return count ? sum / static_cast<double>(count) : std::numeric_limits<double>::quiet_NaN();
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

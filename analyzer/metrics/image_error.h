@@ -3,7 +3,7 @@
 
 #include <opencv2/core.hpp>
 
-namespace framelint {
+namespace clipwarden {
 
 // Mean over pixels where mask != 0 of the squared RGB difference summed over
 // the three channels, with 8-bit values scaled to [0,1]. NaN if the mask is
@@ -16,4 +16,4 @@ double mean_absolute_difference(const cv::Mat& a8, const cv::Mat& b8);
 // Mean over mask of (a - b) for CV_32FC1 images; NaN if the mask is empty.
 double masked_mean_difference(const cv::Mat& a32, const cv::Mat& b32, const cv::Mat& mask);
 
-}  // namespace framelint
+}  // namespace clipwarden

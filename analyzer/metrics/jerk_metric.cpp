@@ -20,7 +20,7 @@
 #include "analyzer/metrics/series_math.h"
 #include "analyzer/metrics/shot_boundaries.h"
 
-namespace framelint {
+namespace clipwarden {
 namespace {
 
 // Share of flow samples that must agree with the fitted homography (at 1 px
@@ -88,4 +88,4 @@ std::unique_ptr<Metric> make_jerk_metric(const AnalysisSettings&) {
   return std::make_unique<JerkMetric>();
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

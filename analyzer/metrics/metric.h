@@ -21,10 +21,10 @@
 #include <vector>
 
 #include "analyzer/metrics/frame_pair.h"
-#include "framelint/analysis.h"
-#include "framelint/report.h"
+#include "clipwarden/analysis.h"
+#include "clipwarden/report.h"
 
-namespace framelint {
+namespace clipwarden {
 
 class Metric {
  public:
@@ -58,4 +58,4 @@ class Metric {
 // A fresh set of metric instances for one clip, in registry order.
 std::vector<std::unique_ptr<Metric>> make_metrics(const AnalysisSettings& settings);
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -4,7 +4,7 @@
 // finish() calls (a metric may read the series of those before it).
 #include "analyzer/metrics/metric.h"
 
-namespace framelint {
+namespace clipwarden {
 
 // Factories, defined beside each metric.
 std::unique_ptr<Metric> make_warp_error_metric(const AnalysisSettings&);
@@ -39,4 +39,4 @@ std::vector<std::unique_ptr<Metric>> make_metrics(const AnalysisSettings& settin
   return metrics;
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

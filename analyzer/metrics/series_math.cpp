@@ -4,7 +4,7 @@
 #include <cmath>
 #include <limits>
 
-namespace framelint {
+namespace clipwarden {
 
 std::vector<double> defined_values(std::span<const double> series) {
   std::vector<double> out;
@@ -54,4 +54,4 @@ double median_frame_interval_s(std::span<const double> times_s) {
   return quantile(std::move(d), 0.5);
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

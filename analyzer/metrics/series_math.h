@@ -4,7 +4,7 @@
 #include <span>
 #include <vector>
 
-namespace framelint {
+namespace clipwarden {
 
 // Defined values only.
 std::vector<double> defined_values(std::span<const double> series);
@@ -23,4 +23,4 @@ std::vector<double> running_median(std::span<const double> series, int half_widt
 // Median frame interval of a timestamp series, seconds; 0 if fewer than 2.
 double median_frame_interval_s(std::span<const double> times_s);
 
-}  // namespace framelint
+}  // namespace clipwarden

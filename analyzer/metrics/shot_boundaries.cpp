@@ -1,6 +1,6 @@
 #include "analyzer/metrics/shot_boundaries.h"
 
-namespace framelint {
+namespace clipwarden {
 
 std::vector<bool> shot_boundaries(const Report& report) {
   const MetricSeries* cut = report.find_series("cut");
@@ -17,4 +17,4 @@ void clear_across_boundaries(std::vector<double>& series, const std::vector<bool
   }
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

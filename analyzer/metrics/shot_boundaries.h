@@ -6,9 +6,9 @@
 
 #include <vector>
 
-#include "framelint/report.h"
+#include "clipwarden/report.h"
 
-namespace framelint {
+namespace clipwarden {
 
 // The cut score at which a frame starts a new shot. Also the default
 // policy's cut threshold (analyzer/policy/default_policy.cpp), where the
@@ -23,4 +23,4 @@ std::vector<bool> shot_boundaries(const Report& report);
 // frames that follow it (for measures that look back several frames).
 void clear_across_boundaries(std::vector<double>& series, const std::vector<bool>& boundaries, int span_after = 1);
 
-}  // namespace framelint
+}  // namespace clipwarden

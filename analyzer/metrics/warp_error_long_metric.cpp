@@ -13,7 +13,7 @@
 #include "analyzer/metrics/metric.h"
 #include "analyzer/metrics/shot_boundaries.h"
 
-namespace framelint {
+namespace clipwarden {
 namespace {
 
 constexpr int kGridStep = 2;
@@ -135,4 +135,4 @@ std::unique_ptr<Metric> make_warp_error_long_metric(const AnalysisSettings& sett
   return std::make_unique<WarpErrorLongMetric>(settings.long_range_k);
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -7,7 +7,7 @@
 #include "analyzer/metrics/metric.h"
 #include "analyzer/metrics/shot_boundaries.h"
 
-namespace framelint {
+namespace clipwarden {
 namespace {
 
 class WarpErrorMetric final : public Metric {
@@ -31,4 +31,4 @@ std::unique_ptr<Metric> make_warp_error_metric(const AnalysisSettings&) {
   return std::make_unique<WarpErrorMetric>();
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -16,9 +16,9 @@
 #include "analyzer/pipeline/frame_stream.h"
 #include "analyzer/pipeline/report_assembly.h"
 #include "analyzer/pipeline/worker_pool.h"
-#include "framelint/analysis.h"
+#include "clipwarden/analysis.h"
 
-namespace framelint {
+namespace clipwarden {
 namespace {
 
 using Clock = std::chrono::steady_clock;
@@ -187,4 +187,4 @@ Expected<Report> analyze_source(ClipSource& source, const std::string& path, con
   return report;
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

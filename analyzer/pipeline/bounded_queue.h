@@ -7,7 +7,7 @@
 #include <mutex>
 #include <optional>
 
-namespace framelint {
+namespace clipwarden {
 
 template <class T>
 class BoundedQueue {
@@ -51,4 +51,4 @@ class BoundedQueue {
   bool closed_ = false;
 };
 
-}  // namespace framelint
+}  // namespace clipwarden

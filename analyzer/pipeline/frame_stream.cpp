@@ -4,7 +4,7 @@
 
 #include "analyzer/flow/pair_builder.h"
 
-namespace framelint {
+namespace clipwarden {
 
 FrameStream::FrameStream(ClipSource& source, size_t capacity)
     : source_(source), queue_(capacity), pool_(PlanesPool::create()), thread_([this] { run(); }) {}
@@ -45,4 +45,4 @@ std::shared_ptr<const FramePlanes> FrameStream::next() {
   return std::move(*item);
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

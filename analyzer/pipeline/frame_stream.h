@@ -9,9 +9,9 @@
 #include "analyzer/metrics/frame_pair.h"
 #include "analyzer/pipeline/bounded_queue.h"
 #include "analyzer/pipeline/planes_pool.h"
-#include "framelint/clip_source.h"
+#include "clipwarden/clip_source.h"
 
-namespace framelint {
+namespace clipwarden {
 
 class FrameStream {
  public:
@@ -38,4 +38,4 @@ class FrameStream {
   std::thread thread_;
 };
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -8,9 +8,9 @@
 #include <vector>
 
 #include "analyzer/metrics/metric.h"
-#include "framelint/report.h"
+#include "clipwarden/report.h"
 
-namespace framelint {
+namespace clipwarden {
 
 class MetricTable {
  public:
@@ -49,4 +49,4 @@ class MetricTable {
   std::vector<double> times_;
 };
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -10,7 +10,7 @@
 
 #include "analyzer/metrics/frame_pair.h"
 
-namespace framelint {
+namespace clipwarden {
 
 class PlanesPool : public std::enable_shared_from_this<PlanesPool> {
  public:
@@ -42,4 +42,4 @@ class PlanesPool : public std::enable_shared_from_this<PlanesPool> {
   std::vector<std::unique_ptr<FramePlanes>> spare_;
 };
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -4,9 +4,9 @@
 
 #include "analyzer/segments/segmenter.h"
 #include "analyzer/summary/summary.h"
-#include "framelint/version.h"
+#include "clipwarden/version.h"
 
-namespace framelint {
+namespace clipwarden {
 
 Report assemble_report(const ReportInputs& in, MetricTable& table,
                        std::vector<std::unique_ptr<Metric>>& metrics) {
@@ -36,4 +36,4 @@ Report assemble_report(const ReportInputs& in, MetricTable& table,
   return report;
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -9,9 +9,9 @@
 
 #include "analyzer/metrics/metric.h"
 #include "analyzer/pipeline/metric_table.h"
-#include "framelint/analysis.h"
+#include "clipwarden/analysis.h"
 
-namespace framelint {
+namespace clipwarden {
 
 struct ReportInputs {
   const std::string& path;
@@ -23,4 +23,4 @@ struct ReportInputs {
 Report assemble_report(const ReportInputs& in, MetricTable& table,
                        std::vector<std::unique_ptr<Metric>>& metrics);
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -1,8 +1,8 @@
 // Analysis settings: names of presets and the settings record of a report.
-#include "framelint/analysis.h"
-#include "framelint/version.h"
+#include "clipwarden/analysis.h"
+#include "clipwarden/version.h"
 
-namespace framelint {
+namespace clipwarden {
 
 const char* to_string(Preset p) {
   switch (p) {
@@ -32,4 +32,4 @@ nlohmann::json settings_to_json(const AnalysisSettings& s) {
   return j;
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -9,7 +9,7 @@
 
 #include "analyzer/pipeline/bounded_queue.h"
 
-namespace framelint {
+namespace clipwarden {
 
 class WorkerPool {
  public:
@@ -36,4 +36,4 @@ class WorkerPool {
   std::vector<std::thread> threads_;
 };
 
-}  // namespace framelint
+}  // namespace clipwarden

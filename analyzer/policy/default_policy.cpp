@@ -7,7 +7,7 @@
 // value for clean footage it says whether that value was measured or
 // guessed.
 //
-// Measured reference points (framelint gate at the default 512 px, balanced
+// Measured reference points (clipwarden gate at the default 512 px, balanced
 // preset, on OpenCV's sample footage from the opencv-doc package; p50 / p95
 // of the per-frame series):
 //   vtest.avi (static street)    warp_error 0.0020 / 0.0034  occluded_pct 1.1 / 3.9
@@ -29,9 +29,9 @@
 #include <optional>
 
 #include "analyzer/metrics/shot_boundaries.h"
-#include "framelint/policy.h"
+#include "clipwarden/policy.h"
 
-namespace framelint {
+namespace clipwarden {
 namespace {
 
 constexpr double kNever = std::numeric_limits<double>::infinity();
@@ -106,7 +106,7 @@ std::vector<MetricBlock> metric_blocks() {
       // max): vtest.avi 0.001 / 0.003, box.mp4 0.006 / 0.010, cup.mp4 0.007
       // / 0.008, tree.avi 0.007 / 0.013, Megamind.avi 0.027 / 0.037 (a
       // trailer's lighting changes). Injected square-wave flicker of gain
-      // +-a (framelint inject) reads about a. Enter at 0.04 (above every clean
+      // +-a (clipwarden inject) reads about a. Enter at 0.04 (above every clean
       // clip's maximum; weak a = 0.03 flicker, near the limit of notice, is
       // mostly let through), review at 0.05, reject at 0.15 (a pulse of 15%
       // is plain to anyone). One frame is enough: a one-frame pulse is the
@@ -128,7 +128,7 @@ std::vector<MetricBlock> metric_blocks() {
       // nothing pulses. Measured 2026-12-02 at 320 px on clean opencv-doc
       // footage (max): box.mp4, vtest.avi 0; tree.avi 0.076; cup.mp4 0.091;
       // Megamind.avi 0.138 where a face changes its shading (appearance
-      // change the flow cannot follow). Injected local flicker (framelint
+      // change the flow cannot follow). Injected local flicker (clipwarden
       // inject) reads about its gain: weak 0.1, moderate 0.25. So: enter at
       // 0.1, review at 0.18 (above the face), reject at 0.35 (a region
       // blinking by a third). Pulses span up to ~1 s, so the p95 catches a
@@ -146,7 +146,7 @@ std::vector<MetricBlock> metric_blocks() {
       // on opencv-doc footage: clean box.mp4 / cup.mp4 / Megamind.avi median
       // 0.00003, max 0.0003-0.0027 (single frames); vtest.avi (walkers)
       // median 0.0014, max 0.016 in brief spikes at walkers' edges; tree.avi
-      // median 0.0065. Injected boiling (framelint inject, moderate, s = 10,
+      // median 0.0065. Injected boiling (clipwarden inject, moderate, s = 10,
       // smooth grain): 0.0016-0.0042 through the defect. Enter at 0.0012
       // (s ~ 5), review at 0.002 (s ~ 6.5). Review only: synthetic content
       // that is legitimately re-drawn (FFmpeg testsrc2's running counter,
@@ -282,4 +282,4 @@ const Policy& default_policy() {
   return policy;
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -5,9 +5,9 @@
 #include <cmath>
 #include <cstdio>
 
-#include "framelint/policy.h"
+#include "clipwarden/policy.h"
 
-namespace framelint {
+namespace clipwarden {
 namespace {
 
 struct Finding {
@@ -294,4 +294,4 @@ VerdictResult evaluate_policy(const Report& report, const Policy& policy) {
   return out;
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

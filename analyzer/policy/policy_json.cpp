@@ -1,4 +1,4 @@
-// Policy <-> JSON ("framelint.policy/1", format in docs/gate.md).
+// Policy <-> JSON ("clipwarden.policy/1", format in docs/gate.md).
 //
 // A policy file is read as a JSON merge patch (RFC 7396) over the default
 // policy's JSON: objects merge key by key, other values replace, null
@@ -12,15 +12,15 @@
 #include <set>
 #include <sstream>
 
-#include "framelint/policy.h"
+#include "clipwarden/policy.h"
 
-namespace framelint {
+namespace clipwarden {
 namespace {
 
 using nlohmann::json;
 using nlohmann::ordered_json;
 
-constexpr const char* kPolicySchema = "framelint.policy/1";
+constexpr const char* kPolicySchema = "clipwarden.policy/1";
 
 // Thrown only inside this file; parse_policy turns it into a usage Error.
 struct BadKey {
@@ -316,4 +316,4 @@ Expected<Policy> load_policy(const std::string& path) {
   return parse_policy(buffer.str(), path);
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -5,7 +5,7 @@
 
 #include "analyzer/metrics/series_math.h"
 
-namespace framelint {
+namespace clipwarden {
 
 SegmentLevels segment_levels(std::span<const double> values, const SegmentRule& rule) {
   SegmentLevels levels{rule.enter, rule.leave};
@@ -94,4 +94,4 @@ std::vector<Segment> segment_report(const Report& report, const Policy& policy) 
   return out;
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -1,5 +1,5 @@
 // Per-frame series -> incoherent segments, by the rule in the policy
-// (framelint/policy.h, SegmentRule): hysteresis, robust clip baseline,
+// (clipwarden/policy.h, SegmentRule): hysteresis, robust clip baseline,
 // minimum length, gap merging, severity from the peak.
 #pragma once
 
@@ -7,10 +7,10 @@
 #include <string>
 #include <vector>
 
-#include "framelint/policy.h"
-#include "framelint/report.h"
+#include "clipwarden/policy.h"
+#include "clipwarden/report.h"
 
-namespace framelint {
+namespace clipwarden {
 
 // The enter/leave levels actually used for a series: the policy's, raised to
 // the clip's own baseline median + k * 1.4826 * MAD when that is higher
@@ -27,4 +27,4 @@ std::vector<Segment> find_segments(const std::string& metric, std::span<const do
 // Segments of every series that has a rule in the policy, sorted by start.
 std::vector<Segment> segment_report(const Report& report, const Policy& policy);
 
-}  // namespace framelint
+}  // namespace clipwarden

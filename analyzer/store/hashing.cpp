@@ -12,10 +12,10 @@ extern "C" {
 #include <libavutil/sha.h>
 }
 
-#include "framelint/store.h"
-#include "framelint/version.h"
+#include "clipwarden/store.h"
+#include "clipwarden/version.h"
 
-namespace framelint {
+namespace clipwarden {
 namespace {
 
 class Sha256 {
@@ -93,4 +93,4 @@ std::string settings_hash(const AnalysisSettings& settings, const Policy& policy
   return sha256_hex(s.dump() + "\n" + policy_to_json(policy).dump() + "\n" + version());
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

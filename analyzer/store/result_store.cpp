@@ -4,9 +4,9 @@
 // write lock up front so two writers never deadlock upgrading a read lock.
 #include <sqlite3.h>
 
-#include "framelint/store.h"
+#include "clipwarden/store.h"
 
-namespace framelint {
+namespace clipwarden {
 namespace {
 
 constexpr int kBusyTimeoutMs = 60000;
@@ -110,7 +110,7 @@ Expected<std::unique_ptr<ResultStore>> ResultStore::open(const std::string& path
                   ? sqlite3_column_int(version.get(), 0)
                   : 0;
   if (found > kSchemaVersion)
-    return output_error(path, "results store was written by a newer framelint (schema " +
+    return output_error(path, "results store was written by a newer clipwarden (schema " +
                                   std::to_string(found) + ")");
   if (found < kSchemaVersion) {
     auto st = store->exec(("PRAGMA user_version=" + std::to_string(kSchemaVersion)).c_str());
@@ -215,4 +215,4 @@ Expected<std::vector<StoredAnalysis>> ResultStore::all() {
   return rows;
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -4,7 +4,7 @@
 
 #include "analyzer/metrics/series_math.h"
 
-namespace framelint {
+namespace clipwarden {
 
 std::vector<MetricSummary> summarise_series(const std::vector<MetricSeries>& series) {
   std::vector<MetricSummary> out;
@@ -38,4 +38,4 @@ double coherence_score(const std::vector<Segment>& segments, int64_t frame_count
   return 100.0 * (1.0 - total / static_cast<double>(frame_count));
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

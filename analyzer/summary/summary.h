@@ -3,9 +3,9 @@
 
 #include <vector>
 
-#include "framelint/report.h"
+#include "clipwarden/report.h"
 
-namespace framelint {
+namespace clipwarden {
 
 // mean, p50, p95 (linear interpolation) and max of each series' defined values.
 std::vector<MetricSummary> summarise_series(const std::vector<MetricSeries>& series);
@@ -16,4 +16,4 @@ std::vector<MetricSummary> summarise_series(const std::vector<MetricSeries>& ser
 //   coherence = 100 * (1 - mean_over_frames(w)).
 double coherence_score(const std::vector<Segment>& segments, int64_t frame_count);
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -1,4 +1,4 @@
-// framelint per-clip page: the timeline's readout and keyboard navigation.
+// clipwarden per-clip page: the timeline's readout and keyboard navigation.
 // Reads the data block #fl-data; writes only text nodes (never HTML).
 (function () {
   'use strict';

@@ -1,4 +1,4 @@
-// The per-clip HTML page (include/framelint/html_report.h): one
+// The per-clip HTML page (include/clipwarden/html_report.h): one
 // self-contained file. Layout: verdict and facts on top, the photosensitive
 // caution when flashes were found, the timeline, the worst frames of the
 // flagged segments as panel sets, then the tables.
@@ -8,15 +8,15 @@
 
 #include "analyzer/core/assets.h"
 #include "analyzer/inspect/panels.h"
-#include "framelint/analysis.h"
-#include "framelint/html_report.h"
-#include "framelint/report_io.h"
-#include "framelint/version.h"
+#include "clipwarden/analysis.h"
+#include "clipwarden/html_report.h"
+#include "clipwarden/report_io.h"
+#include "clipwarden/version.h"
 #include "report/html/csp.h"
 #include "report/html/html_escape.h"
 #include "report/html/page_parts.h"
 
-namespace framelint {
+namespace clipwarden {
 namespace {
 
 using page::num;
@@ -151,7 +151,7 @@ std::string render_clip_page(const Report& report, const HtmlAssets& assets,
   page::CssRules css;
   add_legend_rules(css);
   std::string body;
-  body += "<header class=\"top\"><p class=\"brand\">framelint \u00b7 clip report</p><h1>" +
+  body += "<header class=\"top\"><p class=\"brand\">clipwarden \u00b7 clip report</p><h1>" +
           html_escape(file_name(report.clip.path)) + "</h1></header>\n<main>\n";
   body += verdict_block(report, css);
   body += caution_block(report);
@@ -179,7 +179,7 @@ std::string render_clip_page(const Report& report, const HtmlAssets& assets,
       "<meta name=\"referrer\" content=\"no-referrer\">\n"
       "<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n<title>" +
       html_escape(file_name(report.clip.path)) + " \u2014 " + to_string(report.verdict.status) +
-      " \u2014 framelint</title>\n<style>" + style + "</style>\n</head>\n<body>\n" + body +
+      " \u2014 clipwarden</title>\n<style>" + style + "</style>\n</head>\n<body>\n" + body +
       "<script type=\"application/json\" id=\"fl-data\">" + page::timeline_data_json(report) +
       "</script>\n<script>" + script + "</script>\n</body>\n</html>\n";
   return html;
@@ -193,4 +193,4 @@ Status write_html_report(const Report& report, const std::string& path,
   return write_file_atomic(path, render_clip_page(report, assets, options));
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -7,11 +7,11 @@
 #include <filesystem>
 
 #include "analyzer/core/assets.h"
-#include "framelint/compare.h"
+#include "clipwarden/compare.h"
 #include "report/html/compare_plot.h"
 #include "report/html/html_escape.h"
 
-namespace framelint {
+namespace clipwarden {
 namespace {
 
 using html_detail::format_number;
@@ -64,7 +64,7 @@ std::string head(const Comparison& c) {
          "style-src 'unsafe-inline'; img-src data:; base-uri 'none'; form-action 'none'\">"
          "<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">"
          "<meta name=\"referrer\" content=\"no-referrer\">"
-         "<title>framelint compare: " +
+         "<title>clipwarden compare: " +
          esc(c.a_dir) + " vs " + esc(c.b_dir) + "</title><style>" +
          std::string(asset("compare.css")) + "</style></head><body>\n";
 }
@@ -241,7 +241,7 @@ std::string method_note(const Comparison& c) {
          "). Effect r is the matched-pairs rank-biserial "
          "correlation: +1 when every non-zero difference has B above A, &minus;1 when below. "
          "Segment counts and per-frame statistics come from each clip's report; the coherence "
-         "score is the report's 0&ndash;100 score.</p><p class=\"muted\">framelint compare</p>"
+         "score is the report's 0&ndash;100 score.</p><p class=\"muted\">clipwarden compare</p>"
          "</footer>";
 }
 
@@ -252,4 +252,4 @@ std::string comparison_to_html(const Comparison& c, const std::string& out_dir) 
          dot_plots(c) + leftovers(c, out_dir) + method_note(c) + "</main></body></html>\n";
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -6,7 +6,7 @@
 
 #include "report/html/html_escape.h"
 
-namespace framelint::html_detail {
+namespace clipwarden::html_detail {
 namespace {
 
 // Plot geometry in SVG user units; the page scales the SVG to its column.
@@ -106,4 +106,4 @@ std::string paired_dot_plot(const Comparison& c, size_t column) {
   return svg + "</svg>";
 }
 
-}  // namespace framelint::html_detail
+}  // namespace clipwarden::html_detail

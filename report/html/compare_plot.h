@@ -5,13 +5,13 @@
 
 #include <string>
 
-#include "framelint/compare.h"
+#include "clipwarden/compare.h"
 
-namespace framelint::html_detail {
+namespace clipwarden::html_detail {
 
 std::string paired_dot_plot(const Comparison& comparison, size_t column);
 
 // Short numbers for pages and plots: 4 significant digits, "–" when undefined.
 std::string format_number(double v);
 
-}  // namespace framelint::html_detail
+}  // namespace clipwarden::html_detail

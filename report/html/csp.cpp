@@ -10,7 +10,7 @@ extern "C" {
 
 #include "report/html/html_escape.h"
 
-namespace framelint {
+namespace clipwarden {
 
 std::string csp_hash_source(std::string_view text) {
   std::unique_ptr<AVSHA, decltype(&av_free)> sha(av_sha_alloc(), &av_free);
@@ -27,4 +27,4 @@ std::string content_security_policy(std::string_view style_text, std::string_vie
          "; script-src " + csp_hash_source(script_text) + "; base-uri 'none'; form-action 'none'";
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

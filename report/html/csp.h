@@ -6,7 +6,7 @@
 #include <string>
 #include <string_view>
 
-namespace framelint {
+namespace clipwarden {
 
 // "'sha256-<base64 of SHA-256(text)>'", the CSP source for an inline block
 // whose exact text (between the tags) is `text`.
@@ -15,4 +15,4 @@ std::string csp_hash_source(std::string_view text);
 // The policy for a page with one inline <style> and one inline <script>.
 std::string content_security_policy(std::string_view style_text, std::string_view script_text);
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -9,10 +9,10 @@
 
 #include "analyzer/inspect/frame_walk.h"
 #include "analyzer/inspect/panels.h"
-#include "framelint/html_report.h"
+#include "clipwarden/html_report.h"
 #include "report/html/object_boxes.h"
 
-namespace framelint {
+namespace clipwarden {
 namespace {
 
 constexpr size_t kMaxObjectsPerPanel = 3;
@@ -209,4 +209,4 @@ HtmlAssets collect_html_assets(const Report& report, const AnalysisSettings& set
   return assets;
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

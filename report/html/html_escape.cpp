@@ -2,7 +2,7 @@
 
 #include <cstdint>
 
-namespace framelint {
+namespace clipwarden {
 
 std::string html_escape(std::string_view text) {
   std::string out;
@@ -72,4 +72,4 @@ std::string data_uri(std::string_view mime, std::string_view bytes) {
   return out;
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -7,7 +7,7 @@
 #include <string>
 #include <string_view>
 
-namespace framelint {
+namespace clipwarden {
 
 // Replaces & < > " ' with character references. Safe for element text and
 // for attribute values in double or single quotes.
@@ -23,4 +23,4 @@ std::string base64_encode(std::string_view bytes);
 // "data:<mime>;base64,<payload>" for embedding an image in a page.
 std::string data_uri(std::string_view mime, std::string_view bytes);
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -3,7 +3,7 @@
 #include <algorithm>
 #include <cmath>
 
-namespace framelint {
+namespace clipwarden {
 namespace {
 
 // Rows [frame, a, b, c, d] with five numbers; others are skipped.
@@ -114,4 +114,4 @@ std::vector<const TrackedObject*> objects_at_frame(const Report& report, int64_t
   return out;
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -12,9 +12,9 @@
 
 #include <opencv2/core.hpp>
 
-#include "framelint/report.h"
+#include "clipwarden/report.h"
 
-namespace framelint {
+namespace clipwarden {
 
 struct ObjectBox {
   int64_t frame = 0;
@@ -46,4 +46,4 @@ std::vector<std::pair<int64_t, double>> object_drift_samples(const TrackedObject
 std::vector<const TrackedObject*> objects_at_frame(const Report& report, int64_t frame,
                                                    cv::Size frame_size, size_t max_count);
 
-}  // namespace framelint
+}  // namespace clipwarden

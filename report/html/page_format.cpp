@@ -6,7 +6,7 @@
 #include "report/html/html_escape.h"
 #include "report/html/page_parts.h"
 
-namespace framelint::page {
+namespace clipwarden::page {
 
 std::string CssRules::add_class(const std::string& prefix, const std::string& body) {
   std::string name = prefix + std::to_string(next_++);
@@ -166,4 +166,4 @@ std::string timeline_data_json(const Report& report) {
   return out;
 }
 
-}  // namespace framelint::page
+}  // namespace clipwarden::page

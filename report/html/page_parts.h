@@ -8,10 +8,10 @@
 #include <string>
 #include <vector>
 
-#include "framelint/html_report.h"
-#include "framelint/report.h"
+#include "clipwarden/html_report.h"
+#include "clipwarden/report.h"
 
-namespace framelint::page {
+namespace clipwarden::page {
 
 // Generated CSS rules, appended to the stylesheet.
 class CssRules {
@@ -59,4 +59,4 @@ std::string summary_table(const Report& report);
 // The timeline's data for the page script, as JSON safe inside <script>.
 std::string timeline_data_json(const Report& report);
 
-}  // namespace framelint::page
+}  // namespace clipwarden::page

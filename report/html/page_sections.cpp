@@ -8,7 +8,7 @@
 #include "report/html/object_boxes.h"
 #include "report/html/page_parts.h"
 
-namespace framelint::page {
+namespace clipwarden::page {
 namespace {
 
 std::string figure(const EncodedImage& image, const std::string& alt,
@@ -257,4 +257,4 @@ std::string summary_table(const Report& report) {
   return out + "</tbody></table></div>\n</section>\n";
 }
 
-}  // namespace framelint::page
+}  // namespace clipwarden::page

@@ -5,11 +5,11 @@
 #include <cstdio>
 
 #include "analyzer/core/assets.h"
-#include "framelint/version.h"
+#include "clipwarden/version.h"
 #include "report/html/csp.h"
 #include "report/html/html_escape.h"
 
-namespace framelint {
+namespace clipwarden {
 namespace {
 
 int rank(const ClipResult& r) {
@@ -109,14 +109,14 @@ std::string render_queue_page(const std::vector<ClipResult>& results,
       csp_hash_source(style) +
       "; base-uri 'none'; form-action 'none'\">\n"
       "<meta name=\"viewport\" content=\"width=device-width, initial-scale=1\">\n"
-      "<title>framelint review queue (" +
+      "<title>clipwarden review queue (" +
       std::to_string(counts.total) + " clips)</title>\n<style>";
   page += style;
   page +=
       "</style>\n</head>\n<body>\n<header>\n<h1>Review queue</h1>\n<p class=\"counts\">" +
       counts_line(counts) +
       "</p>\n<p class=\"quiet\">Worst first: reject, review, error, pass; then lowest coherence. "
-      "Written by framelint " +
+      "Written by clipwarden " +
       html_escape(version()) + ".</p>\n</header>\n<main>\n";
   if (results.empty()) {
     page += "<p class=\"quiet\">No clips in this queue.</p>\n";
@@ -130,4 +130,4 @@ std::string render_queue_page(const std::vector<ClipResult>& results,
   return page;
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

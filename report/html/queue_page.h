@@ -7,9 +7,9 @@
 #include <string>
 #include <vector>
 
-#include "framelint/gate.h"
+#include "clipwarden/gate.h"
 
-namespace framelint {
+namespace clipwarden {
 
 // links[i]: the report of results[i] relative to the page ("" for none).
 std::string render_queue_page(const std::vector<ClipResult>& results,
@@ -18,4 +18,4 @@ std::string render_queue_page(const std::vector<ClipResult>& results,
 // The order the page lists clips in: indices into `results`.
 std::vector<size_t> worst_first_order(const std::vector<ClipResult>& results);
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -9,7 +9,7 @@
 #include "report/html/html_escape.h"
 #include "report/html/page_parts.h"
 
-namespace framelint::page {
+namespace clipwarden::page {
 namespace {
 
 constexpr double kChartW = 1000;  // SVG user units across the track
@@ -199,4 +199,4 @@ std::string timeline_section(const Report& report, const HtmlAssets& assets, Css
          (report.segments.size() == 1 ? "" : "s") + ".</div>\n</section>\n";
 }
 
-}  // namespace framelint::page
+}  // namespace clipwarden::page

@@ -7,9 +7,9 @@
 #include <filesystem>
 #include <random>
 
-#include "framelint/report_io.h"
+#include "clipwarden/report_io.h"
 
-namespace framelint {
+namespace clipwarden {
 
 Status write_file_atomic(const std::string& path, const std::string& content) {
   namespace fs = std::filesystem;
@@ -50,4 +50,4 @@ Status write_json_report(const Report& report, const std::string& path) {
   return write_file_atomic(path, report_to_json(report).dump(1) + "\n");
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

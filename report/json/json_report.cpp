@@ -1,11 +1,11 @@
-// Report <-> JSON ("framelint.report/1"). The per-frame series are stored
+// Report <-> JSON ("clipwarden.report/1"). The per-frame series are stored
 // column-wise in memory and written row-wise: one object per frame.
 #include <cmath>
 
-#include "framelint/report_io.h"
-#include "framelint/version.h"
+#include "clipwarden/report_io.h"
+#include "clipwarden/version.h"
 
-namespace framelint {
+namespace clipwarden {
 namespace {
 
 using nlohmann::json;
@@ -107,4 +107,4 @@ json report_to_json(const Report& r) {
           {"notes", r.notes}};
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

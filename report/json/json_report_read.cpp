@@ -5,9 +5,9 @@
 #include <limits>
 #include <sstream>
 
-#include "framelint/report_io.h"
+#include "clipwarden/report_io.h"
 
-namespace framelint {
+namespace clipwarden {
 namespace {
 
 using nlohmann::json;
@@ -210,4 +210,4 @@ Expected<Report> read_report_file(const std::string& path) {
   return report_from_json(j, path);
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -3,9 +3,9 @@
 #include <cmath>
 
 #include "analyzer/core/assets.h"
-#include "framelint/report_io.h"
+#include "clipwarden/report_io.h"
 
-namespace framelint {
+namespace clipwarden {
 namespace {
 
 using nlohmann::json;
@@ -78,8 +78,8 @@ Status check_against_schema(const json& document, const json& schema, const std:
 }
 
 Status validate_report_json(const nlohmann::json& report, const std::string& subject) {
-  static const json schema = json::parse(asset("framelint.report-1.schema.json"));
+  static const json schema = json::parse(asset("clipwarden.report-1.schema.json"));
   return check_against_schema(report, schema, subject);
 }
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -7,11 +7,11 @@
 
 #include <nlohmann/json.hpp>
 
-#include "framelint/error.h"
+#include "clipwarden/error.h"
 
-namespace framelint {
+namespace clipwarden {
 
 Status check_against_schema(const nlohmann::json& document, const nlohmann::json& schema,
                             const std::string& subject);
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -18,8 +18,8 @@
 #include "support/accuracy_run.h"
 #include "support/clips.h"
 
-using namespace framelint;
-using namespace framelint::accuracy;
+using namespace clipwarden;
+using namespace clipwarden::accuracy;
 using inject::DefectClass;
 using inject::StrengthLevel;
 
@@ -51,8 +51,8 @@ const std::map<DefectClass, Floor>& floors() {
 }  // namespace
 
 TEST(Accuracy, ModerateDefectsOnShortRealClips) {
-  FRAMELINT_SKIP_WITHOUT_DATA(vtest, "vtest.avi");
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_DATA(vtest, "vtest.avi");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
   const test::TempDir work;
   EvalOptions options;
   options.set.work_dir = work.path().string();

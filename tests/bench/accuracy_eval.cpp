@@ -1,4 +1,4 @@
-// framelint_accuracy_eval: the full accuracy evaluation (docs/accuracy.md).
+// clipwarden_accuracy_eval: the full accuracy evaluation (docs/accuracy.md).
 // Builds the evaluation set (defects injected at weak / moderate / strong
 // strength into opencv-doc footage and FFmpeg lavfi sources), analyses it,
 // and prints the per-class table. With --sweep it also prints, per metric,
@@ -6,7 +6,7 @@
 // footage, and how recall, precision and false alarms move when the
 // metric's thresholds are scaled: the evidence for the default policy.
 //
-//   framelint_accuracy_eval [--work DIR] [--width N] [--frames N]
+//   clipwarden_accuracy_eval [--work DIR] [--width N] [--frames N]
 //       [--levels weak,moderate,strong] [--placements N] [--bases a,b]
 //       [--classes a,b] [--seed N] [--json FILE] [--markdown FILE] [--sweep]
 //       [--reports DIR]   (also write every analysed report to DIR)
@@ -23,8 +23,8 @@
 
 #include "support/accuracy_run.h"
 
-using namespace framelint;
-using namespace framelint::accuracy;
+using namespace clipwarden;
+using namespace clipwarden::accuracy;
 using inject::DefectClass;
 using inject::StrengthLevel;
 
@@ -39,14 +39,14 @@ std::vector<std::string> split(const std::string& text) {
 }
 
 [[noreturn]] void usage(const std::string& why) {
-  std::fprintf(stderr, "framelint_accuracy_eval: %s\n(see the comment at the top of tests/bench/accuracy_eval.cpp)\n",
+  std::fprintf(stderr, "clipwarden_accuracy_eval: %s\n(see the comment at the top of tests/bench/accuracy_eval.cpp)\n",
                why.c_str());
   std::exit(2);
 }
 
 EvalOptions parse(int argc, char** argv, std::string& json_path, std::string& md_path, bool& sweep) {
   EvalOptions o;
-  o.set.work_dir = "/tmp/framelint-accuracy";
+  o.set.work_dir = "/tmp/clipwarden-accuracy";
   o.set.long_side = 512;
   o.set.max_frames = 150;
   o.levels = {StrengthLevel::weak, StrengthLevel::moderate, StrengthLevel::strong};
@@ -181,7 +181,7 @@ int main(int argc, char** argv) {
   options.set.log = [](const std::string& line) { std::fprintf(stderr, "%s\n", line.c_str()); };
   auto run = run_evaluation(options);
   if (!run) {
-    std::fprintf(stderr, "framelint_accuracy_eval: %s\n", run.error().message().c_str());
+    std::fprintf(stderr, "clipwarden_accuracy_eval: %s\n", run.error().message().c_str());
     return 3;
   }
   const Scoreboard board = score_all(run->cases, run->clean, options.policy);

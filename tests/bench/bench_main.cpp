@@ -1,7 +1,7 @@
-// framelint_bench: how fast analysis runs next to decoding alone, on the same
+// clipwarden_bench: how fast analysis runs next to decoding alone, on the same
 // clip in the same run, and how much memory it holds.
 //
-//   framelint_bench [CLIP...] [--standard] [--uhd] [--long] [--gate]
+//   clipwarden_bench [CLIP...] [--standard] [--uhd] [--long] [--gate]
 //                   [--clips-dir DIR] [--repeat N] [--preset P] [--width N] [--threads N]
 //
 // For each clip, three measurements, each in a child process so that its
@@ -13,9 +13,9 @@
 // is analysis fps / FFmpeg decode-only fps from the same run.
 //
 // Generated clips (testsrc2, H.264, made once with the FFmpeg CLI into
-// --clips-dir, default /tmp/framelint-bench): --standard 1080p24 10 s (also
+// --clips-dir, default /tmp/clipwarden-bench): --standard 1080p24 10 s (also
 // the default when no clip is given), --uhd 2160p24 10 s, --long 1080p24
-// 60 s; --gate times `framelint gate --jobs 1` against `--jobs 2` on 20
+// 60 s; --gate times `clipwarden gate --jobs 1` against `--jobs 2` on 20
 // distinct short clips (360p24 2 s, testsrc2 and mandelbrot at 20 hues and
 // start times), in fresh output folders.
 #include <sys/resource.h>
@@ -38,15 +38,15 @@
 #include "analyzer/cli/args.h"
 #include "analyzer/cli/command.h"
 #include "analyzer/cli/settings_args.h"
-#include "framelint/analysis.h"
-#include "framelint/clip_source.h"
+#include "clipwarden/analysis.h"
+#include "clipwarden/clip_source.h"
 
-using namespace framelint;
+using namespace clipwarden;
 using nlohmann::json;
 using Clock = std::chrono::steady_clock;
 namespace fs = std::filesystem;
 
-namespace framelint::cli {
+namespace clipwarden::cli {
 int run_gate(const std::vector<std::string>& args);
 }
 
@@ -204,7 +204,7 @@ void print_spread(const std::string& clip, const std::vector<ClipRates>& runs) {
               ana_median, ff_median > 0 ? ana_median / ff_median : 0.0);
 }
 
-// `framelint gate FOLDER --jobs N` in a child, into a fresh output folder
+// `clipwarden gate FOLDER --jobs N` in a child, into a fresh output folder
 // (so nothing comes from a results store); returns clips per second.
 double gate_clips_per_s(const std::string& folder, int jobs, int clips, const std::string& work_dir) {
   const std::string out = work_dir + "/gate-out-jobs" + std::to_string(jobs);
@@ -248,7 +248,7 @@ std::vector<cli::OptionSpec> bench_specs() {
   specs.push_back({"uhd", false, "also a 2160p24 10 s clip"});
   specs.push_back({"long", false, "also a 1080p24 60 s clip"});
   specs.push_back({"gate", false, "gate --jobs 1 vs --jobs 2 on 20 short clips"});
-  specs.push_back({"clips-dir", true, "where generated clips are kept (default /tmp/framelint-bench)"});
+  specs.push_back({"clips-dir", true, "where generated clips are kept (default /tmp/clipwarden-bench)"});
   specs.push_back({"repeat", true, "runs per clip, interleaved across clips, then their spread (default 1)"});
   return specs;
 }
@@ -256,22 +256,22 @@ std::vector<cli::OptionSpec> bench_specs() {
 }  // namespace
 
 int main(int argc, char** argv) {
-  cv::setNumThreads(1);  // as the framelint CLI does (analyzer/cli/main.cpp)
+  cv::setNumThreads(1);  // as the clipwarden CLI does (analyzer/cli/main.cpp)
   std::vector<std::string> args(argv + 1, argv + argc);
   auto parsed = cli::parse_args(args, bench_specs());
   if (!parsed) {
-    std::fprintf(stderr, "framelint_bench: %s\n", parsed.error().message().c_str());
+    std::fprintf(stderr, "clipwarden_bench: %s\n", parsed.error().message().c_str());
     return 2;
   }
   auto options = cli::analysis_options_from_args(*parsed);
   if (!options) {
-    std::fprintf(stderr, "framelint_bench: %s\n", options.error().message().c_str());
+    std::fprintf(stderr, "clipwarden_bench: %s\n", options.error().message().c_str());
     return 2;
   }
-  const std::string clips_dir = parsed->get("clips-dir").value_or("/tmp/framelint-bench");
+  const std::string clips_dir = parsed->get("clips-dir").value_or("/tmp/clipwarden-bench");
   const int repeat = std::atoi(parsed->get("repeat").value_or("1").c_str());
   if (repeat < 1 || repeat > 100) {
-    std::fprintf(stderr, "framelint_bench: --repeat must be 1-100\n");
+    std::fprintf(stderr, "clipwarden_bench: --repeat must be 1-100\n");
     return 2;
   }
   fs::create_directories(clips_dir);
@@ -289,7 +289,7 @@ int main(int argc, char** argv) {
                              Generated{parsed->has("uhd"), "/2160p24_10s.mp4", "3840x2160", 10}}) {
     if (!g.wanted) continue;
     if (!make_clip(clips_dir + g.file, "testsrc2", g.size, g.seconds)) {
-      std::fprintf(stderr, "framelint_bench: cannot make %s%s with ffmpeg\n", clips_dir.c_str(), g.file);
+      std::fprintf(stderr, "clipwarden_bench: cannot make %s%s with ffmpeg\n", clips_dir.c_str(), g.file);
       return 3;
     }
     clips.push_back(clips_dir + g.file);

@@ -1,4 +1,4 @@
-// framelint_metric_bench: per-metric CPU time per frame, without decoding or
+// clipwarden_metric_bench: per-metric CPU time per frame, without decoding or
 // flow in the measurement. Decodes the first N frames of a clip, builds
 // their pairs once and keeps them in memory, then runs every metric (fresh
 // instances each round) over the stored pairs: measure_pair and
@@ -8,7 +8,7 @@
 // pipeline, a few FramePair objects are reused in turn, so per-pair scratch
 // (FramePair::scratch) is reused rather than allocated for every pair.
 //
-//   framelint_metric_bench CLIP [--frames N] [--rounds R] [--only NAME]
+//   clipwarden_metric_bench CLIP [--frames N] [--rounds R] [--only NAME]
 #include <time.h>
 
 #include <algorithm>
@@ -25,10 +25,10 @@
 #include "analyzer/cli/args.h"
 #include "analyzer/flow/pair_builder.h"
 #include "analyzer/metrics/metric.h"
-#include "framelint/analysis.h"
-#include "framelint/clip_source.h"
+#include "clipwarden/analysis.h"
+#include "clipwarden/clip_source.h"
 
-using namespace framelint;
+using namespace clipwarden;
 
 namespace {
 
@@ -49,7 +49,7 @@ int main(int argc, char** argv) {
                                        {"rounds", true, "rounds, the minimum is printed (default 5)"},
                                        {"only", true, "time this metric alone"}});
   if (!parsed || parsed->positionals.size() != 1) {
-    std::fprintf(stderr, "usage: framelint_metric_bench CLIP [--frames N] [--rounds R] [--only NAME]%s%s\n",
+    std::fprintf(stderr, "usage: clipwarden_metric_bench CLIP [--frames N] [--rounds R] [--only NAME]%s%s\n",
                  parsed ? "" : ": ", parsed ? "" : parsed.error().message().c_str());
     return 2;
   }

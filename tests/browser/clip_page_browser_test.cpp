@@ -14,12 +14,12 @@
 
 #include <nlohmann/json.hpp>
 
-#include "framelint/html_report.h"
-#include "framelint/report_io.h"
+#include "clipwarden/html_report.h"
+#include "clipwarden/report_io.h"
 #include "support/clips.h"
 #include "support/html_fixtures.h"
 
-using namespace framelint;
+using namespace clipwarden;
 using nlohmann::json;
 
 namespace {
@@ -36,7 +36,7 @@ std::filesystem::path artifacts() {
 // Runs the page checker; fails the test with its message when the browser
 // could not be driven.
 json check_page(const std::string& page, const std::string& screenshot) {
-  const std::string script = std::string(FRAMELINT_SOURCE_DIR) + "/tests/browser/page_check.py";
+  const std::string script = std::string(CLIPWARDEN_SOURCE_DIR) + "/tests/browser/page_check.py";
   const auto r = test::run_command({kPython, script, kChromium, page, screenshot});
   EXPECT_EQ(r.exit_code, 0) << r.err;
   if (r.exit_code != 0) return json::object();
@@ -117,9 +117,9 @@ TEST_F(ClipPageBrowser, CheckerSeesABlockedScript) {
 // A page written by the CLI for real footage (opencv-doc tree.avi, 68
 // frames): one marker per segment of the JSON written beside it.
 TEST_F(ClipPageBrowser, AnalyzedClipPageMatchesItsJson) {
-  FRAMELINT_SKIP_WITHOUT_DATA(clip, "tree.avi");
+  CLIPWARDEN_SKIP_WITHOUT_DATA(clip, "tree.avi");
   test::TempDir dir;
-  const auto r = test::run_command({FRAMELINT_BINARY, "analyze", clip, "--out", dir.path().string(),
+  const auto r = test::run_command({CLIPWARDEN_BINARY, "analyze", clip, "--out", dir.path().string(),
                                     "--quiet", "--preset", "fast"});
   ASSERT_TRUE(r.exit_code == 0 || r.exit_code == 1) << r.err;
   const std::string html = dir.file("tree.html");

@@ -11,8 +11,8 @@
 #include "support/clips.h"
 #include "support/gate_files.h"
 
-using namespace framelint;
-using namespace framelint::test;
+using namespace clipwarden;
+using namespace clipwarden::test;
 
 namespace {
 
@@ -50,7 +50,7 @@ TEST(GateQueuePage, LoadsCleanlyInChromiumWithHostileInputs) {
   write_text(dir.path() / "index.html", render_queue_page(results, links));
 
   const auto run = run_command({"/usr/bin/python3",
-                                std::string(FRAMELINT_SOURCE_DIR) + "/tests/browser/page_check.py",
+                                std::string(CLIPWARDEN_SOURCE_DIR) + "/tests/browser/page_check.py",
                                 "/usr/bin/chromium", dir.file("index.html"), dir.file("shot.png")});
   ASSERT_EQ(run.exit_code, 0) << run.err;
   const auto facts = nlohmann::json::parse(run.out);

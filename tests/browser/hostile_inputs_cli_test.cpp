@@ -1,9 +1,9 @@
 // Hostile names through the real CLI into every page (issue 10): clips named
 // like markup, javascript: URLs, an RTL override and a very long name go
-// through `framelint analyze` (clip pages), a manifest whose id, prompt_id,
+// through `clipwarden analyze` (clip pages), a manifest whose id, prompt_id,
 // model and free fields are hostile and whose paths hold ../ components goes
-// through `framelint gate` twice (two model tags: clip pages and the queue's
-// index.html) and `framelint compare` (compare.html). Every page is loaded
+// through `clipwarden gate` twice (two model tags: clip pages and the queue's
+// index.html) and `clipwarden compare` (compare.html). Every page is loaded
 // in headless Chromium by tests/browser/page_check.py, which reports
 // dialogs, console errors, CSP violations, requests, event-handler
 // attributes, javascript: URLs, and whether the hostile strings are shown
@@ -21,8 +21,8 @@
 #include "support/clips.h"
 #include "support/gate_files.h"
 
-using namespace framelint;
-using namespace framelint::test;
+using namespace clipwarden;
+using namespace clipwarden::test;
 namespace fs = std::filesystem;
 using nlohmann::json;
 
@@ -51,7 +51,7 @@ std::vector<std::string> hostile_stems() {
 
 json check_page(const fs::path& page, const fs::path& literals) {
   const auto r =
-      run_command({kPython, std::string(FRAMELINT_SOURCE_DIR) + "/tests/browser/page_check.py",
+      run_command({kPython, std::string(CLIPWARDEN_SOURCE_DIR) + "/tests/browser/page_check.py",
                    kChromium, page.string(), page.string() + ".png", literals.string()});
   EXPECT_EQ(r.exit_code, 0) << page << ": " << r.err;
   if (r.exit_code != 0) return json();
@@ -97,7 +97,7 @@ class HostileInputs : public ::testing::Test {
   void SetUp() override {
     if (!fs::exists(kChromium)) GTEST_SKIP() << kChromium << " is not installed (package chromium)";
     if (!fs::exists(kPython)) GTEST_SKIP() << kPython << " is not installed";
-    FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+    CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
   }
 };
 
@@ -156,7 +156,7 @@ TEST_F(HostileInputs, EveryPageShowsHostileNamesAsTextAndWritesOnlyInsideItsFold
     if (e.is_regular_file()) before.insert(e.path().string());
 
   const fs::path analyzed = dir.path() / "out" / "analyze";
-  std::vector<std::string> analyze = {FRAMELINT_BINARY, "analyze", "--out",  analyzed.string(),
+  std::vector<std::string> analyze = {CLIPWARDEN_BINARY, "analyze", "--out",  analyzed.string(),
                                       "--threads",      "2",       "--quiet"};
   analyze.insert(analyze.end(), clip_paths.begin(), clip_paths.end());
   const auto a = run_command(analyze);
@@ -167,7 +167,7 @@ TEST_F(HostileInputs, EveryPageShowsHostileNamesAsTextAndWritesOnlyInsideItsFold
   const std::string kFolder = "gate\"><svg onload=alert(5)>";
   for (const std::string side : {"A", "B"}) {
     const fs::path out = dir.path() / "out" / (kFolder + side);
-    const auto g = run_command({FRAMELINT_BINARY, "gate",
+    const auto g = run_command({CLIPWARDEN_BINARY, "gate",
                                 (dir.path() / "m" / side / "manifest.jsonl").string(), "--out",
                                 out.string(), "--jobs", "2", "--threads", "1", "--quiet"});
     ASSERT_TRUE(g.exit_code == 0 || g.exit_code == 1) << g.err;
@@ -175,7 +175,7 @@ TEST_F(HostileInputs, EveryPageShowsHostileNamesAsTextAndWritesOnlyInsideItsFold
     outs.push_back(out);
   }
   const fs::path compared = dir.path() / "out" / "compare";
-  const auto c = run_command({FRAMELINT_BINARY, "compare", outs[1].string(), outs[2].string(),
+  const auto c = run_command({CLIPWARDEN_BINARY, "compare", outs[1].string(), outs[2].string(),
                               "--out", compared.string(), "--pair-by", "prompt_id"});
   ASSERT_EQ(c.exit_code, 0) << c.err;
   outs.push_back(compared);

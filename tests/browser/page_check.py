@@ -1,5 +1,5 @@
 #!/usr/bin/python3
-"""Loads a framelint page in headless Chromium and reports what happened.
+"""Loads a clipwarden page in headless Chromium and reports what happened.
 
 Usage: page_check.py CHROMIUM PAGE.html SCREENSHOT.png [LITERALS.json]
 
@@ -194,7 +194,7 @@ def evaluate(browser, session, expression):
 
 
 def check(chromium, page, screenshot, literals_file=None, deadline_s=DEADLINE_S):
-    profile = tempfile.mkdtemp(prefix='framelint-chromium-')
+    profile = tempfile.mkdtemp(prefix='clipwarden-chromium-')
     browser = Browser(chromium, profile, deadline_s)
     try:
         target = browser.call('Target.createTarget', {'url': 'about:blank'})['targetId']

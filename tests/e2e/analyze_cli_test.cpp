@@ -1,4 +1,4 @@
-// `framelint analyze` end to end, through the built binary: reports that
+// `clipwarden analyze` end to end, through the built binary: reports that
 // match the schema, frame counts that match ffprobe (the outside source),
 // and bad inputs that end in one clear line and exit status 3 while every
 // good clip in the same batch is still reported (DESIGN.md, exit status).
@@ -6,16 +6,16 @@
 
 #include <fstream>
 
-#include "framelint/report_io.h"
+#include "clipwarden/report_io.h"
 #include "support/clips.h"
 
-using namespace framelint;
-using namespace framelint::test;
+using namespace clipwarden;
+using namespace clipwarden::test;
 
 namespace {
 
-CommandResult framelint_cli(std::vector<std::string> args) {
-  args.insert(args.begin(), FRAMELINT_BINARY);
+CommandResult clipwarden_cli(std::vector<std::string> args) {
+  args.insert(args.begin(), CLIPWARDEN_BINARY);
   return run_command(args);
 }
 
@@ -29,11 +29,11 @@ size_t count_lines(const std::string& text) { return std::count(text.begin(), te
 }  // namespace
 
 TEST(AnalyzeCli, WritesASchemaValidReportWithFfprobesFrames) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   const std::string clip = dir.file("harbour pan.mp4");
   ASSERT_EQ(make_lavfi_clip(clip, "testsrc2=size=320x180:rate=12:duration=2", {"-pix_fmt", "yuv420p"}), "");
-  const auto result = framelint_cli({"analyze", clip, "--out", dir.file("out"), "--no-html", "--quiet"});
+  const auto result = clipwarden_cli({"analyze", clip, "--out", dir.file("out"), "--no-html", "--quiet"});
   ASSERT_TRUE(result.exit_code == 0 || result.exit_code == 1) << result.err;
   const auto report = read_json(dir.file("out/harbour_pan.json"));
   ASSERT_FALSE(report.is_discarded());
@@ -48,7 +48,7 @@ TEST(AnalyzeCli, WritesASchemaValidReportWithFfprobesFrames) {
 }
 
 TEST(AnalyzeCli, BadInputsFailCleanlyAndGoodClipsAreStillReported) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   const std::string good = dir.file("good.mp4");
   ASSERT_EQ(make_lavfi_clip(good, "testsrc2=size=160x120:rate=10:duration=1", {"-pix_fmt", "yuv420p"}), "");
@@ -72,7 +72,7 @@ TEST(AnalyzeCli, BadInputsFailCleanlyAndGoodClipsAreStillReported) {
   std::vector<std::string> args = {"analyze", "--out", dir.file("out"), "--no-html", "--quiet", good};
   args.insert(args.end(), bad.begin(), bad.end());
   args.push_back(good);  // a good clip after the bad ones is reported too
-  const auto result = framelint_cli(args);
+  const auto result = clipwarden_cli(args);
   EXPECT_EQ(result.exit_code, 3) << result.err;
   EXPECT_TRUE(std::filesystem::exists(dir.file("out/good.json")));
   EXPECT_TRUE(std::filesystem::exists(dir.file("out/good-2.json")));
@@ -85,14 +85,14 @@ TEST(AnalyzeCli, BadInputsFailCleanlyAndGoodClipsAreStillReported) {
 }
 
 TEST(AnalyzeCli, UsageErrorsExitWithStatus2) {
-  EXPECT_EQ(framelint_cli({"analyze"}).exit_code, 2);
-  EXPECT_EQ(framelint_cli({"analyze", "x.mp4", "--width", "ten"}).exit_code, 2);
-  EXPECT_EQ(framelint_cli({"analyze", "x.mp4", "--preset", "slow"}).exit_code, 2);
-  EXPECT_EQ(framelint_cli({"no-such-command"}).exit_code, 2);
-  const auto help = framelint_cli({"analyze", "--help"});
+  EXPECT_EQ(clipwarden_cli({"analyze"}).exit_code, 2);
+  EXPECT_EQ(clipwarden_cli({"analyze", "x.mp4", "--width", "ten"}).exit_code, 2);
+  EXPECT_EQ(clipwarden_cli({"analyze", "x.mp4", "--preset", "slow"}).exit_code, 2);
+  EXPECT_EQ(clipwarden_cli({"no-such-command"}).exit_code, 2);
+  const auto help = clipwarden_cli({"analyze", "--help"});
   EXPECT_EQ(help.exit_code, 0);
-  EXPECT_NE(help.out.find("usage: framelint analyze"), std::string::npos);
-  const auto version = framelint_cli({"--version"});
+  EXPECT_NE(help.out.find("usage: clipwarden analyze"), std::string::npos);
+  const auto version = clipwarden_cli({"--version"});
   EXPECT_EQ(version.exit_code, 0);
-  EXPECT_EQ(version.out.rfind("framelint ", 0), 0u);
+  EXPECT_EQ(version.out.rfind("clipwarden ", 0), 0u);
 }

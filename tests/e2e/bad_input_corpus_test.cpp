@@ -1,11 +1,11 @@
 // Bad-input corpus (issue 10): broken and unusual clips, made at run time
 // from FFmpeg's lavfi test sources and byte surgery (never committed), each
-// given to the built `framelint analyze` with a time limit. Every case must
+// given to the built `clipwarden analyze` with a time limit. Every case must
 // end in either a schema-valid report (exit 0/1) or a one-line error naming
 // the input (exit 3): never a signal, never a hang, and never a report that
 // is wrong about what the file holds (a truncated clip may not claim the
 // full clip's frames; identical frames must show as a freeze). Then
-// `framelint gate` runs over the whole corpus folder: every clip gets a
+// `clipwarden gate` runs over the whole corpus folder: every clip gets a
 // queue row, none is lost. The table of outcomes is printed for the record.
 #include <gtest/gtest.h>
 #include <unistd.h>
@@ -16,14 +16,14 @@
 #include <map>
 #include <set>
 
-#include "framelint/report_io.h"
+#include "clipwarden/report_io.h"
 #include "support/bad_corpus.h"
 #include "support/clips.h"
 #include "support/gate_files.h"
 #include "support/robust_run.h"
 
-using namespace framelint;
-using namespace framelint::test;
+using namespace clipwarden;
+using namespace clipwarden::test;
 namespace fs = std::filesystem;
 using nlohmann::json;
 
@@ -90,7 +90,7 @@ TEST_F(BadInputCorpus, AnalyzeEndsInReportOrClearErrorForEveryCase) {
   for (const auto& c : corpus_->cases) {
     const fs::path out = dir_->path() / "analyze" / c.name;
     const auto run = run_bounded(
-        {FRAMELINT_BINARY, "analyze", c.path, "--out", out.string(), "--threads", "1", "--quiet"},
+        {CLIPWARDEN_BINARY, "analyze", c.path, "--out", out.string(), "--threads", "1", "--quiet"},
         dir_->path() / "logs" / c.name, kLimitPerClipS);
     std::string outcome = run.outcome(), problem;
     if (run.timed_out || run.signal != 0) {
@@ -116,14 +116,14 @@ TEST_F(BadInputCorpus, AnalyzeEndsInReportOrClearErrorForEveryCase) {
              (c.note.empty() ? "" : "  [" + c.note + "]") + "\n";
     EXPECT_TRUE(problem.empty()) << c.name << " (" << c.path << "): " << outcome << ": " << problem;
   }
-  std::cout << "bad-input corpus, framelint analyze (" << corpus_->cases.size() << " cases):\n"
+  std::cout << "bad-input corpus, clipwarden analyze (" << corpus_->cases.size() << " cases):\n"
             << table;
   for (const auto& [k, n] : tally) std::cout << "  " << k << ": " << n << "\n";
 }
 
 TEST_F(BadInputCorpus, GateOverTheWholeFolderGivesEveryClipARow) {
   const fs::path out = dir_->path() / "gate";
-  std::vector<std::string> argv = {FRAMELINT_BINARY,
+  std::vector<std::string> argv = {CLIPWARDEN_BINARY,
                                    "gate",
                                    corpus_->folder.string(),
                                    "--out",

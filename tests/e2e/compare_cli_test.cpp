@@ -1,4 +1,4 @@
-// `framelint compare` end to end, through the built binary. The reports are
+// `clipwarden compare` end to end, through the built binary. The reports are
 // synthetic (tests/support/compare_reports.h): invented per-frame values
 // drawn with a fixed seed, written with the report model and
 // write_json_report, to test the plumbing -- pairing, averaging, listing,
@@ -18,14 +18,14 @@
 
 namespace {
 
-using framelint::test::find_compared;
-using framelint::test::read_json_file;
-using framelint::test::run_compare;
-using framelint::test::scenario_clip;
-using framelint::test::TempFolder;
+using clipwarden::test::find_compared;
+using clipwarden::test::read_json_file;
+using clipwarden::test::run_compare;
+using clipwarden::test::scenario_clip;
+using clipwarden::test::TempFolder;
 using nlohmann::json;
 namespace fs = std::filesystem;
-std::string sh(const std::string& s) { return framelint::test::shell_quoted(s); }  // for the shell
+std::string sh(const std::string& s) { return clipwarden::test::shell_quoted(s); }  // for the shell
 
 // Two plain report folders, paired by report name: p00..p19 on both sides,
 // flicker injected into B's even prompts, one extra report on each side.
@@ -36,20 +36,20 @@ struct PlainFolders {
     fs::create_directories(a);
     fs::create_directories(b);
     std::mt19937_64 rng(7001);
-    const auto levels = framelint::test::draw_prompt_levels(rng, 21);
+    const auto levels = clipwarden::test::draw_prompt_levels(rng, 21);
     for (int i = 0; i < 20; ++i) {
       char name[16];
       std::snprintf(name, sizeof name, "p%02d", i);
-      framelint::test::write_synthetic_report(
+      clipwarden::test::write_synthetic_report(
           scenario_clip(rng, levels[i], std::string("a/") + name + ".mp4", false),
           a + "/" + name + ".json");
-      framelint::test::write_synthetic_report(
+      clipwarden::test::write_synthetic_report(
           scenario_clip(rng, levels[i], std::string("b/") + name + ".mp4", i % 2 == 0),
           b + "/" + name + ".json");
     }
-    framelint::test::write_synthetic_report(scenario_clip(rng, levels[20], "a/only.mp4", false),
+    clipwarden::test::write_synthetic_report(scenario_clip(rng, levels[20], "a/only.mp4", false),
                                             a + "/only_in_a.json");
-    framelint::test::write_synthetic_report(scenario_clip(rng, levels[20], "b/only.mp4", false),
+    clipwarden::test::write_synthetic_report(scenario_clip(rng, levels[20], "b/only.mp4", false),
                                             b + "/only_in_b.json");
   }
   std::string args() const { return sh(a) + " " + sh(b) + " --out " + sh(out) + " --quiet"; }

@@ -1,4 +1,4 @@
-// `framelint compare` on gate output folders (queue.jsonl + reports), with
+// `clipwarden compare` on gate output folders (queue.jsonl + reports), with
 // two seeds per prompt, a hostile prompt id, a clip the gate could not read
 // and a prompt only B has; then the structure of compare.json key by key and
 // the safety of compare.html. Synthetic, invented report values (see
@@ -17,14 +17,14 @@
 
 namespace {
 
-using framelint::test::find_compared;
-using framelint::test::read_json_file;
-using framelint::test::read_text_file;
-using framelint::test::run_compare;
-using framelint::test::TempFolder;
+using clipwarden::test::find_compared;
+using clipwarden::test::read_json_file;
+using clipwarden::test::read_text_file;
+using clipwarden::test::run_compare;
+using clipwarden::test::TempFolder;
 using nlohmann::json;
 namespace fs = std::filesystem;
-std::string sh(const std::string& s) { return framelint::test::shell_quoted(s); }  // for the shell
+std::string sh(const std::string& s) { return clipwarden::test::shell_quoted(s); }  // for the shell
 
 const std::string kHostilePrompt = "<img src=x onerror=alert(1)>";
 
@@ -33,15 +33,15 @@ std::string prompt_id(int i) { return i == 3 ? kHostilePrompt : "prompt-" + std:
 // One gate folder: `prompts` prompts x 2 seeds, reports under reports/.
 void write_gate_folder(const std::string& dir, const std::string& side, int prompts, bool inject,
                        std::mt19937_64& rng,
-                       const std::vector<framelint::test::PromptLevels>& levels) {
+                       const std::vector<clipwarden::test::PromptLevels>& levels) {
   fs::create_directories(dir + "/reports");
   std::ofstream queue(dir + "/queue.jsonl");
   for (int i = 0; i < prompts; ++i) {
     for (int seed : {1, 2}) {
       const std::string stem = "c" + std::to_string(i) + "_s" + std::to_string(seed);
       const bool injected = inject && i % 2 == 0;
-      framelint::test::write_synthetic_report(
-          framelint::test::scenario_clip(rng, levels[i], "clips/" + stem + ".mp4", injected),
+      clipwarden::test::write_synthetic_report(
+          clipwarden::test::scenario_clip(rng, levels[i], "clips/" + stem + ".mp4", injected),
           dir + "/reports/" + stem + ".json");
       queue << json{{"id", side + "-" + stem},
                     {"path", "clips/" + stem + ".mp4"},
@@ -65,8 +65,8 @@ void write_gate_folder(const std::string& dir, const std::string& side, int prom
                  .dump()
           << "\n";
   if (side == "b") {
-    framelint::test::write_synthetic_report(
-        framelint::test::scenario_clip(rng, levels[prompts], "clips/extra.mp4", false),
+    clipwarden::test::write_synthetic_report(
+        clipwarden::test::scenario_clip(rng, levels[prompts], "clips/extra.mp4", false),
         dir + "/reports/extra.json");
     queue << json{{"id", "b-extra"},
                   {"path", "clips/extra.mp4"},
@@ -85,7 +85,7 @@ struct GateFolders {
   std::string a = root.file("A"), b = root.file("B"), out = root.file("out");
   GateFolders() {
     std::mt19937_64 rng(7002);
-    const auto levels = framelint::test::draw_prompt_levels(rng, 13);
+    const auto levels = clipwarden::test::draw_prompt_levels(rng, 13);
     write_gate_folder(a, "a", 12, false, rng, levels);
     write_gate_folder(b, "b", 12, true, rng, levels);
     std::ofstream(a + "/reports/c0_s1.html") << "<!DOCTYPE html><title>stub page</title>\n";
@@ -139,7 +139,7 @@ TEST(CompareGateFolders, CompareJsonStructureKeyByKey) {
   EXPECT_EQ(keys_of(c), (std::set<std::string>{"schema", "tool", "inputs", "pair_by", "differences",
                                                "aggregation", "averaged", "settings", "metrics",
                                                "pairs", "unpaired", "failed"}));
-  EXPECT_EQ(c["schema"], "framelint.compare/1");
+  EXPECT_EQ(c["schema"], "clipwarden.compare/1");
   EXPECT_EQ(c["differences"], "B - A");
   EXPECT_EQ(c["settings"]["zero_rule"], "wilcox");
 

@@ -1,8 +1,8 @@
-// `framelint compare` on reports of real footage: the first 15 s of
+// `clipwarden compare` on reports of real footage: the first 15 s of
 // OpenCV's vtest.avi (opencv-doc; static-camera street) cut by FFmpeg into
 // ten 1.5 s clips for A, and the same ten clips for B with flicker injected
 // by FFmpeg's eq filter (brightness +0.12 on every other frame). Both sides
-// are judged by the built `framelint gate`; compare must find B worse
+// are judged by the built `clipwarden gate`; compare must find B worse
 // on flicker and see no difference where nothing changed (freeze).
 #include <gtest/gtest.h>
 #include <sys/wait.h>
@@ -17,7 +17,7 @@
 
 namespace {
 
-using framelint::test::shell_quoted;
+using clipwarden::test::shell_quoted;
 using nlohmann::json;
 
 constexpr const char* kFootage = "/usr/share/doc/opencv-doc/examples/data/vtest.avi";
@@ -45,11 +45,11 @@ TEST(CompareRealClips, InjectedFlickerOnStreetFootage) {
     GTEST_SKIP() << kFootage << " is missing (Debian package opencv-doc)";
   if (!shell_ok("ffmpeg -version"))
     GTEST_SKIP() << "ffmpeg is not installed (Debian package ffmpeg)";
-  framelint::test::TempFolder root("compare-real");
+  clipwarden::test::TempFolder root("compare-real");
   ASSERT_TRUE(cut_clips(root.file("clips_a"), ""));
   ASSERT_TRUE(cut_clips(root.file("clips_b"), ",eq=brightness=0.12*mod(n\\,2):eval=frame"));
-  const std::string binary = FRAMELINT_BINARY;
-  // Each side goes through `framelint gate` with a manifest naming the
+  const std::string binary = CLIPWARDEN_BINARY;
+  // Each side goes through `clipwarden gate` with a manifest naming the
   // prompt of each clip, so compare reads the gate's real queue.jsonl and
   // pairs by prompt_id. The gate exits 1 when its policy rejects a clip, as
   // it may for B's.
@@ -75,18 +75,18 @@ TEST(CompareRealClips, InjectedFlickerOnStreetFootage) {
 
   const std::string args = shell_quoted(root.file("a")) + " " + shell_quoted(root.file("b")) +
                            " --out " + shell_quoted(root.file("out")) + " --quiet";
-  EXPECT_EQ(framelint::test::run_compare(args + " --fail-if-worse flicker"), 1);
-  ASSERT_EQ(framelint::test::run_compare(args), 0);
-  const json c = framelint::test::read_json_file(root.file("out") + "/compare.json");
+  EXPECT_EQ(clipwarden::test::run_compare(args + " --fail-if-worse flicker"), 1);
+  ASSERT_EQ(clipwarden::test::run_compare(args), 0);
+  const json c = clipwarden::test::read_json_file(root.file("out") + "/compare.json");
   ASSERT_FALSE(c.is_discarded());
   EXPECT_EQ(c["pairs"].size(), 10u);
   EXPECT_EQ(c["pair_by"], "prompt_id");
-  const json* flicker = framelint::test::find_compared(c, "flicker", "p95");
+  const json* flicker = clipwarden::test::find_compared(c, "flicker", "p95");
   ASSERT_NE(flicker, nullptr);
   EXPECT_EQ((*flicker)["better"], "a");
   EXPECT_LT((*flicker)["p_holm"].get<double>(), 0.05);
   EXPECT_EQ((*flicker)["wins_a"], 10);
-  const json* freeze = framelint::test::find_compared(c, "freeze", "p95");
+  const json* freeze = clipwarden::test::find_compared(c, "freeze", "p95");
   if (freeze) EXPECT_EQ((*freeze)["better"], "neither");
-  EXPECT_EQ(framelint::test::find_compared(c, "luminance", "p95"), nullptr);  // descriptive
+  EXPECT_EQ(clipwarden::test::find_compared(c, "luminance", "p95"), nullptr);  // descriptive
 }

@@ -1,4 +1,4 @@
-// `framelint probe` end to end: JSON on stdout with the report's clip keys
+// `clipwarden probe` end to end: JSON on stdout with the report's clip keys
 // plus "stream" (DESIGN.md: probe prints what the container holds); bad
 // input gives exit status 3 and one line on stderr naming the file.
 #include <gtest/gtest.h>
@@ -9,15 +9,15 @@
 
 #include "support/clips.h"
 
-using namespace framelint::test;
+using namespace clipwarden::test;
 
 TEST(ProbeCli, PrintsClipFactsAsJson) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   const std::string clip = dir.file("harbour.mp4");
   ASSERT_EQ(make_lavfi_clip(clip, "testsrc2=size=160x120:rate=24:duration=1", {"-c:v", "libx264"}),
             "");
-  const CommandResult r = run_command({FRAMELINT_BINARY, "probe", clip});
+  const CommandResult r = run_command({CLIPWARDEN_BINARY, "probe", clip});
   ASSERT_EQ(r.exit_code, 0) << r.err;
   const auto json = nlohmann::json::parse(r.out);
   for (const char* key :
@@ -38,7 +38,7 @@ TEST(ProbeCli, BadInputIsOneLineAndExitStatus3) {
   const std::string text = dir.file("notes.mp4");
   std::ofstream(text) << "not a clip\n";
   for (const std::string& path : {text, dir.file("missing.webm"), dir.path().string()}) {
-    const CommandResult r = run_command({FRAMELINT_BINARY, "probe", path});
+    const CommandResult r = run_command({CLIPWARDEN_BINARY, "probe", path});
     EXPECT_EQ(r.exit_code, 3) << path;
     EXPECT_TRUE(r.out.empty()) << r.out;
     ASSERT_FALSE(r.err.empty());

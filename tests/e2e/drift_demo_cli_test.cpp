@@ -1,5 +1,5 @@
 // Object drift on the committed demo clips, through the built CLI
-// (`framelint analyze`, default policy). The outside source is the clips'
+// (`clipwarden analyze`, default policy). The outside source is the clips'
 // own truth: clips/lanternfish_drift.truth.json, written by the renderer
 // (clips/lantern_scene.cpp) that turns the lantern's hue by 110 degrees
 // from 1.5 s, with the frames it spans and the CIEDE2000 of the region's
@@ -17,11 +17,11 @@
 
 #include "support/clips.h"
 
-using namespace framelint::test;
+using namespace clipwarden::test;
 
 namespace {
 
-const std::string kClips = std::string(FRAMELINT_SOURCE_DIR) + "/clips/";
+const std::string kClips = std::string(CLIPWARDEN_SOURCE_DIR) + "/clips/";
 constexpr int kOnsetToleranceFrames = 6;  // the bound on the onset error
 
 nlohmann::json read_json(const std::string& path) {
@@ -29,10 +29,10 @@ nlohmann::json read_json(const std::string& path) {
   return nlohmann::json::parse(in, nullptr, false);
 }
 
-// Runs `framelint analyze` on one demo clip; the report, or a discarded
+// Runs `clipwarden analyze` on one demo clip; the report, or a discarded
 // value (with a test failure) when the run did not produce one.
 nlohmann::json analyze_demo(const TempDir& dir, const std::string& name) {
-  const auto result = run_command({FRAMELINT_BINARY, "analyze", kClips + name + ".mp4", "--out",
+  const auto result = run_command({CLIPWARDEN_BINARY, "analyze", kClips + name + ".mp4", "--out",
                                    dir.file("out"), "--no-html", "--quiet"});
   EXPECT_TRUE(result.exit_code == 0 || result.exit_code == 1) << result.err;
   return read_json(dir.file("out/" + name + ".json"));

@@ -1,4 +1,4 @@
-// `framelint gate` end to end through the built binary (DESIGN.md "gate" and
+// `clipwarden gate` end to end through the built binary (DESIGN.md "gate" and
 // exit statuses, issue 6). Good clips are excerpts of real footage (OpenCV's
 // vtest.avi street scene, cut and scaled by FFmpeg); the defect is a
 // full-frame light/dark alternation made by FFmpeg's geq filter, six flashes
@@ -9,18 +9,18 @@
 #include <filesystem>
 #include <fstream>
 
-#include "framelint/policy.h"
+#include "clipwarden/policy.h"
 #include "support/clips.h"
 #include "support/gate_files.h"
 
-using namespace framelint;
-using namespace framelint::test;
+using namespace clipwarden;
+using namespace clipwarden::test;
 namespace fs = std::filesystem;
 
 namespace {
 
-CommandResult framelint_cli(std::vector<std::string> args) {
-  args.insert(args.begin(), FRAMELINT_BINARY);
+CommandResult clipwarden_cli(std::vector<std::string> args) {
+  args.insert(args.begin(), CLIPWARDEN_BINARY);
   return run_command(args);
 }
 
@@ -33,8 +33,8 @@ std::vector<nlohmann::json> queue_of(const fs::path& out) {
 }  // namespace
 
 TEST(GateCli, BatchJudgesGoodAndDefectiveClipsAndRecordsUnreadableOnes) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
-  FRAMELINT_SKIP_WITHOUT_DATA(vtest, "vtest.avi");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_DATA(vtest, "vtest.avi");
   TempDir dir;
   const std::string good_a = dir.file("street 1 — été.mp4"), good_b = dir.file("街 2.mp4");
   for (auto [clip, start] : {std::pair{good_a, 0}, std::pair{good_b, 30}}) {
@@ -62,7 +62,7 @@ TEST(GateCli, BatchJudgesGoodAndDefectiveClipsAndRecordsUnreadableOnes) {
   for (const std::string& a : {std::string("--out"), dir.file("out"), std::string("--jobs"),
                                std::string("2"), std::string("--no-html")})
     args.push_back(a);
-  const auto result = framelint_cli(args);
+  const auto result = clipwarden_cli(args);
   EXPECT_EQ(result.exit_code, 3) << result.err;  // an unreadable input outranks the rejected clip
   EXPECT_NE(result.out.find("2 pass / 0 review / 1 reject / 4 error (0 taken from the store)"),
             std::string::npos)
@@ -93,17 +93,17 @@ TEST(GateCli, BatchJudgesGoodAndDefectiveClipsAndRecordsUnreadableOnes) {
   EXPECT_LT(page.find("corrupt.mp4"), page.find("街 2.mp4"));  // error before pass
 
   // --fail-on: the rejected clip alone fails the gate (1); the good ones pass.
-  EXPECT_EQ(framelint_cli({"gate", flashing, "--out", dir.file("out2"), "--quiet", "--no-html"})
+  EXPECT_EQ(clipwarden_cli({"gate", flashing, "--out", dir.file("out2"), "--quiet", "--no-html"})
                 .exit_code,
             1);
-  EXPECT_EQ(framelint_cli({"gate", good_a, good_b, "--out", dir.file("out2"), "--quiet",
+  EXPECT_EQ(clipwarden_cli({"gate", good_a, good_b, "--out", dir.file("out2"), "--quiet",
                            "--fail-on", "review", "--no-html"})
                 .exit_code,
             0);
 }
 
 TEST(GateCli, FoldersAndManifestsKeepTheirFields) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   ASSERT_EQ(make_varied_clips(dir.path() / "batch" / "day 1", 2, "take"), "");
   ASSERT_EQ(make_varied_clips(dir.path() / "more", 1, "extra"), "");
@@ -112,7 +112,7 @@ TEST(GateCli, FoldersAndManifestsKeepTheirFields) {
              "\"model\": \"ckpt-12\", "
              "\"seed\": 1234, \"guidance\": 6.5}\n");
   const auto result =
-      framelint_cli({"gate", dir.file("batch"), dir.file("more/list.jsonl"), "--out",
+      clipwarden_cli({"gate", dir.file("batch"), dir.file("more/list.jsonl"), "--out",
                      dir.file("out"), "--width", "160", "--quiet", "--no-html"});
   ASSERT_TRUE(result.exit_code == 0 || result.exit_code == 1) << result.err;
   const auto queue = queue_of(dir.path() / "out");
@@ -130,45 +130,45 @@ TEST(GateCli, FoldersAndManifestsKeepTheirFields) {
 TEST(GateCli, UsageErrorsExitTwoAndNameTheCulprit) {
   TempDir dir;
   write_text(dir.path() / "m.jsonl", "{\"path\": \"a.mp4\"}\n{\"path\": \"b.mp4\",}\n");
-  auto r = framelint_cli({"gate", dir.file("m.jsonl"), "--out", dir.file("out")});
+  auto r = clipwarden_cli({"gate", dir.file("m.jsonl"), "--out", dir.file("out")});
   EXPECT_EQ(r.exit_code, 2);
   EXPECT_NE(r.err.find(dir.file("m.jsonl") + ":2"), std::string::npos) << r.err;
   EXPECT_FALSE(fs::exists(dir.path() / "out" / "queue.jsonl"));  // nothing ran
 
   write_text(dir.path() / "m.jsonl", "{\"id\": \"a\"}\n");
-  r = framelint_cli({"gate", dir.file("m.jsonl"), "--out", dir.file("out")});
+  r = clipwarden_cli({"gate", dir.file("m.jsonl"), "--out", dir.file("out")});
   EXPECT_EQ(r.exit_code, 2);
   EXPECT_NE(r.err.find("missing \"path\""), std::string::npos) << r.err;
 
   write_text(dir.path() / "p.json",
              "{\"metrics\": {\"flicker\": {\"segment\": {\"enter\": -0.5}}}}");
-  r = framelint_cli({"gate", "x.mp4", "--out", dir.file("out"), "--policy", dir.file("p.json")});
+  r = clipwarden_cli({"gate", "x.mp4", "--out", dir.file("out"), "--policy", dir.file("p.json")});
   EXPECT_EQ(r.exit_code, 2);
   EXPECT_NE(r.err.find("metrics.flicker.segment.enter"), std::string::npos) << r.err;
 
   write_text(dir.path() / "p.json",
              "{\"metrics\": {\"flicker\": {\"thresholds\": {\"p95\": {\"review\": 0.9}}}}}");
-  r = framelint_cli({"gate", "x.mp4", "--out", dir.file("out"), "--policy", dir.file("p.json")});
+  r = clipwarden_cli({"gate", "x.mp4", "--out", dir.file("out"), "--policy", dir.file("p.json")});
   EXPECT_EQ(r.exit_code, 2);
   EXPECT_NE(r.err.find("metrics.flicker.thresholds.p95.review"), std::string::npos) << r.err;
 
-  EXPECT_EQ(framelint_cli({"gate", "x.mp4", "--out", dir.file("out"), "--shard", "3/3"}).exit_code,
+  EXPECT_EQ(clipwarden_cli({"gate", "x.mp4", "--out", dir.file("out"), "--shard", "3/3"}).exit_code,
             2);
   EXPECT_EQ(
-      framelint_cli({"gate", "x.mp4", "--out", dir.file("out"), "--fail-on", "maybe"}).exit_code,
+      clipwarden_cli({"gate", "x.mp4", "--out", dir.file("out"), "--fail-on", "maybe"}).exit_code,
       2);
-  EXPECT_EQ(framelint_cli({"gate", "x.mp4"}).exit_code, 2);  // no --out
-  EXPECT_EQ(framelint_cli({"merge", dir.file("nowhere"), "--out", dir.file("m")}).exit_code, 2);
+  EXPECT_EQ(clipwarden_cli({"gate", "x.mp4"}).exit_code, 2);  // no --out
+  EXPECT_EQ(clipwarden_cli({"merge", dir.file("nowhere"), "--out", dir.file("m")}).exit_code, 2);
 }
 
 TEST(GateCli, PrintedDefaultPolicyIsAcceptedBackUnchanged) {
   TempDir dir;
-  const auto printed = framelint_cli({"gate", "--print-default-policy"});
+  const auto printed = clipwarden_cli({"gate", "--print-default-policy"});
   ASSERT_EQ(printed.exit_code, 0) << printed.err;
   EXPECT_EQ(nlohmann::ordered_json::parse(printed.out), policy_to_json(default_policy()));
   write_text(dir.path() / "policy.json", printed.out);
   // Accepted: the run goes on to the (missing) clip, exit 3, not 2.
-  const auto r = framelint_cli({"gate", dir.file("missing.mp4"), "--out", dir.file("out"),
+  const auto r = clipwarden_cli({"gate", dir.file("missing.mp4"), "--out", dir.file("out"),
                                 "--policy", dir.file("policy.json"), "--quiet"});
   EXPECT_EQ(r.exit_code, 3) << r.err;
   auto back = load_policy(dir.file("policy.json"));

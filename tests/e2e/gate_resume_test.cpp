@@ -1,4 +1,4 @@
-// Resuming a killed batch (issue 6): a real `framelint gate` child is killed
+// Resuming a killed batch (issue 6): a real `clipwarden gate` child is killed
 // with SIGKILL once the results store holds at least one clip; running the
 // same command again finishes the rest. No clip may be lost or counted
 // twice: the queue has every clip once, the store one row per clip, and
@@ -12,12 +12,12 @@
 #include <set>
 #include <thread>
 
-#include "framelint/store.h"
+#include "clipwarden/store.h"
 #include "support/clips.h"
 #include "support/gate_files.h"
 
-using namespace framelint;
-using namespace framelint::test;
+using namespace clipwarden;
+using namespace clipwarden::test;
 namespace fs = std::filesystem;
 
 namespace {
@@ -36,13 +36,13 @@ size_t stored_rows(const fs::path& db) {
 }  // namespace
 
 TEST(GateResume, KilledBatchFinishesOnRerunWithoutLosingOrRepeatingClips) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   constexpr int kClips = 10;
   ASSERT_EQ(make_varied_clips(dir.path() / "clips", kClips), "");
-  const fs::path out = dir.path() / "out", db = out / "framelint.db";
+  const fs::path out = dir.path() / "out", db = out / "clipwarden.db";
   const std::vector<std::string> command = {
-      FRAMELINT_BINARY, "gate", dir.file("clips"), "--out", out.string(), "--jobs", "1",
+      CLIPWARDEN_BINARY, "gate", dir.file("clips"), "--out", out.string(), "--jobs", "1",
       "--threads",      "1",    "--width",         "160",   "--no-html"};
 
   // First run: kill -9 as soon as one clip is stored (one clip at a time, so

@@ -7,12 +7,12 @@
 #include <filesystem>
 #include <set>
 
-#include "framelint/store.h"
+#include "clipwarden/store.h"
 #include "support/clips.h"
 #include "support/gate_files.h"
 
-using namespace framelint;
-using namespace framelint::test;
+using namespace clipwarden;
+using namespace clipwarden::test;
 namespace fs = std::filesystem;
 
 namespace {
@@ -33,14 +33,14 @@ size_t stored_rows(const fs::path& db) {
 }  // namespace
 
 TEST(GateShards, UnionOfShardRunsEqualsOneRun) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   ASSERT_EQ(make_varied_clips(dir.path() / "clips", 7), "");
   write_text(dir.path() / "clips" / "broken.mp4",
              "not a video");  // errors travel through merge too
   auto gate = [&](const std::string& out, std::vector<std::string> extra) {
     std::vector<std::string> args = {
-        FRAMELINT_BINARY, "gate", dir.file("clips"), "--out", dir.file(out),
+        CLIPWARDEN_BINARY, "gate", dir.file("clips"), "--out", dir.file(out),
         "--width",        "160",  "--jobs",          "2",     "--no-html"};
     args.insert(args.end(), extra.begin(), extra.end());
     return run_command(args);
@@ -66,7 +66,7 @@ TEST(GateShards, UnionOfShardRunsEqualsOneRun) {
   }
   EXPECT_EQ(shard_total, 8u);  // the shares partition the inputs
 
-  std::vector<std::string> args = {FRAMELINT_BINARY, "merge"};
+  std::vector<std::string> args = {CLIPWARDEN_BINARY, "merge"};
   args.insert(args.end(), shard_dirs.begin(), shard_dirs.end());
   args.insert(args.end(), {"--out", dir.file("merged")});
   const auto merged = run_command(args);
@@ -86,6 +86,6 @@ TEST(GateShards, UnionOfShardRunsEqualsOneRun) {
       EXPECT_TRUE(fs::exists(dir.path() / "merged" / b["report"].get<std::string>()));
   }
   EXPECT_EQ(ids.size(), one.size());
-  EXPECT_EQ(stored_rows(dir.path() / "merged" / "framelint.db"), 7u);
+  EXPECT_EQ(stored_rows(dir.path() / "merged" / "clipwarden.db"), 7u);
   EXPECT_TRUE(fs::exists(dir.path() / "merged" / "index.html"));
 }

@@ -1,4 +1,4 @@
-// `framelint inspect` end to end on opencv-doc footage (DESIGN.md: writes PNG
+// `clipwarden inspect` end to end on opencv-doc footage (DESIGN.md: writes PNG
 // panels for one frame and prints their paths; exit 2 for bad usage, 3 for
 // an unreadable input).
 #include <gtest/gtest.h>
@@ -8,7 +8,7 @@
 
 #include "support/clips.h"
 
-using namespace framelint;
+using namespace clipwarden;
 
 namespace {
 std::vector<std::string> lines(const std::string& text) {
@@ -21,10 +21,10 @@ std::vector<std::string> lines(const std::string& text) {
 }  // namespace
 
 TEST(InspectCli, WritesAndPrintsEveryPanel) {
-  FRAMELINT_SKIP_WITHOUT_DATA(clip, "tree.avi");
+  CLIPWARDEN_SKIP_WITHOUT_DATA(clip, "tree.avi");
   test::TempDir dir;
   const auto r = test::run_command(
-      {FRAMELINT_BINARY, "inspect", clip, "--frame", "30", "--out", dir.path().string()});
+      {CLIPWARDEN_BINARY, "inspect", clip, "--frame", "30", "--out", dir.path().string()});
   ASSERT_EQ(r.exit_code, 0) << r.err;
   const auto paths = lines(r.out);
   ASSERT_EQ(paths.size(), 8u) << r.out;
@@ -35,10 +35,10 @@ TEST(InspectCli, WritesAndPrintsEveryPanel) {
 }
 
 TEST(InspectCli, FrameZeroWritesWhatExistsAndSaysSo) {
-  FRAMELINT_SKIP_WITHOUT_DATA(clip, "tree.avi");
+  CLIPWARDEN_SKIP_WITHOUT_DATA(clip, "tree.avi");
   test::TempDir dir;
   const auto r = test::run_command(
-      {FRAMELINT_BINARY, "inspect", clip, "--frame", "0", "--out", dir.path().string()});
+      {CLIPWARDEN_BINARY, "inspect", clip, "--frame", "0", "--out", dir.path().string()});
   ASSERT_EQ(r.exit_code, 0) << r.err;
   const auto paths = lines(r.out);
   ASSERT_EQ(paths.size(), 1u);
@@ -47,19 +47,19 @@ TEST(InspectCli, FrameZeroWritesWhatExistsAndSaysSo) {
 }
 
 TEST(InspectCli, BadRequestsAreOneLineErrors) {
-  FRAMELINT_SKIP_WITHOUT_DATA(clip, "tree.avi");
+  CLIPWARDEN_SKIP_WITHOUT_DATA(clip, "tree.avi");
   test::TempDir dir;
   auto r = test::run_command(
-      {FRAMELINT_BINARY, "inspect", clip, "--frame", "500", "--out", dir.path().string()});
+      {CLIPWARDEN_BINARY, "inspect", clip, "--frame", "500", "--out", dir.path().string()});
   EXPECT_EQ(r.exit_code, 2);
   EXPECT_NE(r.err.find("the clip has 68 frames (0 to 67)"), std::string::npos) << r.err;
   EXPECT_EQ(lines(r.err).size(), 1u) << r.err;
-  r = test::run_command({FRAMELINT_BINARY, "inspect", clip});
+  r = test::run_command({CLIPWARDEN_BINARY, "inspect", clip});
   EXPECT_EQ(r.exit_code, 2);
   EXPECT_NE(r.err.find("--frame"), std::string::npos);
-  r = test::run_command({FRAMELINT_BINARY, "inspect", clip, "--frame", "-3"});
+  r = test::run_command({CLIPWARDEN_BINARY, "inspect", clip, "--frame", "-3"});
   EXPECT_EQ(r.exit_code, 2);
-  r = test::run_command({FRAMELINT_BINARY, "inspect", dir.file("missing.mp4"), "--frame", "3"});
+  r = test::run_command({CLIPWARDEN_BINARY, "inspect", dir.file("missing.mp4"), "--frame", "3"});
   EXPECT_EQ(r.exit_code, 3);
   EXPECT_NE(r.err.find("missing.mp4"), std::string::npos);
   EXPECT_TRUE(std::filesystem::is_empty(dir.path()));

@@ -32,16 +32,16 @@ extern "C" int LLVMFuzzerInitialize(int*, char***) {
 }
 
 extern "C" int LLVMFuzzerTestOneInput(const uint8_t* data, size_t size) {
-  framelint::SourceOptions options;
+  clipwarden::SourceOptions options;
   options.working_long_side = kWorkingLongSide;
   options.threads = 1;
-  auto source = framelint::decode::open_memory_source(data, size, "fuzz-input", options);
+  auto source = clipwarden::decode::open_memory_source(data, size, "fuzz-input", options);
   if (!source) return 0;
-  const framelint::ClipInfo& info = (*source)->info();
+  const clipwarden::ClipInfo& info = (*source)->info();
   if (info.width <= 0 || info.height <= 0) contract_broken("opened a clip without a frame size");
   if (int64_t{info.width} * info.height > kMaxDeclaredPixels) return 0;
 
-  framelint::DecodedFrame frame;
+  clipwarden::DecodedFrame frame;
   for (int i = 0; i < kMaxFrames; ++i) {
     auto more = (*source)->read(frame);
     if (!more || !*more) break;

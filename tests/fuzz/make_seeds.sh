@@ -7,10 +7,10 @@
 #              of docs/gate.md, and a small hand-written one
 #   manifest - manifests as docs/gate.md describes them, and --shard texts
 #   report   - the JSON reports of analysing two of the clips above
-# Usage: make_seeds.sh OUT FRAMELINT_BINARY
+# Usage: make_seeds.sh OUT CLIPWARDEN_BINARY
 set -euo pipefail
-out=${1:?usage: make_seeds.sh OUT FRAMELINT_BINARY}
-cli=${2:?usage: make_seeds.sh OUT FRAMELINT_BINARY}
+out=${1:?usage: make_seeds.sh OUT CLIPWARDEN_BINARY}
+cli=${2:?usage: make_seeds.sh OUT CLIPWARDEN_BINARY}
 source_dir="$(cd "$(dirname "$0")/../.." && pwd)"
 mkdir -p "$out"/{decode,policy,manifest,report}
 work=$(mktemp -d)
@@ -32,7 +32,7 @@ ffmpeg "${lavfi[@]}" -frames:v 1 "$out/decode/picture.png"
 awk '/^```json/{on=1; next} /^```/{if (on) exit} on' "$source_dir/docs/gate.md" \
   >"$out/policy/docs_gate_example.json"
 cat >"$out/policy/small.json" <<'JSON'
-{"schema": "framelint.policy/1", "name": "small",
+{"schema": "clipwarden.policy/1", "name": "small",
  "rules": {"coherence_review_below": 50, "dropped_frames_review": null},
  "metrics": {"flicker": {"segment": {"enter": 3, "leave": 1, "review_peak": null},
                          "thresholds": {"p95": {"review": 2, "reject": null}}}}}

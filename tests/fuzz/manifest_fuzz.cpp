@@ -11,14 +11,14 @@
 #include <fstream>
 #include <string>
 
-#include "framelint/gate.h"
+#include "clipwarden/gate.h"
 
 namespace {
 
 std::string manifest_path() {
   static const std::string path = [] {
     const auto dir = std::filesystem::temp_directory_path() /
-                     ("framelint-fuzz-manifest-" + std::to_string(::getpid()));
+                     ("clipwarden-fuzz-manifest-" + std::to_string(::getpid()));
     std::filesystem::create_directories(dir);
     return (dir / "manifest.jsonl").string();
   }();
@@ -41,15 +41,15 @@ extern "C" int LLVMFuzzerTestOneInput(const uint8_t* data, size_t size) {
     std::ofstream out(manifest_path(), std::ios::binary | std::ios::trunc);
     out.write(text.data(), static_cast<std::streamsize>(text.size()));
   }
-  auto collected = framelint::collect_inputs({manifest_path()});
+  auto collected = clipwarden::collect_inputs({manifest_path()});
   if (collected) {
     for (const auto& input : collected->inputs)
       if (input.path.empty() || input.id.empty()) std::abort();  // parse_manifest_line refuses both
     for (int count : {1, 3, 16})
-      (void)framelint::select_shard(collected->inputs, framelint::ShardSpec{0, count});
+      (void)clipwarden::select_shard(collected->inputs, clipwarden::ShardSpec{0, count});
   }
   const std::string first_line = text.substr(0, text.find('\n'));
-  auto shard = framelint::parse_shard(first_line, fixed_environment);
+  auto shard = clipwarden::parse_shard(first_line, fixed_environment);
   if (shard && !(shard->index >= 0 && shard->index < shard->count)) std::abort();
   return 0;
 }

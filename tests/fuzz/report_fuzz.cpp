@@ -7,16 +7,16 @@
 #include <cstdlib>
 #include <string>
 
-#include "framelint/report_io.h"
+#include "clipwarden/report_io.h"
 
 extern "C" int LLVMFuzzerTestOneInput(const uint8_t* data, size_t size) {
   const auto json = nlohmann::json::parse(data, data + size, nullptr, /*allow_exceptions=*/false);
   if (json.is_discarded()) return 0;
-  (void)framelint::validate_report_json(json, "fuzz.json");
-  auto report = framelint::report_from_json(json, "fuzz.json");
+  (void)clipwarden::validate_report_json(json, "fuzz.json");
+  auto report = clipwarden::report_from_json(json, "fuzz.json");
   if (!report) return 0;
-  const nlohmann::json written = framelint::report_to_json(*report);
-  auto again = framelint::report_from_json(written, "written.json");
+  const nlohmann::json written = clipwarden::report_to_json(*report);
+  auto again = clipwarden::report_from_json(written, "written.json");
   if (!again) {
     std::fprintf(stderr, "report_fuzz: a report read back does not read again: %s\n%s\n",
                  again.error().cause.c_str(), written.dump().c_str());

@@ -1,5 +1,5 @@
 #!/usr/bin/env bash
-# Runs the fuzz targets of a FRAMELINT_FUZZ build for a fixed time each, from
+# Runs the fuzz targets of a CLIPWARDEN_FUZZ build for a fixed time each, from
 # their seed corpora (made by make_seeds.sh on first use), as many at once as
 # there are cores. New inputs collect in BUILD/fuzz/corpus/<target>, crashes
 # in BUILD/fuzz/artifacts/<target>/, logs in BUILD/fuzz/<target>.log.
@@ -13,7 +13,7 @@ targets=("$@")
 [ ${#targets[@]} -gt 0 ] || targets=(decode policy manifest report)
 here="$(cd "$(dirname "$0")" && pwd)"
 fuzz="$build/fuzz"
-[ -d "$fuzz/seeds/report" ] || "$here/make_seeds.sh" "$fuzz/seeds" "$build/framelint"
+[ -d "$fuzz/seeds/report" ] || "$here/make_seeds.sh" "$fuzz/seeds" "$build/clipwarden"
 
 export ASAN_OPTIONS="${ASAN_OPTIONS:-detect_leaks=1}"
 export UBSAN_OPTIONS="${UBSAN_OPTIONS:-print_stacktrace=1:halt_on_error=1}"

@@ -13,12 +13,12 @@
 
 #include <opencv2/imgproc.hpp>
 
-#include "framelint/analysis.h"
-#include "framelint/policy.h"
+#include "clipwarden/analysis.h"
+#include "clipwarden/policy.h"
 #include "support/drift_scenes.h"
 #include "support/synthetic_source.h"
 
-namespace framelint::test {
+namespace clipwarden::test {
 namespace {
 
 constexpr double kFps = 24;
@@ -114,4 +114,4 @@ TEST(BoilingReference, CleanPanAndFrameWideGrainReadNearZero) {
 }
 
 }  // namespace
-}  // namespace framelint::test
+}  // namespace clipwarden::test

@@ -1,4 +1,4 @@
-// The clip writer (framelint/clip_writer.h) against outside readers: ffprobe
+// The clip writer (clipwarden/clip_writer.h) against outside readers: ffprobe
 // says how many frames the written file holds and when each is shown
 // (best_effort_timestamp_time); our decoder must agree with it and with the
 // times we wrote. FFV1 must decode to the exact input pixels.
@@ -11,8 +11,8 @@
 #include "support/clips.h"
 #include "support/inject_clips.h"
 
-using namespace framelint;
-namespace ft = framelint::test;
+using namespace clipwarden;
+namespace ft = clipwarden::test;
 
 namespace {
 
@@ -56,7 +56,7 @@ void expect_times_agree(const std::string& path, const std::vector<double>& writ
 }  // namespace
 
 TEST(ClipWriterReference, Ffv1KeepsTimesAndExactPixels) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffprobe");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffprobe");
   const ft::TempDir temp;
   const std::string dir = temp.path().string();
   const auto times = irregular_times();
@@ -72,7 +72,7 @@ TEST(ClipWriterReference, Ffv1KeepsTimesAndExactPixels) {
 }
 
 TEST(ClipWriterReference, H264KeepsTimesAndQuality) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffprobe");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffprobe");
   if (!h264_encoder_available()) GTEST_SKIP() << "libav has no libx264 encoder";
   const ft::TempDir temp;
   const std::string dir = temp.path().string();

@@ -28,7 +28,7 @@
 
 namespace {
 
-using namespace framelint::color;
+using namespace clipwarden::color;
 
 std::vector<Rgb> random_colours(int n, unsigned seed) {
   std::mt19937 rng(seed);
@@ -51,7 +51,7 @@ TEST(ColorLabReference, AgreesWithScikitImageRgb2lab) {
   }
   const auto colours = random_colours(500, 11);
   const auto dir = std::filesystem::temp_directory_path() /
-                   ("framelint_lab_" + std::to_string(::testing::UnitTest::GetInstance()->random_seed()) +
+                   ("clipwarden_lab_" + std::to_string(::testing::UnitTest::GetInstance()->random_seed()) +
                     "_" + std::to_string(reinterpret_cast<uintptr_t>(&colours)));
   std::filesystem::create_directories(dir);
   const auto in_path = dir / "rgb.txt";

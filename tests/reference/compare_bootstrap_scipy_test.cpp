@@ -25,7 +25,7 @@
 
 namespace {
 
-namespace st = framelint::stats;
+namespace st = clipwarden::stats;
 
 constexpr int kResamples = 10000;
 constexpr int kSeeds = 10;
@@ -80,7 +80,7 @@ double stddev(const std::vector<double>& v) {
 }  // namespace
 
 TEST(BootstrapAgainstScipy, SameResamplesGiveTheSameBcaBounds) {
-  if (auto why = framelint::test::scipy_unavailable_reason()) GTEST_SKIP() << *why;
+  if (auto why = clipwarden::test::scipy_unavailable_reason()) GTEST_SKIP() << *why;
   std::mt19937_64 rng(11);
   std::vector<std::vector<double>> samples;
   for (int n : {5, 8, 20, 60, 200}) samples.push_back(skewed_sample(rng, n, true));
@@ -95,7 +95,7 @@ TEST(BootstrapAgainstScipy, SameResamplesGiveTheSameBcaBounds) {
     input.push_back({{"d", samples[i]}, {"distribution", distribution}});
   }
   std::string error;
-  const auto reference = framelint::test::run_python_json(kBootstrapScript, input, error);
+  const auto reference = clipwarden::test::run_python_json(kBootstrapScript, input, error);
   ASSERT_FALSE(reference.is_discarded()) << error;
   for (size_t i = 0; i < samples.size(); ++i) {
     const double low = reference[i][0], high = reference[i][1];
@@ -107,7 +107,7 @@ TEST(BootstrapAgainstScipy, SameResamplesGiveTheSameBcaBounds) {
 }
 
 TEST(BootstrapAgainstScipy, IndependentResamplesAgreeWithinMonteCarloError) {
-  if (auto why = framelint::test::scipy_unavailable_reason()) GTEST_SKIP() << *why;
+  if (auto why = clipwarden::test::scipy_unavailable_reason()) GTEST_SKIP() << *why;
   std::mt19937_64 rng(12);
   std::vector<std::vector<double>> samples;
   for (int n : {5, 12, 30, 200}) samples.push_back(skewed_sample(rng, n, false));
@@ -119,7 +119,7 @@ TEST(BootstrapAgainstScipy, IndependentResamplesAgreeWithinMonteCarloError) {
   for (const auto& d : samples)
     input.push_back({{"d", d}, {"seeds", kSeeds}, {"resamples", kResamples}});
   std::string error;
-  const auto reference = framelint::test::run_python_json(kBootstrapScript, input, error);
+  const auto reference = clipwarden::test::run_python_json(kBootstrapScript, input, error);
   ASSERT_FALSE(reference.is_discarded()) << error;
 
   for (size_t i = 0; i < samples.size(); ++i) {

@@ -25,9 +25,9 @@
 
 namespace {
 
-using framelint::stats::Alternative;
-using framelint::stats::TestMethod;
-using framelint::stats::ZeroMethod;
+using clipwarden::stats::Alternative;
+using clipwarden::stats::TestMethod;
+using clipwarden::stats::ZeroMethod;
 
 constexpr const char* kWilcoxonScript = R"PY(
 import json, sys, warnings
@@ -110,7 +110,7 @@ std::vector<WilcoxonCase> make_cases() {
 }  // namespace
 
 TEST(WilcoxonAgainstScipy, StatisticAndPValueAgree) {
-  if (auto why = framelint::test::scipy_unavailable_reason()) GTEST_SKIP() << *why;
+  if (auto why = clipwarden::test::scipy_unavailable_reason()) GTEST_SKIP() << *why;
   const auto cases = make_cases();
   nlohmann::json input = nlohmann::json::array();
   for (const auto& c : cases)
@@ -121,7 +121,7 @@ TEST(WilcoxonAgainstScipy, StatisticAndPValueAgree) {
                      {"scipy_method", c.scipy_method},
                      {"drop_zeros_first", c.drop_zeros_first}});
   std::string error;
-  const auto reference = framelint::test::run_python_json(kWilcoxonScript, input, error);
+  const auto reference = clipwarden::test::run_python_json(kWilcoxonScript, input, error);
   ASSERT_FALSE(reference.is_discarded()) << error;
   ASSERT_EQ(reference.size(), cases.size());
 
@@ -129,12 +129,12 @@ TEST(WilcoxonAgainstScipy, StatisticAndPValueAgree) {
   int exact_cases = 0, normal_cases = 0;
   for (size_t i = 0; i < cases.size(); ++i) {
     const auto& c = cases[i];
-    framelint::stats::WilcoxonOptions options;
+    clipwarden::stats::WilcoxonOptions options;
     options.zero_method = c.zero_method;
     options.alternative = c.alternative;
     options.continuity_correction = c.correction;
     options.method = c.our_method;
-    const auto ours = framelint::stats::wilcoxon_signed_rank(c.d, options);
+    const auto ours = clipwarden::stats::wilcoxon_signed_rank(c.d, options);
     const double scipy_statistic = reference[i][0].get<double>();
     const double scipy_p = reference[i][1].get<double>();
     ASSERT_EQ(ours.method_used, c.expected_method) << c.label;

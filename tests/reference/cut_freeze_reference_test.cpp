@@ -7,11 +7,11 @@
 #include <cmath>
 #include <regex>
 
-#include "framelint/analysis.h"
+#include "clipwarden/analysis.h"
 #include "support/clips.h"
 
-using namespace framelint;
-using namespace framelint::test;
+using namespace clipwarden;
+using namespace clipwarden::test;
 
 namespace {
 
@@ -35,8 +35,8 @@ std::vector<double> ffmpeg_event_times(const std::string& clip, const std::strin
 }  // namespace
 
 TEST(CutReference, MatchesFfmpegScdetOnMegamind) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
-  FRAMELINT_SKIP_WITHOUT_DATA(clip, "Megamind.avi");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_DATA(clip, "Megamind.avi");
   // scdet's threshold 10 (of 100) [FFmpeg filter documentation: default 10].
   const auto cuts = ffmpeg_event_times(clip, "scdet=threshold=10", "lavfi.scd.time");
   ASSERT_GE(cuts.size(), 3u) << "scdet found too few cuts to compare";
@@ -54,7 +54,7 @@ TEST(CutReference, MatchesFfmpegScdetOnMegamind) {
 }
 
 TEST(FreezeReference, MatchesFfmpegFreezedetect) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   // 4 s of moving test pattern at 10 fps with one frame shown 10 times
   // (`loop` repeats it 9 more times; setpts keeps the timing even).

@@ -13,8 +13,8 @@
 #include "support/clips.h"
 #include "support/decode_read.h"
 
-using namespace framelint;
-using namespace framelint::test;
+using namespace clipwarden;
+using namespace clipwarden::test;
 
 namespace {
 
@@ -70,7 +70,7 @@ std::string make(const TempDir& dir, const std::string& name, const std::vector<
 }  // namespace
 
 TEST(DecodeBadInput, TruncatedFilesSayWhereTheyStop) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   const std::vector<std::pair<std::string, std::vector<std::string>>> clips = {
       {"fast.mp4", {"-c:v", "libx264", "-movflags", "+faststart"}},
@@ -90,7 +90,7 @@ TEST(DecodeBadInput, TruncatedFilesSayWhereTheyStop) {
 }
 
 TEST(DecodeBadInput, Mp4CutBeforeItsIndex) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   // Without +faststart the index (moov) comes last: the cut loses it.
   const std::string cut = cut_copy(dir, make(dir, "late_index.mp4", {"-c:v", "libx264"}), 0.6);
@@ -113,7 +113,7 @@ TEST(DecodeBadInput, NotVideoFiles) {
 }
 
 TEST(DecodeBadInput, FilesWithoutVideo) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   const std::string audio = make(dir, "tone.m4a", {"-c:a", "aac"}, "sine=duration=1");
   expect_input_error(audio, "no video stream (the file holds only audio)");
@@ -150,7 +150,7 @@ TEST(DecodeBadInput, EmptyFolderAndFolderWithoutFrames) {
 }
 
 TEST(DecodeBadInput, CorruptPacketMidStreamIsSkipped) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   const std::string whole =
       make(dir, "whole.mp4", {"-c:v", "libx264", "-g", "24", "-movflags", "+faststart"});

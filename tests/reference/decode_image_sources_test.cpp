@@ -14,8 +14,8 @@
 #include "support/clips.h"
 #include "support/decode_read.h"
 
-using namespace framelint;
-using namespace framelint::test;
+using namespace clipwarden;
+using namespace clipwarden::test;
 
 namespace {
 
@@ -54,7 +54,7 @@ std::string write_frames(const TempDir& dir, const std::string& folder, const st
 }  // namespace
 
 TEST(DecodeImageSources, PngFolderInNaturalOrderEqualsImread) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   const std::string folder = write_frames(dir, "png_frames", "shot_%d.png", 12);
   SourceOptions options;
@@ -82,7 +82,7 @@ TEST(DecodeImageSources, PngFolderInNaturalOrderEqualsImread) {
 }
 
 TEST(DecodeImageSources, JpegFolderAtWorkingSize) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   const int count = 11;
   const std::string folder = write_frames(dir, "jpg_frames", "f%d.jpg", count, {"-q:v", "2"});
@@ -114,7 +114,7 @@ TEST(DecodeImageSources, JpegFolderAtWorkingSize) {
 }
 
 TEST(DecodeImageSources, FolderFrameOfAnotherSizeIsNamed) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   const std::string folder = write_frames(dir, "mixed", "f%d.png", 4);
   const std::string odd_one = folder + "/f5.png";
@@ -129,7 +129,7 @@ TEST(DecodeImageSources, FolderFrameOfAnotherSizeIsNamed) {
 }
 
 TEST(DecodeImageSources, LosslessAnimatedWebpEqualsSourceFrames) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   const std::string webp = dir.file("anim.webp");
   ASSERT_EQ(

@@ -11,8 +11,8 @@
 #include "support/clips.h"
 #include "support/decode_read.h"
 
-using namespace framelint;
-using namespace framelint::test;
+using namespace clipwarden;
+using namespace clipwarden::test;
 
 namespace {
 
@@ -57,7 +57,7 @@ const char* kFadingSource = "testsrc2=size=160x120:rate=12:duration=2";
 // survives YUV -> RGB -> luma up to 8-bit rounding, whose mean error over a
 // frame is near 0: tolerance 0.1 of an 8-bit level.
 TEST(DecodePicture, MeanLumaMatchesSignalstatsH264) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   const std::string clip = dir.file("m.mp4");
   // testsrc2's colour bars and moving parts at 40 % saturation, faded in from black.
@@ -73,7 +73,7 @@ TEST(DecodePicture, MeanLumaMatchesSignalstatsH264) {
 // (mostly upwards in dark saturated areas). Measured up to 0.83 levels on
 // this clip; tolerance 1.0.
 TEST(DecodePicture, MeanLumaMatchesSignalstatsSaturatedColours) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   const std::string clip = dir.file("s.mp4");
   ASSERT_EQ(
@@ -84,7 +84,7 @@ TEST(DecodePicture, MeanLumaMatchesSignalstatsSaturatedColours) {
 }
 
 TEST(DecodePicture, MeanLumaMatchesSignalstatsTenBit) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   const std::string clip = dir.file("m10.mp4");
   ASSERT_EQ(make_lavfi_clip(clip, kFadingSource,
@@ -99,8 +99,8 @@ TEST(DecodePicture, MeanLumaMatchesSignalstatsTenBit) {
 // Real footage (MPEG-4 Part 2, natural colours, little clipping): measured
 // 0.07 levels at worst; tolerance 0.2.
 TEST(DecodePicture, MeanLumaMatchesSignalstatsOpencvFootage) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
-  FRAMELINT_SKIP_WITHOUT_DATA(clip, "Megamind.avi");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_DATA(clip, "Megamind.avi");
   expect_luma_matches_signalstats(clip, 1.0, 0.2);
 }
 
@@ -142,7 +142,7 @@ cv::Mat ffmpeg_first_frame(const std::string& clip, int width, int height, const
 }  // namespace
 
 TEST(DecodePicture, RotationMetadataIsApplied) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   const std::string clip = dir.file("portrait.mp4");
   // A white box in the top-left corner of a dark 160x120 picture.
@@ -194,7 +194,7 @@ TEST(DecodePicture, RotationMetadataIsApplied) {
 // with no bias. A chroma or colour-matrix mistake would show as a bias of
 // several levels in one channel.
 TEST(DecodePicture, WorkingSizeMatchesOpencvAreaResize) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   const std::string clip = dir.file("moderate.mp4");
   ASSERT_EQ(make_lavfi_clip(clip, "testsrc2=size=320x240:rate=12:duration=1",
@@ -230,7 +230,7 @@ TEST(DecodePicture, WorkingSizeMatchesOpencvAreaResize) {
 // Non-square pixels: the displayed width is the stored width times the
 // sample aspect ratio, as ffprobe's display_aspect_ratio states.
 TEST(DecodePicture, PixelAspectRatioWidensTheFrame) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   const std::string clip = dir.file("anamorphic.mp4");
   ASSERT_EQ(make_lavfi_clip(clip, "testsrc2=size=160x120:rate=10:duration=1",

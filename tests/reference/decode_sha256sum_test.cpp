@@ -6,11 +6,11 @@
 
 #include <fstream>
 
-#include "framelint/clip_source.h"
+#include "clipwarden/clip_source.h"
 #include "support/clips.h"
 
-using namespace framelint;
-using namespace framelint::test;
+using namespace clipwarden;
+using namespace clipwarden::test;
 
 namespace {
 
@@ -23,15 +23,15 @@ std::string coreutils_sha256(const std::string& path) {
 }  // namespace
 
 TEST(DecodeSha256sum, OpencvClipMatchesCoreutils) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("sha256sum");
-  FRAMELINT_SKIP_WITHOUT_DATA(clip, "Megamind.avi");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("sha256sum");
+  CLIPWARDEN_SKIP_WITHOUT_DATA(clip, "Megamind.avi");
   auto ours = sha256_file(clip);
   ASSERT_TRUE(ours.ok()) << ours.error().message();
   EXPECT_EQ(*ours, coreutils_sha256(clip));
 }
 
 TEST(DecodeSha256sum, SmallFilesAndFipsMessagesMatchCoreutils) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("sha256sum");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("sha256sum");
   TempDir dir;
   std::vector<std::string> contents = {"", "abc",
                                        "abcdbcdecdefdefgefghfghighijhijkijkljklmklmnlmnomnopnopq",

@@ -11,8 +11,8 @@
 #include "support/clips.h"
 #include "support/decode_read.h"
 
-using namespace framelint;
-using namespace framelint::test;
+using namespace clipwarden;
+using namespace clipwarden::test;
 
 namespace {
 
@@ -116,19 +116,19 @@ void expect_long_audio_facts(const std::string& clip) {
 }  // namespace
 
 TEST(DecodeStreamFacts, LongerAudioWithSilentTailAac) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   expect_long_audio_facts(make_clip_with_long_audio(dir, "av.mp4", "aac"));
 }
 
 TEST(DecodeStreamFacts, LongerAudioWithSilentTailPcmInMatroska) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   expect_long_audio_facts(make_clip_with_long_audio(dir, "av.mkv", "pcm_s16le"));
 }
 
 TEST(DecodeStreamFacts, AudibleToTheEndHasNoSilentTail) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   const std::string clip = dir.file("tone.mp4");
   ASSERT_EQ(make_lavfi_clip(clip, "testsrc2=size=160x120:rate=24:duration=2",
@@ -144,7 +144,7 @@ TEST(DecodeStreamFacts, AudibleToTheEndHasNoSilentTail) {
 }
 
 TEST(DecodeStreamFacts, EveryTenthFrameDropped) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   const std::string clip = dir.file("drops.mp4");
   // 72 frames at 24 fps; frames 9, 19, ..., 69 removed, the others keep
@@ -168,7 +168,7 @@ TEST(DecodeStreamFacts, EveryTenthFrameDropped) {
 }
 
 TEST(DecodeStreamFacts, RepeatedTimestamp) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   const std::string clean = dir.file("clean.mkv"), repeated = dir.file("repeated.mkv");
   ASSERT_EQ(make_lavfi_clip(clean, "testsrc2=size=160x120:rate=10:duration=2", {"-c:v", "mjpeg"}),

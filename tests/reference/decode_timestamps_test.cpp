@@ -11,8 +11,8 @@
 #include "support/clips.h"
 #include "support/decode_read.h"
 
-using namespace framelint;
-using namespace framelint::test;
+using namespace clipwarden;
+using namespace clipwarden::test;
 
 namespace {
 
@@ -63,14 +63,14 @@ const char* kSmallSource = "testsrc2=size=160x120:rate=24:duration=2";
 }  // namespace
 
 TEST(DecodeTimestamps, OpencvVtestAvi) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffprobe");
-  FRAMELINT_SKIP_WITHOUT_DATA(clip, "vtest.avi");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffprobe");
+  CLIPWARDEN_SKIP_WITHOUT_DATA(clip, "vtest.avi");
   expect_frames_match_ffprobe(clip);
 }
 
 TEST(DecodeTimestamps, OpencvTreeAviWithIrregularTimestamps) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffprobe");
-  FRAMELINT_SKIP_WITHOUT_DATA(clip, "tree.avi");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffprobe");
+  CLIPWARDEN_SKIP_WITHOUT_DATA(clip, "tree.avi");
   expect_frames_match_ffprobe(clip);
   // tree.avi's frames are irregularly spaced (in ffprobe's listing its
   // intervals range from 5 to 11 ticks of 1/15 s).
@@ -78,13 +78,13 @@ TEST(DecodeTimestamps, OpencvTreeAviWithIrregularTimestamps) {
 }
 
 TEST(DecodeTimestamps, OpencvMegamindAvi) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffprobe");
-  FRAMELINT_SKIP_WITHOUT_DATA(clip, "Megamind.avi");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffprobe");
+  CLIPWARDEN_SKIP_WITHOUT_DATA(clip, "Megamind.avi");
   expect_frames_match_ffprobe(clip);
 }
 
 TEST(DecodeTimestamps, H264Mp4WithBFrames) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   const auto clip =
       make_clip(dir, "a.mp4", kSmallSource, {"-c:v", "libx264", "-bf", "3", "-pix_fmt", "yuv420p"});
@@ -97,7 +97,7 @@ TEST(DecodeTimestamps, H264Mp4WithBFrames) {
 }
 
 TEST(DecodeTimestamps, Vp9Webm) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   const auto clip =
       make_clip(dir, "a.webm", kSmallSource,
@@ -108,14 +108,14 @@ TEST(DecodeTimestamps, Vp9Webm) {
 }
 
 TEST(DecodeTimestamps, AnimatedGif) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   const auto clip = make_clip(dir, "a.gif", "testsrc2=size=160x120:rate=10:duration=2", {});
   expect_frames_match_ffprobe(clip);
 }
 
 TEST(DecodeTimestamps, TenBitH264) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   const auto clip =
       make_clip(dir, "a10.mp4", kSmallSource, {"-c:v", "libx264", "-pix_fmt", "yuv420p10le"});
@@ -126,7 +126,7 @@ TEST(DecodeTimestamps, TenBitH264) {
 }
 
 TEST(DecodeTimestamps, VariableFrameRate) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   // Frame n at (n + 0.3 sin n) / 24 s: intervals between 0.71 and 1.29 of
   // 1/24 s, never a gap of 1.5 intervals. A microsecond time base in the

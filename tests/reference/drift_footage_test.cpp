@@ -13,12 +13,12 @@
 #include <filesystem>
 
 #include "analyzer/core/assets.h"
-#include "framelint/analysis.h"
-#include "framelint/report_io.h"
+#include "clipwarden/analysis.h"
+#include "clipwarden/report_io.h"
 #include "report/json/schema_check.h"
 #include "support/drift_pairs.h"
 
-namespace framelint::test {
+namespace clipwarden::test {
 namespace {
 
 constexpr double kReview = 1.0;
@@ -39,7 +39,7 @@ void expect_no_review_drift(const Report& report) {
       EXPECT_LT(s["peak"].get<double>(), kReview) << "object " << o.id;
     }
   }
-  const auto schema = nlohmann::json::parse(asset("framelint.report-1.schema.json"));
+  const auto schema = nlohmann::json::parse(asset("clipwarden.report-1.schema.json"));
   const Status valid = check_against_schema(report_to_json(report), schema, "report");
   EXPECT_TRUE(valid.ok()) << (valid.ok() ? "" : valid.error().message());
 }
@@ -48,7 +48,7 @@ TEST(DriftFootage, VtestFirst150FramesReadsNoDrift) {
   const std::string vtest = opencv_sample("vtest.avi");
   if (vtest.empty()) GTEST_SKIP() << "opencv-doc vtest.avi not installed";
   if (std::system("ffmpeg -version >/dev/null 2>&1") != 0) GTEST_SKIP() << "ffmpeg CLI not installed";
-  const auto dir = std::filesystem::temp_directory_path() / ("framelint-drift-" + std::to_string(::getpid()));
+  const auto dir = std::filesystem::temp_directory_path() / ("clipwarden-drift-" + std::to_string(::getpid()));
   std::filesystem::create_directories(dir);
   const std::string trimmed = (dir / "vtest150.avi").string();
   const std::string cmd = "ffmpeg -v error -y -i '" + vtest + "' -frames:v 150 -c copy '" + trimmed + "'";
@@ -73,4 +73,4 @@ TEST(DriftFootage, TreeReadsNoDrift) {
 }
 
 }  // namespace
-}  // namespace framelint::test
+}  // namespace clipwarden::test

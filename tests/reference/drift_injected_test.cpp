@@ -18,7 +18,7 @@
 #include "support/drift_pairs.h"
 #include "support/drift_scenes.h"
 
-namespace framelint::test {
+namespace clipwarden::test {
 namespace {
 
 constexpr double kSegmentEnter = 0.35;
@@ -199,4 +199,4 @@ TEST(DriftInjected, ColourDriftIsComparableAcrossFrameRates) {
 }
 
 }  // namespace
-}  // namespace framelint::test
+}  // namespace clipwarden::test

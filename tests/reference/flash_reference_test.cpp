@@ -8,11 +8,11 @@
 
 #include <algorithm>
 
-#include "framelint/analysis.h"
+#include "clipwarden/analysis.h"
 #include "support/clips.h"
 
-using namespace framelint;
-using namespace framelint::test;
+using namespace clipwarden;
+using namespace clipwarden::test;
 
 namespace {
 
@@ -44,7 +44,7 @@ std::string alternation(const TempDir& dir, const std::string& name, int rate, i
 }  // namespace
 
 TEST(FlashReference, FiveHertzLavfiAlternationIsRejected) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   // 30 fps, 3 frames per state: 5 dark-light cycles per second.
   const Report r = analyse(alternation(dir, "five.mkv", 30, 3));
@@ -58,7 +58,7 @@ TEST(FlashReference, FiveHertzLavfiAlternationIsRejected) {
 }
 
 TEST(FlashReference, TwoHertzLavfiAlternationIsNotAHazard) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   // 24 fps, 6 frames per state: 2 cycles per second.
   const Report r = analyse(alternation(dir, "two.mkv", 24, 6));
@@ -69,7 +69,7 @@ TEST(FlashReference, TwoHertzLavfiAlternationIsNotAHazard) {
 }
 
 TEST(FlashReference, SaturatedRedLavfiAlternationTriggersTheRedRule) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   // Pure red against the grey of about the same relative luminance (sRGB
   // 127), 3 frames each at 30 fps: no general flash, 5 red flashes a second.
@@ -91,7 +91,7 @@ TEST(FlashReference, SaturatedRedLavfiAlternationTriggersTheRedRule) {
 }
 
 TEST(FlashReference, MegamindTrailerHasNoHazard) {
-  FRAMELINT_SKIP_WITHOUT_DATA(clip, "Megamind.avi");
+  CLIPWARDEN_SKIP_WITHOUT_DATA(clip, "Megamind.avi");
   const Report r = analyse(clip);
   const auto& d = r.summary.details.at("flash");
   EXPECT_EQ(d.at("hazard"), false);

@@ -1,6 +1,6 @@
 // Flicker statistics against FFmpeg: clips whose brightness is modulated by
 // the eq filter at a known frequency (FFmpeg lavfi, eval=frame), analysed by
-// framelint end to end, compared with FFmpeg's signalstats YAVG series.
+// clipwarden end to end, compared with FFmpeg's signalstats YAVG series.
 //
 // YAVG is the frame's mean luma Y' (gamma-encoded, limited range 16-235),
 // not relative luminance: the same modulation has a much smaller percent
@@ -17,11 +17,11 @@
 
 #include "analyzer/color/relative_luminance.h"
 #include "analyzer/metrics/flicker_statistics.h"
-#include "framelint/analysis.h"
+#include "clipwarden/analysis.h"
 #include "support/clips.h"
 
-using namespace framelint;
-using namespace framelint::test;
+using namespace clipwarden;
+using namespace clipwarden::test;
 
 namespace {
 
@@ -48,7 +48,7 @@ Analysed analyse(const std::string& clip) {
 }  // namespace
 
 TEST(FlickerReference, GreyModulatedAtThreeHertzAgainstSignalstats) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
   TempDir dir;
   const std::string clip = dir.file("grey.mkv");
   ASSERT_EQ(make_lavfi_clip(clip, "color=c=0x808080:s=160x120:r=30:d=4",
@@ -81,8 +81,8 @@ TEST(FlickerReference, GreyModulatedAtThreeHertzAgainstSignalstats) {
 }
 
 TEST(FlickerReference, RealFootageModulatedAtTwoHertz) {
-  FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
-  FRAMELINT_SKIP_WITHOUT_DATA(vtest, "vtest.avi");
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
+  CLIPWARDEN_SKIP_WITHOUT_DATA(vtest, "vtest.avi");
   TempDir dir;
   const std::string clip = dir.file("street.mkv");
   // 6 s of the street scene (10 fps), brightness modulated at 2 Hz.

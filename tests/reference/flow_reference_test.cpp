@@ -12,7 +12,7 @@
 #include "analyzer/flow/pair_builder.h"
 #include "analyzer/metrics/image_error.h"
 
-using namespace framelint;
+using namespace clipwarden;
 
 namespace {
 

@@ -10,11 +10,11 @@
 #include <fstream>
 #include <optional>
 
-#include "framelint/analysis.h"
-#include "framelint/html_report.h"
+#include "clipwarden/analysis.h"
+#include "clipwarden/html_report.h"
 #include "support/clips.h"
 
-using namespace framelint;
+using namespace clipwarden;
 
 namespace {
 
@@ -112,7 +112,7 @@ void expect_ten_second_page_well_under_five_megabytes(const std::string& clip) {
 }  // namespace
 
 TEST(HtmlAssetsFootage, PanelsMatchTheAnalysisAndThePageStaysSmall) {
-  FRAMELINT_SKIP_WITHOUT_DATA(clip, "Megamind.avi");
+  CLIPWARDEN_SKIP_WITHOUT_DATA(clip, "Megamind.avi");
   expect_panels_show_what_the_analysis_measured(clip);
   expect_ten_second_page_well_under_five_megabytes(clip);
 }

@@ -11,13 +11,13 @@
 #include <opencv2/imgcodecs.hpp>
 
 #include "analyzer/metrics/image_error.h"
-#include "framelint/inspect.h"
+#include "clipwarden/inspect.h"
 #include "support/clips.h"
 
-using namespace framelint;
+using namespace clipwarden;
 
 TEST(InspectFootage, VtestFrameHasEveryPanelAtTheWorkingSize) {
-  FRAMELINT_SKIP_WITHOUT_DATA(clip, "vtest.avi");
+  CLIPWARDEN_SKIP_WITHOUT_DATA(clip, "vtest.avi");
   AnalysisSettings settings;  // working long side 512
   auto panels = inspect_frame(clip, 120, settings);
   ASSERT_TRUE(panels.ok()) << panels.error().message();
@@ -73,7 +73,7 @@ TEST(InspectFootage, VtestFrameHasEveryPanelAtTheWorkingSize) {
 }
 
 TEST(InspectFootage, OutOfRangeFrameSaysHowManyFramesThereAre) {
-  FRAMELINT_SKIP_WITHOUT_DATA(clip, "tree.avi");  // 68 frames
+  CLIPWARDEN_SKIP_WITHOUT_DATA(clip, "tree.avi");  // 68 frames
   auto panels = inspect_frame(clip, 68, AnalysisSettings{});
   ASSERT_FALSE(panels.ok());
   EXPECT_EQ(panels.error().kind, ErrorKind::usage);

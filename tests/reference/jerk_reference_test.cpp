@@ -8,12 +8,12 @@
 #include <opencv2/imgcodecs.hpp>
 
 #include "analyzer/segments/segmenter.h"
-#include "framelint/analysis.h"
+#include "clipwarden/analysis.h"
 #include "support/synthetic_source.h"
 #include "support/detectors_metrics.h"
 
-using namespace framelint;
-using namespace framelint::testing;
+using namespace clipwarden;
+using namespace clipwarden::testing;
 
 namespace {
 

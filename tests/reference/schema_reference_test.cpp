@@ -8,11 +8,11 @@
 #include <fstream>
 
 #include "analyzer/core/assets.h"
-#include "framelint/report_io.h"
+#include "clipwarden/report_io.h"
 #include "report/json/schema_check.h"
 #include "support/report_fixtures.h"
 
-using namespace framelint;
+using namespace clipwarden;
 using nlohmann::json;
 
 namespace {
@@ -24,7 +24,7 @@ int python_verdict(const json& doc, const std::string& dir) {
   const std::string doc_path = dir + "/doc.json";
   const std::string schema_path = dir + "/schema.json";
   std::ofstream(doc_path) << doc.dump();
-  std::ofstream(schema_path) << asset("framelint.report-1.schema.json");
+  std::ofstream(schema_path) << asset("clipwarden.report-1.schema.json");
   const std::string cmd = "/usr/bin/python3 -c \"import json,sys,jsonschema; "
                           "s=json.load(open(sys.argv[1])); d=json.load(open(sys.argv[2])); "
                           "sys.exit(0 if jsonschema.Draft7Validator(s).is_valid(d) else 1)\" " +
@@ -35,7 +35,7 @@ int python_verdict(const json& doc, const std::string& dir) {
 
 TEST(SchemaReference, AgreesWithPythonJsonschema) {
   if (!python_jsonschema_available()) GTEST_SKIP() << "python3-jsonschema not installed (/usr/bin/python3)";
-  const auto dir = std::filesystem::temp_directory_path() / ("framelint-schema-" + std::to_string(::getpid()));
+  const auto dir = std::filesystem::temp_directory_path() / ("clipwarden-schema-" + std::to_string(::getpid()));
   std::filesystem::create_directories(dir);
   const json good = report_to_json(fixtures::small_report());
   std::vector<json> docs = {good};
@@ -53,7 +53,7 @@ TEST(SchemaReference, AgreesWithPythonJsonschema) {
   mutate([](json& d) { d["frames"][1]["new_metric"] = nullptr; });  // allowed
   mutate([](json& d) { d["summary"]["drift"] = {{"p95", nullptr}}; });  // allowed
   mutate([](json& d) { d["summary"]["stream"]["vfr"] = 1; });
-  const json schema = json::parse(asset("framelint.report-1.schema.json"));
+  const json schema = json::parse(asset("clipwarden.report-1.schema.json"));
   for (size_t i = 0; i < docs.size(); ++i) {
     const bool ours = check_against_schema(docs[i], schema, "doc").ok();
     EXPECT_EQ(ours ? 1 : 0, python_verdict(docs[i], dir.string())) << "document " << i;

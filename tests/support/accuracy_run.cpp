@@ -4,9 +4,9 @@
 #include <chrono>
 #include <filesystem>
 
-#include "framelint/report_io.h"
+#include "clipwarden/report_io.h"
 
-namespace framelint::accuracy {
+namespace clipwarden::accuracy {
 
 Expected<EvalRun> run_evaluation(const EvalOptions& options) {
   const auto started = std::chrono::steady_clock::now();
@@ -56,4 +56,4 @@ Expected<EvalRun> run_evaluation(const EvalOptions& options) {
   return run;
 }
 
-}  // namespace framelint::accuracy
+}  // namespace clipwarden::accuracy

@@ -7,11 +7,11 @@
 #include <string>
 #include <vector>
 
-#include "framelint/analysis.h"
+#include "clipwarden/analysis.h"
 #include "support/accuracy_score.h"
 #include "support/accuracy_set.h"
 
-namespace framelint::accuracy {
+namespace clipwarden::accuracy {
 
 struct EvalOptions {
   SetOptions set;  // work folder, size, frames, base clips
@@ -35,4 +35,4 @@ struct EvalRun {
 
 Expected<EvalRun> run_evaluation(const EvalOptions& options);
 
-}  // namespace framelint::accuracy
+}  // namespace clipwarden::accuracy

@@ -7,7 +7,7 @@
 
 #include "analyzer/segments/segmenter.h"
 
-namespace framelint::accuracy {
+namespace clipwarden::accuracy {
 using inject::DefectClass;
 using inject::StrengthLevel;
 
@@ -322,4 +322,4 @@ std::string Scoreboard::markdown() const {
   return md;
 }
 
-}  // namespace framelint::accuracy
+}  // namespace clipwarden::accuracy

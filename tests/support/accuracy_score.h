@@ -13,10 +13,10 @@
 #include <nlohmann/json.hpp>
 
 #include "analyzer/inject/defect_spec.h"
-#include "framelint/policy.h"
-#include "framelint/report.h"
+#include "clipwarden/policy.h"
+#include "clipwarden/report.h"
 
-namespace framelint::accuracy {
+namespace clipwarden::accuracy {
 
 // The metrics whose segments should catch a class (DESIGN.md's metric list):
 // flicker -> flicker, local_flicker -> flicker_local, boiling -> boiling, colour/shape drift and vanish -> drift, freeze ->
@@ -110,4 +110,4 @@ struct Scoreboard {
 Scoreboard score_all(const std::vector<AnalyzedCase>& cases, const std::vector<AnalyzedClean>& clean,
                      const Policy& policy);
 
-}  // namespace framelint::accuracy
+}  // namespace clipwarden::accuracy

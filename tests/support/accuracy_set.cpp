@@ -6,12 +6,12 @@
 #include <filesystem>
 #include <fstream>
 
-#include "framelint/clip_source.h"
-#include "framelint/clip_writer.h"
-#include "framelint/inject.h"
+#include "clipwarden/clip_source.h"
+#include "clipwarden/clip_writer.h"
+#include "clipwarden/inject.h"
 #include "support/clips.h"
 
-namespace framelint::accuracy {
+namespace clipwarden::accuracy {
 namespace fs = std::filesystem;
 using inject::DefectClass;
 using inject::StrengthLevel;
@@ -245,4 +245,4 @@ Expected<nlohmann::json> inject_case(const PlannedCase& c) {
   return inject_defects(c.base->path, options);
 }
 
-}  // namespace framelint::accuracy
+}  // namespace clipwarden::accuracy

@@ -12,9 +12,9 @@
 #include <nlohmann/json.hpp>
 
 #include "analyzer/inject/defect_spec.h"
-#include "framelint/error.h"
+#include "clipwarden/error.h"
 
-namespace framelint::accuracy {
+namespace clipwarden::accuracy {
 
 // Where a base clip comes from.
 struct BaseSource {
@@ -79,4 +79,4 @@ std::vector<PlannedCase> plan_cases(const std::vector<BaseClip>& bases,
 // Injects one planned case (lossless FFV1); returns the truth document.
 Expected<nlohmann::json> inject_case(const PlannedCase& c);
 
-}  // namespace framelint::accuracy
+}  // namespace clipwarden::accuracy

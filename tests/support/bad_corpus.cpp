@@ -7,7 +7,7 @@
 #include "support/gate_files.h"
 #include "support/robust_run.h"
 
-namespace framelint::test {
+namespace clipwarden::test {
 namespace fs = std::filesystem;
 using nlohmann::json;
 
@@ -270,4 +270,4 @@ BadCorpus make_bad_corpus(const fs::path& folder) {
   return m.take();
 }
 
-}  // namespace framelint::test
+}  // namespace clipwarden::test

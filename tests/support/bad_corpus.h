@@ -10,7 +10,7 @@
 
 #include <nlohmann/json.hpp>
 
-namespace framelint::test {
+namespace clipwarden::test {
 
 enum class Expect {
   report,           // a well-formed clip: a report is required
@@ -39,4 +39,4 @@ struct BadCorpus {
 // Makes every case under `folder`. Needs ffmpeg on PATH.
 BadCorpus make_bad_corpus(const std::filesystem::path& folder);
 
-}  // namespace framelint::test
+}  // namespace clipwarden::test

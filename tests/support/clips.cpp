@@ -14,7 +14,7 @@
 
 extern char** environ;
 
-namespace framelint::test {
+namespace clipwarden::test {
 namespace {
 
 std::string slurp(const std::filesystem::path& p) {
@@ -29,7 +29,7 @@ std::filesystem::path fresh_temp_path() {
   std::random_device seed;
   const auto base = std::filesystem::temp_directory_path();
   for (;;) {
-    auto candidate = base / ("framelint-test-" + std::to_string(::getpid()) + "-" +
+    auto candidate = base / ("clipwarden-test-" + std::to_string(::getpid()) + "-" +
                              std::to_string(counter++) + "-" + std::to_string(seed() % 100000));
     std::error_code ec;
     if (std::filesystem::create_directory(candidate, ec)) return candidate;
@@ -41,7 +41,7 @@ std::filesystem::path fresh_temp_path() {
 TempDir::TempDir() : path_(fresh_temp_path()) {}
 
 TempDir::~TempDir() {
-  const char* keep = std::getenv("FRAMELINT_KEEP_TEMP");
+  const char* keep = std::getenv("CLIPWARDEN_KEEP_TEMP");
   if (keep && std::string(keep) == "1") return;
   std::error_code ec;
   std::filesystem::remove_all(path_, ec);
@@ -152,4 +152,4 @@ std::optional<std::string> opencv_data(const std::string& name) {
   return std::nullopt;
 }
 
-}  // namespace framelint::test
+}  // namespace clipwarden::test

@@ -3,8 +3,8 @@
 // clips from FFmpeg's lavfi test sources, reading FFmpeg's own per-frame
 // answers, and finding the opencv-doc sample footage.
 //
-//   framelint::test::TempDir dir;
-//   FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+//   clipwarden::test::TempDir dir;
+//   CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
 //   std::string clip = dir.file("a.mp4");
 //   ASSERT_TRUE(make_lavfi_clip(clip, "testsrc2=size=160x120:rate=24:duration=2",
 //                               {"-c:v", "libx264", "-pix_fmt", "yuv420p"}).empty());
@@ -18,10 +18,10 @@
 
 #include <gtest/gtest.h>
 
-namespace framelint::test {
+namespace clipwarden::test {
 
 // A new empty folder under the system temp dir, deleted with its contents
-// when the object goes out of scope. Set FRAMELINT_KEEP_TEMP=1 to keep it.
+// when the object goes out of scope. Set CLIPWARDEN_KEEP_TEMP=1 to keep it.
 class TempDir {
  public:
   TempDir();
@@ -49,9 +49,9 @@ CommandResult run_command(const std::vector<std::string>& argv);
 bool have_tool(const std::string& name);
 
 // Skips the current test with a clear message when a tool is missing.
-#define FRAMELINT_SKIP_WITHOUT_TOOL(name)                                                   \
+#define CLIPWARDEN_SKIP_WITHOUT_TOOL(name)                                                   \
   do {                                                                                      \
-    if (!::framelint::test::have_tool(name)) GTEST_SKIP() << (name) << " is not installed"; \
+    if (!::clipwarden::test::have_tool(name)) GTEST_SKIP() << (name) << " is not installed"; \
   } while (0)
 
 // Writes `out` with ffmpeg from one lavfi source (e.g.
@@ -86,12 +86,12 @@ std::vector<double> ffmpeg_frame_metadata(const std::string& clip, const std::st
 
 // Path of a file in opencv-doc's sample data
 // (/usr/share/doc/opencv-doc/examples/data/NAME), or nothing when it is not
-// installed. Use with FRAMELINT_SKIP_WITHOUT_DATA.
+// installed. Use with CLIPWARDEN_SKIP_WITHOUT_DATA.
 std::optional<std::string> opencv_data(const std::string& name);
 
-#define FRAMELINT_SKIP_WITHOUT_DATA(var, name)                                             \
-  const std::optional<std::string> var##_found = ::framelint::test::opencv_data(name);     \
+#define CLIPWARDEN_SKIP_WITHOUT_DATA(var, name)                                             \
+  const std::optional<std::string> var##_found = ::clipwarden::test::opencv_data(name);     \
   if (!var##_found) GTEST_SKIP() << "opencv-doc sample " << (name) << " is not installed"; \
   const std::string var = *var##_found
 
-}  // namespace framelint::test
+}  // namespace clipwarden::test

@@ -6,11 +6,11 @@
 #include <fstream>
 #include <sstream>
 
-namespace framelint::test {
+namespace clipwarden::test {
 
 int run_compare(const std::string& arguments) {
   const std::string cmd =
-      std::string(FRAMELINT_BINARY) + " compare " + arguments + " >/dev/null 2>&1";
+      std::string(CLIPWARDEN_BINARY) + " compare " + arguments + " >/dev/null 2>&1";
   const int status = std::system(cmd.c_str());
   return WIFEXITED(status) ? WEXITSTATUS(status) : -1;
 }
@@ -37,4 +37,4 @@ const nlohmann::json* find_compared(const nlohmann::json& compare, const std::st
   return nullptr;
 }
 
-}  // namespace framelint::test
+}  // namespace clipwarden::test

@@ -1,13 +1,13 @@
-// Running the built `framelint compare` from a test and reading its output.
+// Running the built `clipwarden compare` from a test and reading its output.
 #pragma once
 
 #include <string>
 
 #include <nlohmann/json.hpp>
 
-namespace framelint::test {
+namespace clipwarden::test {
 
-// Runs `framelint compare ARGUMENTS` (output discarded); the exit status.
+// Runs `clipwarden compare ARGUMENTS` (output discarded); the exit status.
 int run_compare(const std::string& arguments);
 // 'text' quoted for the shell (the test paths hold no single quote).
 std::string shell_quoted(const std::string& text);
@@ -17,4 +17,4 @@ std::string read_text_file(const std::string& path);
 const nlohmann::json* find_compared(const nlohmann::json& compare, const std::string& metric,
                                     const std::string& statistic);
 
-}  // namespace framelint::test
+}  // namespace clipwarden::test

@@ -8,7 +8,7 @@
 #include <filesystem>
 #include <fstream>
 
-namespace framelint::test {
+namespace clipwarden::test {
 
 namespace {
 constexpr const char* kPython = "/usr/bin/python3";
@@ -24,7 +24,7 @@ std::string read_pipe(FILE* pipe) {
 
 TempFolder::TempFolder(const std::string& label) {
   std::string pattern =
-      (std::filesystem::temp_directory_path() / ("framelint-" + label + "-XXXXXX")).string();
+      (std::filesystem::temp_directory_path() / ("clipwarden-" + label + "-XXXXXX")).string();
   if (::mkdtemp(pattern.data()) == nullptr) std::abort();
   path_ = pattern;
 }
@@ -72,4 +72,4 @@ nlohmann::json run_python_json(const std::string& script, const nlohmann::json& 
   return parsed;
 }
 
-}  // namespace framelint::test
+}  // namespace clipwarden::test

@@ -8,7 +8,7 @@
 
 #include <nlohmann/json.hpp>
 
-namespace framelint::test {
+namespace clipwarden::test {
 
 // Empty when /usr/bin/python3 and scipy are usable; otherwise the reason, for
 // GTEST_SKIP.
@@ -35,4 +35,4 @@ class TempFolder {
   std::string path_;
 };
 
-}  // namespace framelint::test
+}  // namespace clipwarden::test

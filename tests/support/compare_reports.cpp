@@ -4,10 +4,10 @@
 #include <cstdio>
 #include <cstdlib>
 
-#include "framelint/report_io.h"
-#include "framelint/version.h"
+#include "clipwarden/report_io.h"
+#include "clipwarden/version.h"
 
-namespace framelint::test {
+namespace clipwarden::test {
 namespace {
 
 // Linear interpolation between order statistics (Hyndman & Fan type 7).
@@ -100,7 +100,7 @@ SyntheticClip scenario_clip(std::mt19937_64& rng, const PromptLevels& levels,
 }
 
 void write_synthetic_report(const SyntheticClip& clip, const std::string& path) {
-  // The invented reports must still be valid framelint.report/1 documents.
+  // The invented reports must still be valid clipwarden.report/1 documents.
   const Report report = synthetic_report(clip);
   const auto valid = validate_report_json(report_to_json(report), path);
   if (!valid) {
@@ -110,4 +110,4 @@ void write_synthetic_report(const SyntheticClip& clip, const std::string& path) 
   if (!write_json_report(report, path)) std::abort();
 }
 
-}  // namespace framelint::test
+}  // namespace clipwarden::test

@@ -1,6 +1,6 @@
 // Synthetic per-clip reports for the compare tests. The numbers are invented
 // (drawn with a fixed seed by the tests) to exercise the plumbing of
-// `framelint compare`; they are not measurements of any clip.
+// `clipwarden compare`; they are not measurements of any clip.
 #pragma once
 
 #include <map>
@@ -8,9 +8,9 @@
 #include <string>
 #include <vector>
 
-#include "framelint/report.h"
+#include "clipwarden/report.h"
 
-namespace framelint::test {
+namespace clipwarden::test {
 
 struct SyntheticClip {
   std::string clip_path;                              // e.g. "clips/p03_s1.mp4"
@@ -38,4 +38,4 @@ std::vector<PromptLevels> draw_prompt_levels(std::mt19937_64& rng, int count);
 SyntheticClip scenario_clip(std::mt19937_64& rng, const PromptLevels& levels,
                             const std::string& clip_path, bool inject_flicker);
 
-}  // namespace framelint::test
+}  // namespace clipwarden::test

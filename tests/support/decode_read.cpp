@@ -1,6 +1,6 @@
 #include "support/decode_read.h"
 
-namespace framelint::test {
+namespace clipwarden::test {
 
 ReadClip read_clip(const std::string& path, const SourceOptions& options,
                    const std::function<void(const DecodedFrame&)>& on_frame) {
@@ -26,4 +26,4 @@ ReadClip read_clip(const std::string& path, const SourceOptions& options,
   return result;
 }
 
-}  // namespace framelint::test
+}  // namespace clipwarden::test

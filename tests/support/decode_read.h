@@ -6,9 +6,9 @@
 #include <string>
 #include <vector>
 
-#include "framelint/clip_source.h"
+#include "clipwarden/clip_source.h"
 
-namespace framelint::test {
+namespace clipwarden::test {
 
 struct ReadClip {
   std::optional<Error> error;   // from open() or from a read()
@@ -21,4 +21,4 @@ struct ReadClip {
 ReadClip read_clip(const std::string& path, const SourceOptions& options = {},
                    const std::function<void(const DecodedFrame&)>& on_frame = {});
 
-}  // namespace framelint::test
+}  // namespace clipwarden::test

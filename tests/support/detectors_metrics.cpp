@@ -4,7 +4,7 @@
 
 #include "analyzer/flow/pair_builder.h"
 
-namespace framelint::testing {
+namespace clipwarden::testing {
 
 std::unique_ptr<Metric> registered_metric(const std::string& column) {
   for (auto& m : make_metrics(AnalysisSettings{})) {
@@ -57,4 +57,4 @@ Report run_metric(Metric& metric, const std::vector<FramePlanes>& frames, const 
   return report;
 }
 
-}  // namespace framelint::testing
+}  // namespace clipwarden::testing

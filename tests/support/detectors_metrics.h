@@ -9,7 +9,7 @@
 
 #include "analyzer/metrics/metric.h"
 
-namespace framelint::testing {
+namespace clipwarden::testing {
 
 // The registered metric that writes `column` (from make_metrics), or null.
 std::unique_ptr<Metric> registered_metric(const std::string& column);
@@ -30,4 +30,4 @@ Report run_metric(Metric& metric, const std::vector<FramePlanes>& frames,
                   const PairFiller& fill = real_pairs(),
                   const std::function<void(Report&)>& before_finish = {});
 
-}  // namespace framelint::testing
+}  // namespace clipwarden::testing

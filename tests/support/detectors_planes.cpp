@@ -3,7 +3,7 @@
 #include <array>
 #include <cmath>
 
-namespace framelint::testing {
+namespace clipwarden::testing {
 
 double wcag_linear(int code8, double threshold) {
   const double c = code8 / 255.0;
@@ -33,4 +33,4 @@ LinearPlanes linear_planes(const cv::Mat& bgr8, double threshold) {
   return out;
 }
 
-}  // namespace framelint::testing
+}  // namespace clipwarden::testing

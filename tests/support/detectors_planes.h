@@ -5,7 +5,7 @@
 
 #include <opencv2/core.hpp>
 
-namespace framelint::testing {
+namespace clipwarden::testing {
 
 // WCAG 2.x "relative luminance" definition: an 8-bit sRGB code linearised
 // with the given threshold on the encoded value (WCAG quotes 0.03928,
@@ -24,4 +24,4 @@ struct LinearPlanes {
 // Per-pixel linear planes of an 8-bit BGR image.
 LinearPlanes linear_planes(const cv::Mat& bgr8, double threshold = 0.04045);
 
-}  // namespace framelint::testing
+}  // namespace clipwarden::testing

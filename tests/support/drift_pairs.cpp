@@ -7,11 +7,11 @@
 #include "analyzer/flow/pair_builder.h"
 #include "analyzer/metrics/metric.h"
 
-namespace framelint {
+namespace clipwarden {
 std::unique_ptr<Metric> make_drift_metric(const AnalysisSettings& settings);
 }
 
-namespace framelint::test {
+namespace clipwarden::test {
 
 Report run_drift_on_frames(const std::vector<cv::Mat>& frames, double fps,
                            const AnalysisSettings& settings) {
@@ -75,4 +75,4 @@ double object_value(const TrackedObject& object, const std::string& key, int64_t
   return value;
 }
 
-}  // namespace framelint::test
+}  // namespace clipwarden::test

@@ -9,10 +9,10 @@
 
 #include <opencv2/core.hpp>
 
-#include "framelint/analysis.h"
-#include "framelint/report.h"
+#include "clipwarden/analysis.h"
+#include "clipwarden/report.h"
 
-namespace framelint::test {
+namespace clipwarden::test {
 
 // measure_first, then per pair measure_pair and observe_in_order, then
 // finish, like analyze_source; frame i is at i / fps. The report holds the
@@ -30,4 +30,4 @@ const TrackedObject* object_at(const Report& report, const cv::Rect2f& where, in
 // Value of an object's sampled series `key` at the sample nearest `frame`.
 double object_value(const TrackedObject& object, const std::string& key, int64_t frame);
 
-}  // namespace framelint::test
+}  // namespace clipwarden::test

@@ -9,7 +9,7 @@
 #include "analyzer/color/color_space.h"
 #include "support/drift_pairs.h"
 
-namespace framelint::test {
+namespace clipwarden::test {
 
 double ramp(int frame, int start, int end) {
   if (frame <= start) return 0;
@@ -91,4 +91,4 @@ std::vector<cv::Mat> render_scene(const DriftScene& scene) {
   return frames;
 }
 
-}  // namespace framelint::test
+}  // namespace clipwarden::test

@@ -9,7 +9,7 @@
 
 #include <opencv2/core.hpp>
 
-namespace framelint::test {
+namespace clipwarden::test {
 
 struct PatchState {
   double hue_deg = 0;  // rotation of CIELAB hue of the patch's pixels
@@ -45,4 +45,4 @@ cv::Mat load_sample_image(const std::string& name);
 // A ramp from 0 (before `start`) to 1 (at and after `end`).
 double ramp(int frame, int start, int end);
 
-}  // namespace framelint::test
+}  // namespace clipwarden::test

@@ -13,7 +13,7 @@
 
 extern char** environ;
 
-namespace framelint::test {
+namespace clipwarden::test {
 namespace fs = std::filesystem;
 
 void write_text(const fs::path& path, const std::string& text) {
@@ -72,4 +72,4 @@ std::string make_varied_clips(const fs::path& dir, int n, const std::string& ste
   return "";
 }
 
-}  // namespace framelint::test
+}  // namespace clipwarden::test

@@ -1,12 +1,12 @@
 // What the gate's tests need beyond support/clips.h: small text files and a
-// framelint child started in the background (to be killed mid-batch).
+// clipwarden child started in the background (to be killed mid-batch).
 #pragma once
 
 #include <filesystem>
 #include <string>
 #include <vector>
 
-namespace framelint::test {
+namespace clipwarden::test {
 
 // Writes `text` to `path`, creating parent folders.
 void write_text(const std::filesystem::path& path, const std::string& text);
@@ -28,4 +28,4 @@ int wait_program(int pid);
 std::string make_varied_clips(const std::filesystem::path& dir, int n,
                               const std::string& stem = "clip");
 
-}  // namespace framelint::test
+}  // namespace clipwarden::test

@@ -2,7 +2,7 @@
 
 #include "analyzer/summary/summary.h"
 
-namespace framelint::fixtures {
+namespace clipwarden::fixtures {
 
 Report gate_report(int frames, double fps, const std::string& path) {
   Report r;
@@ -36,4 +36,4 @@ void add_segment(Report& r, const std::string& metric, int first, int last, doub
       {metric, first, last, r.frame_times_s[first], r.frame_times_s[last], peak, first, severity});
 }
 
-}  // namespace framelint::fixtures
+}  // namespace clipwarden::fixtures

@@ -5,9 +5,9 @@
 #include <string>
 #include <vector>
 
-#include "framelint/report.h"
+#include "clipwarden/report.h"
 
-namespace framelint::fixtures {
+namespace clipwarden::fixtures {
 
 // A calm clip: `frames` frames at `fps`, no series, coherence 100.
 Report gate_report(int frames, double fps, const std::string& path = "clips/calm.mp4");
@@ -21,4 +21,4 @@ void add_series(Report& r, const std::string& metric, double base, double value 
 void add_segment(Report& r, const std::string& metric, int first, int last, double peak,
                  Severity severity);
 
-}  // namespace framelint::fixtures
+}  // namespace clipwarden::fixtures

@@ -7,7 +7,7 @@
 #include "analyzer/inspect/panels.h"
 #include "report/html/object_boxes.h"
 
-namespace framelint::fixtures {
+namespace clipwarden::fixtures {
 namespace {
 
 cv::Point2d ball_centre(const SyntheticScene& s, int64_t frame) {
@@ -242,4 +242,4 @@ HtmlAssets synthetic_assets(const Report& report, const SyntheticScene& scene,
   return assets;
 }
 
-}  // namespace framelint::fixtures
+}  // namespace clipwarden::fixtures

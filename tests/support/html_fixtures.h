@@ -8,10 +8,10 @@
 #include <string>
 
 #include "analyzer/metrics/frame_pair.h"
-#include "framelint/html_report.h"
-#include "framelint/report.h"
+#include "clipwarden/html_report.h"
+#include "clipwarden/report.h"
 
-namespace framelint::fixtures {
+namespace clipwarden::fixtures {
 
 inline constexpr const char* kHostileClipName = "<img src=x onerror=alert(1)>.mp4";
 inline constexpr const char* kHostilePrompt =
@@ -44,4 +44,4 @@ Report synthetic_report(const SyntheticScene& scene, const std::string& clip_pat
 HtmlAssets synthetic_assets(const Report& report, const SyntheticScene& scene,
                             const HtmlOptions& options);
 
-}  // namespace framelint::fixtures
+}  // namespace clipwarden::fixtures

@@ -7,7 +7,7 @@
 #include "analyzer/color/relative_luminance.h"
 #include "support/decode_read.h"
 
-namespace framelint::test {
+namespace clipwarden::test {
 
 cv::Mat synthetic_frame(cv::Size size, int index, double pan_px_per_frame) {
   cv::Mat frame(size, CV_8UC3);
@@ -63,4 +63,4 @@ bool same_pixels(const cv::Mat& a, const cv::Mat& b) {
   return cv::countNonZero(diff.reshape(1)) == 0;
 }
 
-}  // namespace framelint::test
+}  // namespace clipwarden::test

@@ -8,10 +8,10 @@
 
 #include <opencv2/core.hpp>
 
-#include "framelint/clip_source.h"
-#include "framelint/clip_writer.h"
+#include "clipwarden/clip_source.h"
+#include "clipwarden/clip_writer.h"
 
-namespace framelint::test {
+namespace clipwarden::test {
 
 // Frame `index` of a synthetic scene: a smooth colour gradient with a
 // checker texture that pans `pan_px_per_frame` to the right, and a bright
@@ -36,4 +36,4 @@ double mean_relative_luminance(const cv::Mat& bgr);
 // True when the two frames are equal pixel for pixel.
 bool same_pixels(const cv::Mat& a, const cv::Mat& b);
 
-}  // namespace framelint::test
+}  // namespace clipwarden::test

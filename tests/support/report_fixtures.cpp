@@ -1,6 +1,6 @@
 #include "support/report_fixtures.h"
 
-namespace framelint::fixtures {
+namespace clipwarden::fixtures {
 
 Report small_report() {
   Report r;
@@ -32,4 +32,4 @@ Report small_report() {
   return r;
 }
 
-}  // namespace framelint::fixtures
+}  // namespace clipwarden::fixtures

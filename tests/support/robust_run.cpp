@@ -11,7 +11,7 @@
 
 #include "support/gate_files.h"
 
-namespace framelint::test {
+namespace clipwarden::test {
 namespace fs = std::filesystem;
 
 std::string BoundedRun::outcome() const {
@@ -70,4 +70,4 @@ bool replace_first(std::string& bytes, const std::string& from, const std::strin
   return true;
 }
 
-}  // namespace framelint::test
+}  // namespace clipwarden::test

@@ -9,7 +9,7 @@
 #include <string>
 #include <vector>
 
-namespace framelint::test {
+namespace clipwarden::test {
 
 struct BoundedRun {
   int exit_code = -1;      // the exit status when the child exited normally, else -1
@@ -37,4 +37,4 @@ void flip_random_bits(std::string& bytes, size_t first, size_t last, int count, 
 // false when `from` does not occur.
 bool replace_first(std::string& bytes, const std::string& from, const std::string& to);
 
-}  // namespace framelint::test
+}  // namespace clipwarden::test

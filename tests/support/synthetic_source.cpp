@@ -2,7 +2,7 @@
 
 #include <opencv2/imgproc.hpp>
 
-namespace framelint::fixtures {
+namespace clipwarden::fixtures {
 
 SyntheticSource::SyntheticSource(int64_t frames, double fps, FrameMaker make) : fps_(fps), make_(std::move(make)) {
   const cv::Mat first = make_(0);
@@ -49,4 +49,4 @@ cv::Mat view(const cv::Mat& texture, double x, double y, cv::Size size) {
   return out;
 }
 
-}  // namespace framelint::fixtures
+}  // namespace clipwarden::fixtures

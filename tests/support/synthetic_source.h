@@ -5,9 +5,9 @@
 
 #include <functional>
 
-#include "framelint/clip_source.h"
+#include "clipwarden/clip_source.h"
 
-namespace framelint::fixtures {
+namespace clipwarden::fixtures {
 
 using FrameMaker = std::function<cv::Mat(int64_t index)>;  // CV_8UC3
 
@@ -31,4 +31,4 @@ cv::Mat smooth_texture(cv::Size size, uint64_t seed);
 // The window of `texture` at (x, y) of the given size, with sub-pixel shift.
 cv::Mat view(const cv::Mat& texture, double x, double y, cv::Size size);
 
-}  // namespace framelint::fixtures
+}  // namespace clipwarden::fixtures

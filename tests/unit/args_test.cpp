@@ -5,7 +5,7 @@
 #include "analyzer/cli/args.h"
 #include "analyzer/cli/output_names.h"
 
-using namespace framelint::cli;
+using namespace clipwarden::cli;
 
 TEST(Args, ValuesFlagsAndPositionals) {
   std::vector<OptionSpec> specs = {{"out", true, ""}, {"quiet", false, ""}, {"defect", true, "", "", true}};

@@ -12,7 +12,7 @@
 
 #include "analyzer/metrics/block_pulses.h"
 
-using namespace framelint;
+using namespace clipwarden;
 
 namespace {
 

@@ -14,8 +14,8 @@
 
 namespace {
 
-using framelint::color::ciede2000;
-using framelint::color::Lab;
+using clipwarden::color::ciede2000;
+using clipwarden::color::Lab;
 
 struct TestPair {
   int id = 0;
@@ -24,7 +24,7 @@ struct TestPair {
 };
 
 std::vector<TestPair> read_sharma_table() {
-  std::ifstream in(std::string(FRAMELINT_SOURCE_DIR) + "/tests/data/color/ciede2000_sharma2005.tsv");
+  std::ifstream in(std::string(CLIPWARDEN_SOURCE_DIR) + "/tests/data/color/ciede2000_sharma2005.tsv");
   std::vector<TestPair> pairs;
   std::string line;
   while (std::getline(in, line)) {

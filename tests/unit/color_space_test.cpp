@@ -10,7 +10,7 @@
 
 namespace {
 
-using namespace framelint::color;
+using namespace clipwarden::color;
 
 TEST(ColorSpace, SrgbTransferFunctionKnownValues) {
   // IEC 61966-2-1: the linear segment below 0.04045 has slope 1/12.92 and the

@@ -5,11 +5,11 @@
 
 #include <filesystem>
 
-#include "framelint/compare.h"
+#include "clipwarden/compare.h"
 #include "support/compare_python.h"
 #include "support/compare_reports.h"
 
-using namespace framelint;
+using namespace clipwarden;
 
 namespace {
 

@@ -1,4 +1,4 @@
-// The pieces of `framelint compare` that are our own contract (DESIGN.md's
+// The pieces of `clipwarden compare` that are our own contract (DESIGN.md's
 // compare.json fields, HTML escaping rules of the HTML 5 spec for text and
 // attribute values, RFC 3986 percent-encoding): escaping, the values read
 // from a report, and the page for edge cases.
@@ -7,10 +7,10 @@
 #include <cmath>
 
 #include "analyzer/compare/report_folder.h"
-#include "framelint/compare.h"
+#include "clipwarden/compare.h"
 #include "report/html/html_escape.h"
 
-using namespace framelint;
+using namespace clipwarden;
 
 TEST(HtmlEscape, TextAndAttributes) {
   EXPECT_EQ(html_escape("<img src=x onerror=alert(1)>"), "&lt;img src=x onerror=alert(1)&gt;");
@@ -58,7 +58,7 @@ TEST(ComparePage, EmptyComparisonStillRenders) {
   EXPECT_EQ(page.find("<a>"), std::string::npos);
   EXPECT_NE(page.find("</html>"), std::string::npos);
   const auto json = comparison_to_json(c);
-  EXPECT_EQ(json["schema"], "framelint.compare/1");
+  EXPECT_EQ(json["schema"], "clipwarden.compare/1");
   EXPECT_TRUE(json["metrics"].empty());
 }
 

@@ -8,7 +8,7 @@
 
 #include "analyzer/compare/paired_stats.h"
 
-namespace st = framelint::stats;
+namespace st = clipwarden::stats;
 
 namespace {
 // Darwin's Zea mays experiment as analysed in Fisher, "The Design of

@@ -9,11 +9,11 @@
 
 #include "analyzer/metrics/metric.h"
 
-namespace framelint {
+namespace clipwarden {
 std::unique_ptr<Metric> make_cut_metric(const AnalysisSettings&);
 }
 
-using namespace framelint;
+using namespace clipwarden;
 
 namespace {
 

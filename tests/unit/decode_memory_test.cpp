@@ -10,11 +10,11 @@
 
 #include "analyzer/decode/libav_util.h"
 #include "analyzer/decode/memory_source.h"
-#include "framelint/clip_source.h"
-#include "framelint/clip_writer.h"
+#include "clipwarden/clip_source.h"
+#include "clipwarden/clip_writer.h"
 #include "support/clips.h"
 
-using namespace framelint;
+using namespace clipwarden;
 
 namespace {
 

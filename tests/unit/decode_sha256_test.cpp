@@ -10,7 +10,7 @@
 
 #include "analyzer/decode/sha256.h"
 
-using framelint::decode::Sha256;
+using clipwarden::decode::Sha256;
 
 namespace {
 std::string digest(const std::string& message) {

@@ -14,7 +14,7 @@
 #include "analyzer/decode/image_sources.h"
 #include "analyzer/decode/truncation.h"
 
-using namespace framelint::decode;
+using namespace clipwarden::decode;
 
 TEST(WorkingSize, LongSideBecomesTheTargetAndAspectIsKept) {
   EXPECT_EQ(working_size(1920, 1080, 512), cv::Size(512, 288));

@@ -5,7 +5,7 @@
 
 #include "analyzer/decode/stream_timing.h"
 
-using framelint::decode::StreamTiming;
+using clipwarden::decode::StreamTiming;
 
 TEST(StreamTiming, ConstantRateIsNotVariable) {
   StreamTiming timing(1.0 / 24, 1.0 / 24);

@@ -12,7 +12,7 @@
 #include "analyzer/drift/reference_alignment.h"
 #include "analyzer/drift/similarity_fit.h"
 
-namespace framelint::drift {
+namespace clipwarden::drift {
 namespace {
 
 TEST(SimilarityFit, RecoversKnownTransformDespiteOutliers) {
@@ -72,4 +72,4 @@ TEST(ReferenceAlignment, PullsShiftedPointsBackOnRealTexture) {
 }
 
 }  // namespace
-}  // namespace framelint::drift
+}  // namespace clipwarden::drift

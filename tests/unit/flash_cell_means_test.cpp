@@ -10,8 +10,8 @@
 #include "analyzer/flash/cell_means.h"
 #include "analyzer/flash/flash_detector.h"
 
-using namespace framelint;
-using namespace framelint::flash;
+using namespace clipwarden;
+using namespace clipwarden::flash;
 
 namespace {
 

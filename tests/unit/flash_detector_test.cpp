@@ -14,10 +14,10 @@
 #include "analyzer/flash/flash_detector.h"
 #include "support/detectors_planes.h"
 
-using namespace framelint::flash;
-using framelint::testing::linear_planes;
-using framelint::testing::wcag_linear;
-using framelint::testing::wcag_relative_luminance;
+using namespace clipwarden::flash;
+using clipwarden::testing::linear_planes;
+using clipwarden::testing::wcag_linear;
+using clipwarden::testing::wcag_relative_luminance;
 
 namespace {
 

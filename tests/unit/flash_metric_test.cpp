@@ -8,8 +8,8 @@
 #include "analyzer/metrics/flash_metric.h"
 #include "support/detectors_metrics.h"
 
-using namespace framelint;
-using namespace framelint::testing;
+using namespace clipwarden;
+using namespace clipwarden::testing;
 
 namespace {
 

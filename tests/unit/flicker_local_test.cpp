@@ -11,8 +11,8 @@
 #include "analyzer/metrics/block_pulses.h"
 #include "support/detectors_metrics.h"
 
-using namespace framelint;
-using namespace framelint::testing;
+using namespace clipwarden;
+using namespace clipwarden::testing;
 
 TEST(BlockChanges, MedianPerBlockOverValidPixelsOnly) {
   cv::Mat cur(64, 64, CV_32F, cv::Scalar(0.30)), prev(64, 64, CV_32F, cv::Scalar(0.30));

@@ -11,7 +11,7 @@
 
 #include "analyzer/metrics/flicker_statistics.h"
 
-using namespace framelint;
+using namespace clipwarden;
 
 namespace {
 

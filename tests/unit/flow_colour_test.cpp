@@ -14,7 +14,7 @@
 
 #include "analyzer/inspect/flow_colour.h"
 
-using namespace framelint;
+using namespace clipwarden;
 
 namespace {
 ::testing::AssertionResult same(Rgb8 got, Rgb8 want) {

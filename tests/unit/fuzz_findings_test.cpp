@@ -6,14 +6,14 @@
 
 #include <string>
 
-#include "framelint/gate.h"
-#include "framelint/policy.h"
-#include "framelint/report_io.h"
+#include "clipwarden/gate.h"
+#include "clipwarden/policy.h"
+#include "clipwarden/report_io.h"
 #include "support/clips.h"
 #include "support/gate_files.h"
 #include "support/report_fixtures.h"
 
-using namespace framelint;
+using namespace clipwarden;
 using nlohmann::json;
 
 // report_from_json cast JSON numbers to int/int64_t unchecked: 1e300, -1e300,

@@ -4,13 +4,13 @@
 // the value, the threshold and the time range.
 #include <gtest/gtest.h>
 
-#include "framelint/policy.h"
+#include "clipwarden/policy.h"
 #include "support/gate_fixtures.h"
 
-using namespace framelint;
-using framelint::fixtures::add_segment;
-using framelint::fixtures::add_series;
-using framelint::fixtures::gate_report;
+using namespace clipwarden;
+using clipwarden::fixtures::add_segment;
+using clipwarden::fixtures::add_series;
+using clipwarden::fixtures::gate_report;
 
 namespace {
 

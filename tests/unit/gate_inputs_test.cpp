@@ -11,12 +11,12 @@
 #include <map>
 #include <set>
 
-#include "framelint/gate.h"
+#include "clipwarden/gate.h"
 #include "support/clips.h"
 #include "support/gate_files.h"
 
-using namespace framelint;
-using namespace framelint::test;
+using namespace clipwarden;
+using namespace clipwarden::test;
 namespace fs = std::filesystem;
 
 TEST(GateInputs, ManifestFieldsAndRelativePaths) {

@@ -6,9 +6,9 @@
 
 #include <cmath>
 
-#include "framelint/policy.h"
+#include "clipwarden/policy.h"
 
-using namespace framelint;
+using namespace clipwarden;
 
 namespace {
 
@@ -132,7 +132,7 @@ TEST(GatePolicy, WrongTypesAreNamed) {
   expect_names_key(R"({"rules": {"flash_hazard_rejects": "yes"}})", "rules.flash_hazard_rejects");
   expect_names_key(R"({"rules": {"dropped_frames_review": 0.5}})", "rules.dropped_frames_review");
   expect_names_key(R"({"name": 7})", "name");
-  expect_names_key(R"({"schema": "framelint.policy/9"})", "schema");
+  expect_names_key(R"({"schema": "clipwarden.policy/9"})", "schema");
   expect_names_key(R"({"metrics": []})", "metrics");
 }
 

@@ -11,15 +11,15 @@
 
 #include "analyzer/cli/command.h"
 #include "analyzer/cli/gate_output.h"
-#include "framelint/gate.h"
-#include "framelint/policy.h"
-#include "framelint/store.h"
+#include "clipwarden/gate.h"
+#include "clipwarden/policy.h"
+#include "clipwarden/store.h"
 #include "support/clips.h"
 #include "support/gate_files.h"
 #include "support/gate_fixtures.h"
 
-using namespace framelint;
-using namespace framelint::test;
+using namespace clipwarden;
+using namespace clipwarden::test;
 namespace fs = std::filesystem;
 
 namespace {
@@ -119,7 +119,7 @@ TEST(GateRun, QueueInInputOrderWithErrorsRecorded) {
   EXPECT_TRUE(queue[2]["report"].is_null());
   EXPECT_NE(queue[5]["error"].get<std::string>().find("gone.mp4"), std::string::npos);
   EXPECT_TRUE(fs::exists(dir.path() / "out" / "index.html"));
-  EXPECT_EQ(store_rows(dir.path() / "out" / "framelint.db"), 4u);  // errors are not stored
+  EXPECT_EQ(store_rows(dir.path() / "out" / "clipwarden.db"), 4u);  // errors are not stored
   EXPECT_EQ(cli::gate_exit_status(run->counts, Verdict::reject),
             cli::kExitInputError);  // 3 outranks 1
 }
@@ -136,7 +136,7 @@ TEST(GateRun, RerunTakesJudgedClipsFromTheStore) {
   ASSERT_TRUE(again.ok());
   EXPECT_EQ(fake.calls, 2);  // only the two broken clips are tried again
   EXPECT_EQ(again->counts.from_store, 4);
-  EXPECT_EQ(store_rows(dir.path() / "out" / "framelint.db"), 4u);
+  EXPECT_EQ(store_rows(dir.path() / "out" / "clipwarden.db"), 4u);
   for (const auto& line : queue_of(dir.path() / "out"))
     EXPECT_EQ(line["from_store"], line["verdict"] != "error") << line.dump();
 
@@ -148,7 +148,7 @@ TEST(GateRun, RerunTakesJudgedClipsFromTheStore) {
   EXPECT_EQ(fake.calls, 3);
   EXPECT_FALSE(third->results[1].from_store);
   EXPECT_TRUE(fs::exists(dir.path() / "out" / "clip_1.json"));
-  EXPECT_EQ(store_rows(dir.path() / "out" / "framelint.db"), 5u);
+  EXPECT_EQ(store_rows(dir.path() / "out" / "clipwarden.db"), 5u);
 
   // Another policy is another settings hash: everything is recomputed.
   fake.calls = 0;
@@ -173,7 +173,7 @@ TEST(GateRun, SharedStoreServesAnotherOutputFolder) {
   EXPECT_EQ(fake.calls, 3);
   for (int i = 0; i < 3; ++i)
     EXPECT_TRUE(fs::exists(dir.path() / "out2" / ("clip_" + std::to_string(i) + ".json")));
-  EXPECT_FALSE(fs::exists(dir.path() / "out2" / "framelint.db"));
+  EXPECT_FALSE(fs::exists(dir.path() / "out2" / "clipwarden.db"));
 }
 
 TEST(GateRun, ParallelJobsJudgeEveryClipOnce) {
@@ -192,7 +192,7 @@ TEST(GateRun, ParallelJobsJudgeEveryClipOnce) {
   std::set<std::string> ids;
   for (const auto& line : queue_of(dir.path() / "out")) ids.insert(line["id"].get<std::string>());
   EXPECT_EQ(ids.size(), 40u);
-  EXPECT_EQ(store_rows(dir.path() / "out" / "framelint.db"), 40u);
+  EXPECT_EQ(store_rows(dir.path() / "out" / "clipwarden.db"), 40u);
 }
 
 TEST(GateRun, UnionOfShardsEqualsOneRun) {
@@ -222,9 +222,9 @@ TEST(GateRun, UnionOfShardsEqualsOneRun) {
     if (!b["report"].is_null())
       EXPECT_TRUE(fs::exists(dir.path() / "merged" / b["report"].get<std::string>()));
   }
-  EXPECT_EQ(store_rows(dir.path() / "merged" / "framelint.db"),
-            store_rows(dir.path() / "single" / "framelint.db"));
-  auto store = ResultStore::open((dir.path() / "merged" / "framelint.db").string());
+  EXPECT_EQ(store_rows(dir.path() / "merged" / "clipwarden.db"),
+            store_rows(dir.path() / "single" / "clipwarden.db"));
+  auto store = ResultStore::open((dir.path() / "merged" / "clipwarden.db").string());
   ASSERT_TRUE(store.ok());
   const auto rows = (*store)->all();
   ASSERT_TRUE(rows.ok());
@@ -238,8 +238,8 @@ TEST(GateRun, UnionOfShardsEqualsOneRun) {
   ASSERT_TRUE(twice.ok());
   EXPECT_EQ(twice->results.size(), single.size());
   EXPECT_FALSE(twice->warnings.empty());
-  EXPECT_EQ(store_rows(dir.path() / "merged2" / "framelint.db"),
-            store_rows(dir.path() / "single" / "framelint.db"));
+  EXPECT_EQ(store_rows(dir.path() / "merged2" / "clipwarden.db"),
+            store_rows(dir.path() / "single" / "clipwarden.db"));
   // Merging into one of the inputs is refused.
   EXPECT_FALSE(merge_gate_outputs({shard_dirs[0]}, shard_dirs[0]).ok());
 }

@@ -11,14 +11,14 @@
 #include <memory>
 #include <thread>
 
-#include "framelint/gate.h"
-#include "framelint/store.h"
+#include "clipwarden/gate.h"
+#include "clipwarden/store.h"
 #include "support/clips.h"
 #include "support/gate_files.h"
 #include "support/gate_fixtures.h"
 
-using namespace framelint;
-using namespace framelint::test;
+using namespace clipwarden;
+using namespace clipwarden::test;
 namespace fs = std::filesystem;
 
 namespace {
@@ -83,7 +83,7 @@ TEST(GateStop, NoClipStartsAfterTheStopAndARerunFinishes) {
   EXPECT_EQ(run->abandoned, 0);
   EXPECT_EQ(run->not_started, 4);
   EXPECT_EQ(read_lines(dir.path() / "out" / "queue.jsonl").size(), 2u);
-  EXPECT_EQ(rows_in(dir.path() / "out" / "framelint.db"), 2u);
+  EXPECT_EQ(rows_in(dir.path() / "out" / "clipwarden.db"), 2u);
 
   script->stop = false;
   script->stop_on_call = 0;
@@ -93,7 +93,7 @@ TEST(GateStop, NoClipStartsAfterTheStopAndARerunFinishes) {
   EXPECT_EQ(rerun->counts.total, 6);
   EXPECT_EQ(rerun->counts.from_store, 2);
   EXPECT_EQ(read_lines(dir.path() / "out" / "queue.jsonl").size(), 6u);
-  EXPECT_EQ(rows_in(dir.path() / "out" / "framelint.db"), 6u);
+  EXPECT_EQ(rows_in(dir.path() / "out" / "clipwarden.db"), 6u);
 }
 
 TEST(GateStop, ClipStillInFlightAfterTheGraceTimeIsAbandoned) {
@@ -124,5 +124,5 @@ TEST(GateStop, ClipStillInFlightAfterTheGraceTimeIsAbandoned) {
   while (script->returned < 2) std::this_thread::sleep_for(std::chrono::milliseconds(20));
   std::this_thread::sleep_for(std::chrono::milliseconds(200));
   EXPECT_EQ(read_lines(dir.path() / "out" / "queue.jsonl").size(), 1u);
-  EXPECT_LE(rows_in(dir.path() / "out" / "framelint.db"), 2u);
+  EXPECT_LE(rows_in(dir.path() / "out" / "clipwarden.db"), 2u);
 }

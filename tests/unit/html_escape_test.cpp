@@ -7,7 +7,7 @@
 #include "report/html/csp.h"
 #include "report/html/html_escape.h"
 
-using namespace framelint;
+using namespace clipwarden;
 
 TEST(HtmlEscape, EscapesTheFiveSpecialCharacters) {
   EXPECT_EQ(html_escape("<img src=x onerror=alert(1)>.mp4"), "&lt;img src=x onerror=alert(1)&gt;.mp4");

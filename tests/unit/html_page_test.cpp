@@ -10,12 +10,12 @@
 #include <fstream>
 #include <regex>
 
-#include "framelint/html_report.h"
+#include "clipwarden/html_report.h"
 #include "report/html/csp.h"
 #include "report/html/object_boxes.h"
 #include "support/html_fixtures.h"
 
-using namespace framelint;
+using namespace clipwarden;
 
 namespace {
 
@@ -117,7 +117,7 @@ TEST_F(PageFixture, TenSecondPageStaysSmall) {
   // 10 s at 30 fps with five panel sets: well under the 5 MB budget.
   EXPECT_LT(html.size(), 1'500'000u) << html.size();
   // For a look by hand; in the temporary folder, never in the source tree.
-  std::ofstream(std::filesystem::temp_directory_path() / "framelint-html_page_fixture.html") << html;
+  std::ofstream(std::filesystem::temp_directory_path() / "clipwarden-html_page_fixture.html") << html;
 }
 
 TEST_F(PageFixture, DriftPanelShowsTheObjectsFirstAndCurrentLook) {
@@ -212,7 +212,7 @@ TEST(ObjectBoxes, ReadsTheDriftMetricsLayout) {
 TEST(WriteHtmlReport, UnreadableClipStillGetsAPageThatSaysWhy) {
   fixtures::SyntheticScene scene;
   const auto dir =
-      std::filesystem::temp_directory_path() / ("framelint-html-" + std::to_string(::getpid()));
+      std::filesystem::temp_directory_path() / ("clipwarden-html-" + std::to_string(::getpid()));
   std::filesystem::create_directories(dir);
   Report r = fixtures::synthetic_report(scene, (dir / "gone.mp4").string());
   const std::string page = (dir / "gone.html").string();

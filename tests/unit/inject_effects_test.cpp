@@ -12,10 +12,10 @@
 #include "analyzer/inject/frame_effects.h"
 #include "support/inject_clips.h"
 
-using namespace framelint;
-using namespace framelint::inject;
-using framelint::test::mean_relative_luminance;
-using framelint::test::synthetic_frame;
+using namespace clipwarden;
+using namespace clipwarden::inject;
+using clipwarden::test::mean_relative_luminance;
+using clipwarden::test::synthetic_frame;
 
 TEST(FrameEffects, LinearGainScalesMeanRelativeLuminanceByTheGain) {
   // Relative luminance is linear in linear-light RGB (IEC 61966-2-1 decoding,
@@ -80,7 +80,7 @@ TEST(FrameEffects, DisplaceMovesTheContent) {
   cv::Mat moved = clean.clone();
   displace(moved, {5, -3});
   // moved(x, y) = clean(x - 5, y + 3) away from the replicated border.
-  EXPECT_TRUE(framelint::test::same_pixels(moved(cv::Rect(5, 0, 59, 45)), clean(cv::Rect(0, 3, 59, 45))));
+  EXPECT_TRUE(clipwarden::test::same_pixels(moved(cv::Rect(5, 0, 59, 45)), clean(cv::Rect(0, 3, 59, 45))));
 }
 
 TEST(FrameEffects, FadeReplacesTheRegionWithItsSurroundings) {
@@ -97,7 +97,7 @@ TEST(FrameEffects, FadeReplacesTheRegionWithItsSurroundings) {
 // (tests/data/color/ciede2000_sharma2005.tsv), to the paper's 1e-4, both
 // argument orders.
 TEST(FrameEffects, Ciede2000MatchesSharma2005) {
-  std::ifstream in(std::string(FRAMELINT_SOURCE_DIR) + "/tests/data/color/ciede2000_sharma2005.tsv");
+  std::ifstream in(std::string(CLIPWARDEN_SOURCE_DIR) + "/tests/data/color/ciede2000_sharma2005.tsv");
   if (!in) GTEST_SKIP() << "tests/data/color/ciede2000_sharma2005.tsv is missing";
   std::string line;
   int pairs = 0;

@@ -11,12 +11,12 @@
 
 #include <opencv2/imgproc.hpp>
 
-#include "framelint/inject.h"
+#include "clipwarden/inject.h"
 #include "support/clips.h"
 #include "support/inject_clips.h"
 
-using namespace framelint;
-namespace ft = framelint::test;
+using namespace clipwarden;
+namespace ft = clipwarden::test;
 
 namespace {
 

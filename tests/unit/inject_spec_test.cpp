@@ -5,8 +5,8 @@
 
 #include "analyzer/inject/defect_spec.h"
 
-using namespace framelint;
-using namespace framelint::inject;
+using namespace clipwarden;
+using namespace clipwarden::inject;
 
 namespace {
 

@@ -9,8 +9,8 @@
 #include "analyzer/metrics/camera_path.h"
 #include "support/detectors_metrics.h"
 
-using namespace framelint;
-using namespace framelint::testing;
+using namespace clipwarden;
+using namespace clipwarden::testing;
 
 namespace {
 

@@ -8,7 +8,7 @@
 #include "analyzer/flow/occlusion.h"
 #include "analyzer/flow/pair_builder.h"
 
-namespace framelint {
+namespace clipwarden {
 namespace {
 
 FramePlanes random_planes(cv::RNG& rng, int64_t index) {
@@ -46,4 +46,4 @@ TEST(PairWarp, FixedPointWarpsEqualRemapWithTheFloatMap) {
 }
 
 }  // namespace
-}  // namespace framelint
+}  // namespace clipwarden

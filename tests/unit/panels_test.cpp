@@ -8,7 +8,7 @@
 #include "analyzer/metrics/image_error.h"
 #include "support/html_fixtures.h"
 
-using namespace framelint;
+using namespace clipwarden;
 
 TEST(Panels, ErrorMapAveragesToTheWarpErrorMetric) {
   fixtures::SyntheticScene scene;

@@ -7,12 +7,12 @@
 
 #include <opencv2/imgproc.hpp>
 
-#include "framelint/analysis.h"
-#include "framelint/report_io.h"
+#include "clipwarden/analysis.h"
+#include "clipwarden/report_io.h"
 #include "support/synthetic_source.h"
 
-using namespace framelint;
-using namespace framelint::fixtures;
+using namespace clipwarden;
+using namespace clipwarden::fixtures;
 
 namespace {
 

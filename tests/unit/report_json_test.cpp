@@ -6,15 +6,15 @@
 #include <filesystem>
 #include <fstream>
 
-#include "framelint/report_io.h"
+#include "clipwarden/report_io.h"
 #include "support/report_fixtures.h"
 
-using namespace framelint;
+using namespace clipwarden;
 
 TEST(ReportJson, WrittenReportMatchesTheSchema) {
   const Report r = fixtures::small_report();
   const auto j = report_to_json(r);
-  EXPECT_EQ(j["schema"], "framelint.report/1");
+  EXPECT_EQ(j["schema"], "clipwarden.report/1");
   EXPECT_TRUE(j["frames"][0]["warp_error"].is_null());
   EXPECT_EQ(j["frames"].size(), 10u);
   auto ok = validate_report_json(j, "small");
@@ -53,7 +53,7 @@ TEST(ReportJson, ReaderNamesTheBadKey) {
 }
 
 TEST(ReportJson, AtomicWriteReplacesWholeFiles) {
-  const auto dir = std::filesystem::temp_directory_path() / ("framelint-atomic-" + std::to_string(::getpid()));
+  const auto dir = std::filesystem::temp_directory_path() / ("clipwarden-atomic-" + std::to_string(::getpid()));
   std::filesystem::create_directories(dir);
   const std::string path = (dir / "r.json").string();
   ASSERT_TRUE(write_file_atomic(path, "first").ok());

@@ -9,7 +9,7 @@
 #include "analyzer/segments/segmenter.h"
 #include "analyzer/summary/summary.h"
 
-using namespace framelint;
+using namespace clipwarden;
 
 namespace {
 std::vector<double> times(size_t n) {

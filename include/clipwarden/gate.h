@@ -1,7 +1,7 @@
 // The review-queue gate: many clips in, one verdict per clip out, in a
 // queue a person or a pipeline acts on. Inputs are clips, folders and
 // manifests; results are per-clip reports, DIR/queue.jsonl, DIR/index.html
-// and rows in the results store (include/framelint/store.h). A batch never
+// and rows in the results store (include/clipwarden/store.h). A batch never
 // stops at a bad clip: its error is recorded in its queue line.
 #pragma once
 
@@ -15,12 +15,12 @@
 
 #include <nlohmann/json.hpp>
 
-#include "framelint/analysis.h"
-#include "framelint/error.h"
-#include "framelint/policy.h"
-#include "framelint/report.h"
+#include "clipwarden/analysis.h"
+#include "clipwarden/error.h"
+#include "clipwarden/policy.h"
+#include "clipwarden/report.h"
 
-namespace framelint {
+namespace clipwarden {
 
 // One clip of a batch.
 struct GateInput {
@@ -114,7 +114,7 @@ struct GateOptions {
   AnalysisSettings settings;  // settings.threads = 0: max(1, cores / jobs) per clip
   Policy policy = default_policy();
   std::string out_dir;
-  std::string db_path;        // "" = out_dir/framelint.db
+  std::string db_path;        // "" = out_dir/clipwarden.db
   int jobs = 0;               // clips analysed at once; 0 = number of cores
   AnalyzeFunction analyze;    // empty = analyze_clip
   ReportWriter write_report;  // empty = JSON only (base_path + ".json")
@@ -147,9 +147,9 @@ Expected<GateRun> run_gate(const std::vector<GateInput>& inputs, const GateOptio
 Status write_queue_outputs(const std::string& out_dir, const std::vector<ClipResult>& results);
 
 // Joins the outputs of shard runs (their queue.jsonl, reports and
-// framelint.db) into out_dir: one queue in input order without duplicates,
+// clipwarden.db) into out_dir: one queue in input order without duplicates,
 // one store, one index page. Reports whose names collide get a new name.
 Expected<GateRun> merge_gate_outputs(const std::vector<std::string>& shard_dirs,
                                      const std::string& out_dir);
 
-}  // namespace framelint
+}  // namespace clipwarden

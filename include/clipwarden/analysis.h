@@ -10,12 +10,12 @@
 
 #include <nlohmann/json.hpp>
 
-#include "framelint/clip_source.h"
-#include "framelint/error.h"
-#include "framelint/policy.h"
-#include "framelint/report.h"
+#include "clipwarden/clip_source.h"
+#include "clipwarden/error.h"
+#include "clipwarden/policy.h"
+#include "clipwarden/report.h"
 
-namespace framelint {
+namespace clipwarden {
 
 // Optical flow effort (OpenCV DIS presets): fast = ULTRAFAST,
 // balanced = FAST, thorough = MEDIUM.
@@ -31,7 +31,7 @@ struct AnalysisSettings {
   // inside every worker's flow and remap calls, oversubscribing the cores
   // (14% more CPU per frame measured at 1080p on 2 cores): programs that
   // embed the library should call cv::setNumThreads(1) once at start-up,
-  // as the framelint CLI does.
+  // as the clipwarden CLI does.
   int threads = 0;
   std::optional<double> folder_fps;  // for frame folders
   int long_range_k = 5;              // frames spanned by the long-range warp error
@@ -71,4 +71,4 @@ Expected<Report> analyze_source(ClipSource& source, const std::string& path,
                                 const AnalysisSettings& settings, const Policy& policy,
                                 const AnalysisHooks& hooks = {});
 
-}  // namespace framelint
+}  // namespace clipwarden

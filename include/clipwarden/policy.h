@@ -10,10 +10,10 @@
 
 #include <nlohmann/json.hpp>
 
-#include "framelint/error.h"
-#include "framelint/report.h"
+#include "clipwarden/error.h"
+#include "clipwarden/report.h"
 
-namespace framelint {
+namespace clipwarden {
 
 // Turning one metric's per-frame series into segments (analyzer/segments).
 // A segment opens where the value reaches `enter` and closes where it falls
@@ -84,4 +84,4 @@ nlohmann::ordered_json policy_to_json(const Policy& policy);
 // the metric, the value, the threshold and the time range.
 VerdictResult evaluate_policy(const Report& report, const Policy& policy);
 
-}  // namespace framelint
+}  // namespace clipwarden

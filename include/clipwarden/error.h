@@ -7,7 +7,7 @@
 #include <utility>
 #include <variant>
 
-namespace framelint {
+namespace clipwarden {
 
 // What went wrong, in the terms the CLI maps to an exit status.
 enum class ErrorKind {
@@ -65,4 +65,4 @@ class [[nodiscard]] Expected {
 
 using Status = Expected<Ok>;
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -1,5 +1,5 @@
 // The per-clip report model: plain values, written to JSON by
-// report/json_report.* (schema "framelint.report/1") and read back by the
+// report/json_report.* (schema "clipwarden.report/1") and read back by the
 // gate, the store and compare. Field names match the JSON keys.
 #pragma once
 
@@ -12,9 +12,9 @@
 
 #include <nlohmann/json.hpp>
 
-namespace framelint {
+namespace clipwarden {
 
-inline constexpr const char* kReportSchema = "framelint.report/1";
+inline constexpr const char* kReportSchema = "clipwarden.report/1";
 
 // NaN marks a per-frame value that is undefined (e.g. warp error of frame 0);
 // it is written as JSON null.
@@ -114,7 +114,7 @@ struct VerdictResult {
 };
 
 struct Report {
-  std::string tool_name = "framelint";
+  std::string tool_name = "clipwarden";
   std::string tool_version;
   ClipInfo clip;
   nlohmann::json settings = nlohmann::json::object();
@@ -131,4 +131,4 @@ struct Report {
   const MetricSummary* find_summary(const std::string& metric) const;
 };
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -1,7 +1,7 @@
 #pragma once
 
-namespace framelint {
+namespace clipwarden {
 // The tool version written into every report (`tool.version`) and into the
 // results store, so results from different versions are never mixed up.
 const char* version();
-}  // namespace framelint
+}  // namespace clipwarden

@@ -1,15 +1,15 @@
 // Reading and writing reports. JSON follows report/schema/
-// framelint.report-1.schema.json; the HTML page is self-contained.
+// clipwarden.report-1.schema.json; the HTML page is self-contained.
 #pragma once
 
 #include <string>
 
 #include <nlohmann/json.hpp>
 
-#include "framelint/error.h"
-#include "framelint/report.h"
+#include "clipwarden/error.h"
+#include "clipwarden/report.h"
 
-namespace framelint {
+namespace clipwarden {
 
 nlohmann::json report_to_json(const Report& report);
 // Reads a report written by report_to_json (used by gate, merge, compare).
@@ -17,7 +17,7 @@ nlohmann::json report_to_json(const Report& report);
 Expected<Report> report_from_json(const nlohmann::json& json, const std::string& subject);
 Expected<Report> read_report_file(const std::string& path);
 
-// Checks a report's JSON against report/schema/framelint.report-1.schema.json
+// Checks a report's JSON against report/schema/clipwarden.report-1.schema.json
 // (compiled into the library); the error names the first offending path.
 Status validate_report_json(const nlohmann::json& report, const std::string& subject);
 
@@ -28,4 +28,4 @@ Status write_file_atomic(const std::string& path, const std::string& content);
 // The report's JSON text, pretty-printed, written atomically.
 Status write_json_report(const Report& report, const std::string& path);
 
-}  // namespace framelint
+}  // namespace clipwarden

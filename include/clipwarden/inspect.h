@@ -1,4 +1,4 @@
-// Looking at one frame closely (`framelint inspect`, and the panels of the
+// Looking at one frame closely (`clipwarden inspect`, and the panels of the
 // HTML report): the frame, its predecessor, the predecessor warped onto it
 // by optical flow, where the warp fails (error heat map), the flow itself in
 // the Middlebury colour coding, and the occlusion mask. All images are at
@@ -11,10 +11,10 @@
 
 #include <opencv2/core.hpp>
 
-#include "framelint/analysis.h"
-#include "framelint/error.h"
+#include "clipwarden/analysis.h"
+#include "clipwarden/error.h"
 
-namespace framelint {
+namespace clipwarden {
 
 // Per-pixel warp error shown by the heat map: the squared difference between
 // the current frame and the warped previous frame, summed over R, G, B (each
@@ -67,4 +67,4 @@ Expected<std::vector<std::string>> write_panel_pngs(const FramePanels& panels,
                                                     const std::string& dir,
                                                     const std::string& stem);
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -11,9 +11,9 @@
 
 #include <opencv2/core.hpp>
 
-#include "framelint/error.h"
+#include "clipwarden/error.h"
 
-namespace framelint {
+namespace clipwarden {
 
 enum class VideoCodec {
   automatic,  // H.264 if libx264 is available, else FFV1
@@ -62,4 +62,4 @@ class ClipWriter {
 // True when libav was built with the libx264 encoder.
 bool h264_encoder_available();
 
-}  // namespace framelint
+}  // namespace clipwarden

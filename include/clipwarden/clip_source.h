@@ -11,10 +11,10 @@
 
 #include <opencv2/core.hpp>
 
-#include "framelint/error.h"
-#include "framelint/report.h"
+#include "clipwarden/error.h"
+#include "clipwarden/report.h"
 
-namespace framelint {
+namespace clipwarden {
 
 struct SourceOptions {
   // Long side of the analysis frames in pixels; 0 keeps the native size.
@@ -60,7 +60,7 @@ class ClipSource {
   virtual StreamFacts stream_facts() const = 0;
 };
 
-// Container facts without decoding video (`framelint probe`): the ClipInfo
+// Container facts without decoding video (`clipwarden probe`): the ClipInfo
 // (sha256 empty for a folder) plus "stream" with the StreamFacts, as a JSON object with
 // the report's key names. The frame count and timing facts come from the
 // video packets; the audio facts from decoding the audio.
@@ -69,4 +69,4 @@ Expected<nlohmann::json> probe_clip(const std::string& path, const SourceOptions
 // Hex SHA-256 of a file's bytes (the store's content key).
 Expected<std::string> sha256_file(const std::string& path);
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -1,6 +1,6 @@
-// Injecting known defects into a clean clip (`framelint inject`), to
+// Injecting known defects into a clean clip (`clipwarden inject`), to
 // measure how well the analysis finds them. The copy is a real encoded clip
-// (framelint/clip_writer.h) and the truth says which defect sits where.
+// (clipwarden/clip_writer.h) and the truth says which defect sits where.
 // The defect language is documented in docs/inject.md.
 #pragma once
 
@@ -11,12 +11,12 @@
 
 #include <nlohmann/json.hpp>
 
-#include "framelint/clip_writer.h"
-#include "framelint/error.h"
+#include "clipwarden/clip_writer.h"
+#include "clipwarden/error.h"
 
-namespace framelint {
+namespace clipwarden {
 
-inline constexpr const char* kInjectTruthSchema = "framelint.inject-truth/1";
+inline constexpr const char* kInjectTruthSchema = "clipwarden.inject-truth/1";
 
 struct InjectOptions {
   std::vector<std::string> defect_specs;  // --defect SPEC, one per defect
@@ -39,4 +39,4 @@ struct InjectOptions {
 // input error; a failed write is an output error.
 Expected<nlohmann::json> inject_defects(const std::string& clip_path, const InjectOptions& options);
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -16,14 +16,14 @@
 
 #include <nlohmann/json.hpp>
 
-#include "framelint/analysis.h"
-#include "framelint/error.h"
-#include "framelint/policy.h"
-#include "framelint/report.h"
+#include "clipwarden/analysis.h"
+#include "clipwarden/error.h"
+#include "clipwarden/policy.h"
+#include "clipwarden/report.h"
 
 struct sqlite3;
 
-namespace framelint {
+namespace clipwarden {
 
 struct StoredAnalysis {
   int64_t row_id = 0;          // set by insert()
@@ -83,4 +83,4 @@ Expected<std::string> content_sha256(const std::string& clip_path);
 // change results), the canonical policy JSON and the tool version.
 std::string settings_hash(const AnalysisSettings& settings, const Policy& policy);
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -10,7 +10,7 @@
 //      grows);
 //   2. after analysis, collect_html_assets() decodes the clip once more and
 //      builds frame pairs only at the worst frames of the flagged segments
-//      (and crops objects' first looks), as `framelint inspect` does.
+//      (and crops objects' first looks), as `clipwarden inspect` does.
 // render_clip_page() then writes the page from the report and the assets.
 #pragma once
 
@@ -21,13 +21,13 @@
 
 #include <opencv2/core.hpp>
 
-#include "framelint/analysis.h"
-#include "framelint/clip_source.h"
-#include "framelint/error.h"
-#include "framelint/inspect.h"
-#include "framelint/report.h"
+#include "clipwarden/analysis.h"
+#include "clipwarden/clip_source.h"
+#include "clipwarden/error.h"
+#include "clipwarden/inspect.h"
+#include "clipwarden/report.h"
 
-namespace framelint {
+namespace clipwarden {
 
 // A compressed image ready for a data: URI.
 struct EncodedImage {
@@ -127,4 +127,4 @@ Status write_html_report(const Report& report, const std::string& path,
                          const AnalysisSettings& settings, const HtmlOptions& options,
                          const ThumbnailCollector* thumbnails);
 
-}  // namespace framelint
+}  // namespace clipwarden

@@ -1,7 +1,7 @@
 // Comparing two model versions on the same prompts: two folders of per-clip
 // reports (or two gate output folders) are paired clip by clip, and every
 // compared statistic gets a paired test, an interval and a verdict.
-// Written as DIR/compare.json (schema "framelint.compare/1") and a
+// Written as DIR/compare.json (schema "clipwarden.compare/1") and a
 // self-contained DIR/compare.html.
 #pragma once
 
@@ -12,11 +12,11 @@
 
 #include <nlohmann/json.hpp>
 
-#include "framelint/error.h"
+#include "clipwarden/error.h"
 
-namespace framelint {
+namespace clipwarden {
 
-inline constexpr const char* kCompareSchema = "framelint.compare/1";
+inline constexpr const char* kCompareSchema = "clipwarden.compare/1";
 
 // How clips of A and B are matched. automatic: prompt_id when both inputs
 // are gate folders whose queue lines all carry one, else name.
@@ -144,4 +144,4 @@ std::string comparison_to_html(const Comparison& comparison, const std::string& 
 // Creates out_dir and writes compare.json and compare.html atomically.
 Status write_comparison(const Comparison& comparison, const std::string& out_dir);
 
-}  // namespace framelint
+}  // namespace clipwarden
