@@ -1,4 +1,4 @@
-// Crash safety of `framelint gate` (issue 10): a batch of 8 short clips
+// Crash safety of `clipwarden gate` (issue 10): a batch of 8 short clips
 // (--jobs 2) is interrupted at pseudo-random points (fixed seed, spread over
 // a measured uninterrupted run) with SIGKILL three times in a row, and once
 // each with SIGINT and SIGTERM; then the same command runs to completion.
@@ -7,7 +7,7 @@
 // whole). After the final run: every clip exactly once in the queue and in
 // the store, the verdicts of an uninterrupted run, no temporary files left.
 // SIGINT/SIGTERM must exit within the grace time plus slack with status
-// 128+signal (130, 143: documented in `framelint gate --help`).
+// 128+signal (130, 143: documented in `clipwarden gate --help`).
 #include <gtest/gtest.h>
 #include <signal.h>
 #include <sys/wait.h>
@@ -20,13 +20,13 @@
 #include <set>
 #include <thread>
 
-#include "framelint/store.h"
+#include "clipwarden/store.h"
 #include "support/clips.h"
 #include "support/gate_files.h"
 #include "support/robust_run.h"
 
-using namespace framelint;
-using namespace framelint::test;
+using namespace clipwarden;
+using namespace clipwarden::test;
 namespace fs = std::filesystem;
 using nlohmann::json;
 using Clock = std::chrono::steady_clock;
@@ -38,7 +38,7 @@ constexpr int kClips = 8;
 constexpr double kPromptExitS = 12;
 
 std::vector<std::string> gate_command(const fs::path& clips, const fs::path& out) {
-  return {FRAMELINT_BINARY, "gate", clips.string(), "--out", out.string(), "--jobs", "2",
+  return {CLIPWARDEN_BINARY, "gate", clips.string(), "--out", out.string(), "--jobs", "2",
           "--threads",      "1",    "--width",      "160"};
 }
 
@@ -107,6 +107,12 @@ struct Interrupted {
 Interrupted interrupt(const std::vector<std::string>& command, const fs::path& logs, int sig,
                       double after_s, const fs::path& ready = {}) {
   Interrupted r;
+  // A marker that exists before launch says nothing about the program: the
+  // signal would land during start-up. start_program creates `logs`, so it
+  // must not be (or hold) the marker either.
+  EXPECT_FALSE(!ready.empty() && fs::exists(ready)) << ready << " exists before launch";
+  EXPECT_NE(ready, logs) << "the readiness marker is the log folder";
+  if (!ready.empty() && (fs::exists(ready) || ready == logs)) return r;
   const int pid = start_program(command, logs);
   EXPECT_GT(pid, 0);
   if (pid <= 0) return r;
@@ -150,7 +156,7 @@ Interrupted interrupt(const std::vector<std::string>& command, const fs::path& l
 class GateSignals : public ::testing::Test {
  protected:
   void SetUp() override {
-    FRAMELINT_SKIP_WITHOUT_TOOL("ffmpeg");
+    CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
     ASSERT_EQ(make_varied_clips(dir_.path() / "clips", kClips), "");
     // An uninterrupted run: its length places the signals, its verdicts are
     // what every interrupted-then-resumed batch must end with.
@@ -167,7 +173,7 @@ class GateSignals : public ::testing::Test {
     const auto rerun = run_command(gate_command(dir_.path() / "clips", out));
     EXPECT_TRUE(rerun.exit_code == 0 || rerun.exit_code == 1) << label << ": " << rerun.err;
     EXPECT_EQ(queue_verdicts(out), expected_) << label;
-    EXPECT_EQ(store_rows(out / "framelint.db"), static_cast<size_t>(kClips)) << label;
+    EXPECT_EQ(store_rows(out / "clipwarden.db"), static_cast<size_t>(kClips)) << label;
     EXPECT_EQ(check_files_whole(out), 0) << label << ": temporary files left after the rerun";
   }
 
@@ -220,8 +226,11 @@ TEST_F(GateSignals, SigintAndSigtermStopPromptlyWithTheirStatusThenRerunFinishes
   for (const int sig : {SIGINT, SIGTERM}) {
     const std::string name = sig == SIGINT ? "SIGINT" : "SIGTERM";
     const fs::path out = dir_.path() / name;
+    // The logs have a folder of their own: start_program creates it before
+    // launch, so it cannot tell that gate has installed its handlers.
+    const fs::path logs = dir_.path() / (name + "-logs");
     double at_s = fraction(rng) * whole_s_;
-    auto r = interrupt(gate_command(dir_.path() / "clips", out), dir_.path() / name, sig, at_s, out);
+    auto r = interrupt(gate_command(dir_.path() / "clips", out), logs, sig, at_s, out);
     // The uninterrupted run was timed once; on a machine whose load changes
     // (parallel tests, other builds) a later batch can finish sooner than
     // the fraction chosen. Signal earlier in a fresh folder rather than
@@ -229,7 +238,7 @@ TEST_F(GateSignals, SigintAndSigtermStopPromptlyWithTheirStatusThenRerunFinishes
     for (int retry = 0; retry < 3 && !r.signalled; ++retry) {
       fs::remove_all(out);
       at_s *= 0.4;
-      r = interrupt(gate_command(dir_.path() / "clips", out), dir_.path() / name, sig, at_s, out);
+      r = interrupt(gate_command(dir_.path() / "clips", out), logs, sig, at_s, out);
     }
     ASSERT_TRUE(r.signalled) << name << ": the batch ended before " << at_s << " s";
     EXPECT_FALSE(r.run.timed_out) << name << ": no exit within 60 s";
