@@ -1,6 +1,6 @@
 include(GNUInstallDirs)
 include(CMakePackageConfigHelpers)
-install(TARGETS clipwarden clipwarden_cli EXPORT clipwardenTargets
+install(TARGETS clipwarden ${CLIPWARDEN_LAYER_TARGETS} clipwarden_cli EXPORT clipwardenTargets
   ARCHIVE DESTINATION ${CMAKE_INSTALL_LIBDIR}
   LIBRARY DESTINATION ${CMAKE_INSTALL_LIBDIR}
   RUNTIME DESTINATION ${CMAKE_INSTALL_BINDIR})

@@ -22,7 +22,7 @@
 #include "analyzer/drift/illumination_fit.h"
 #include "analyzer/drift/object_track.h"
 #include "analyzer/drift/proposals.h"
-#include "analyzer/metrics/frame_pair.h"
+#include "analyzer/frame/frame_pair.h"
 
 namespace clipwarden::drift {
 

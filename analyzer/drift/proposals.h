@@ -8,7 +8,7 @@
 
 #include <opencv2/core.hpp>
 
-#include "analyzer/metrics/frame_pair.h"
+#include "analyzer/frame/frame_pair.h"
 
 namespace clipwarden::drift {
 

@@ -6,7 +6,7 @@
 
 #include <memory>
 
-#include "analyzer/metrics/frame_pair.h"
+#include "analyzer/frame/frame_pair.h"
 #include "clipwarden/analysis.h"
 
 namespace clipwarden {

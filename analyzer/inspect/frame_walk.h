@@ -9,7 +9,7 @@
 #include <set>
 #include <string>
 
-#include "analyzer/metrics/frame_pair.h"
+#include "analyzer/frame/frame_pair.h"
 #include "clipwarden/analysis.h"
 #include "clipwarden/clip_source.h"
 #include "clipwarden/error.h"

@@ -4,7 +4,7 @@
 
 #include <vector>
 
-#include "analyzer/metrics/frame_pair.h"
+#include "analyzer/frame/frame_pair.h"
 #include "clipwarden/inspect.h"
 
 namespace clipwarden {

@@ -23,8 +23,8 @@
 #include "analyzer/metrics/flicker_statistics.h"
 #include "analyzer/metrics/image_error.h"
 #include "analyzer/metrics/metric.h"
-#include "analyzer/metrics/shot_boundaries.h"
-#include "analyzer/metrics/series_math.h"
+#include "analyzer/frame/shot_boundaries.h"
+#include "analyzer/frame/series_math.h"
 
 namespace clipwarden {
 namespace {

@@ -8,7 +8,7 @@
 
 #include <opencv2/core.hpp>
 
-#include "analyzer/metrics/series_math.h"
+#include "analyzer/frame/series_math.h"
 
 namespace clipwarden {
 namespace {

@@ -8,7 +8,7 @@
 //
 // Pairs whose camera fit is weak (few RANSAC inliers: mostly independent
 // motion; few consistent flow vectors) or that the `cut` metric calls a cut
-// (a shot boundary, analyzer/metrics/shot_boundaries.h) have no trustworthy
+// (a shot boundary, analyzer/frame/shot_boundaries.h) have no trustworthy
 // camera motion; the frames that need them stay
 // undefined rather than showing a fit failure or a scene change as a jolt.
 // (A cut between two near-blank frames can fit an identity homography with
@@ -17,8 +17,8 @@
 
 #include "analyzer/metrics/camera_path.h"
 #include "analyzer/metrics/metric.h"
-#include "analyzer/metrics/series_math.h"
-#include "analyzer/metrics/shot_boundaries.h"
+#include "analyzer/frame/series_math.h"
+#include "analyzer/frame/shot_boundaries.h"
 
 namespace clipwarden {
 namespace {

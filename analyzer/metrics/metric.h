@@ -20,7 +20,7 @@
 #include <string>
 #include <vector>
 
-#include "analyzer/metrics/frame_pair.h"
+#include "analyzer/frame/frame_pair.h"
 #include "clipwarden/analysis.h"
 #include "clipwarden/report.h"
 

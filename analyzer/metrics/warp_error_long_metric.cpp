@@ -11,7 +11,7 @@
 #include <opencv2/imgproc.hpp>
 
 #include "analyzer/metrics/metric.h"
-#include "analyzer/metrics/shot_boundaries.h"
+#include "analyzer/frame/shot_boundaries.h"
 
 namespace clipwarden {
 namespace {

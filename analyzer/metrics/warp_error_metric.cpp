@@ -5,7 +5,7 @@
 // over its three channels. occluded_pct is 100 * |not M| / |all pixels|.
 #include "analyzer/metrics/image_error.h"
 #include "analyzer/metrics/metric.h"
-#include "analyzer/metrics/shot_boundaries.h"
+#include "analyzer/frame/shot_boundaries.h"
 
 namespace clipwarden {
 namespace {

@@ -6,7 +6,7 @@
 #include <optional>
 #include <thread>
 
-#include "analyzer/metrics/frame_pair.h"
+#include "analyzer/frame/frame_pair.h"
 #include "analyzer/pipeline/bounded_queue.h"
 #include "analyzer/pipeline/planes_pool.h"
 #include "clipwarden/clip_source.h"

@@ -8,7 +8,7 @@
 #include <mutex>
 #include <vector>
 
-#include "analyzer/metrics/frame_pair.h"
+#include "analyzer/frame/frame_pair.h"
 
 namespace clipwarden {
 

@@ -28,7 +28,7 @@
 #include <limits>
 #include <optional>
 
-#include "analyzer/metrics/shot_boundaries.h"
+#include "analyzer/frame/shot_boundaries.h"
 #include "clipwarden/policy.h"
 
 namespace clipwarden {

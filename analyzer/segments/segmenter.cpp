@@ -3,7 +3,7 @@
 #include <algorithm>
 #include <cmath>
 
-#include "analyzer/metrics/series_math.h"
+#include "analyzer/frame/series_math.h"
 
 namespace clipwarden {
 

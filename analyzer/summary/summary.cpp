@@ -2,7 +2,7 @@
 
 #include <algorithm>
 
-#include "analyzer/metrics/series_math.h"
+#include "analyzer/frame/series_math.h"
 
 namespace clipwarden {
 

@@ -86,9 +86,20 @@ struct PanelImages {
   double occluded_pct = 0;
 };
 
+// The keys every panel set shares: the flow colour wheel, the warp-error
+// colour bar and its ticks (position along the bar 0..1, squared error).
+struct PanelLegends {
+  EncodedImage flow_wheel;
+  EncodedImage warp_error_bar;
+  std::vector<std::pair<double, double>> warp_error_ticks;
+};
+
+// Everything pictorial the page shows; made by the picture pass
+// (collect_html_assets), only laid out by render_clip_page.
 struct HtmlAssets {
   std::vector<Thumbnail> thumbnails;
   std::vector<PanelImages> panels;  // one per shown frame
+  PanelLegends legends;             // set whenever panels are
   std::vector<std::string> notes;   // e.g. why pictures are missing
 };
 
@@ -110,6 +121,9 @@ std::vector<int64_t> panel_frames(const Report& report, const HtmlOptions& optio
 // the drift looks of objects present at that frame.
 PanelImages encode_panels(const FramePanels& panels, const Report& report,
                           const HtmlOptions& options);
+
+// The legends of the panel sets (the same for every clip).
+PanelLegends make_panel_legends();
 
 // Step 2 above. `thumbnails` are those collected during analysis; when empty
 // they are collected in this pass. Never fails: if the clip cannot be read

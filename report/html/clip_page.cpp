@@ -7,7 +7,6 @@
 #include <filesystem>
 
 #include "analyzer/core/assets.h"
-#include "analyzer/inspect/panels.h"
 #include "clipwarden/analysis.h"
 #include "clipwarden/html_report.h"
 #include "clipwarden/report_io.h"
@@ -132,11 +131,13 @@ std::string notes_block(const Report& report, const HtmlAssets& assets) {
 
 // The legends shared by every panel set, as CSS background images so each
 // is embedded once.
-void add_legend_rules(page::CssRules& css) {
-  const EncodedImage wheel = encode_png(flow_colour_key(96));
-  const EncodedImage bar = encode_png(warp_error_colour_bar(256, 1, false));
-  css.add_rule(".wheel{background-image:url(\"" + data_uri(wheel.mime, wheel.bytes) + "\")}");
-  css.add_rule(".colour-bar{background-image:url(\"" + data_uri(bar.mime, bar.bytes) + "\")}");
+void add_legend_rules(const PanelLegends& legends, page::CssRules& css) {
+  const EncodedImage& wheel = legends.flow_wheel;
+  const EncodedImage& bar = legends.warp_error_bar;
+  if (!wheel.empty())
+    css.add_rule(".wheel{background-image:url(\"" + data_uri(wheel.mime, wheel.bytes) + "\")}");
+  if (!bar.empty())
+    css.add_rule(".colour-bar{background-image:url(\"" + data_uri(bar.mime, bar.bytes) + "\")}");
 }
 
 std::string file_name(const std::string& path) {
@@ -149,7 +150,7 @@ std::string file_name(const std::string& path) {
 std::string render_clip_page(const Report& report, const HtmlAssets& assets,
                              const HtmlOptions& options) {
   page::CssRules css;
-  add_legend_rules(css);
+  add_legend_rules(assets.legends, css);
   std::string body;
   body += "<header class=\"top\"><p class=\"brand\">clipwarden \u00b7 clip report</p><h1>" +
           html_escape(file_name(report.clip.path)) + "</h1></header>\n<main>\n";
@@ -183,14 +184,6 @@ std::string render_clip_page(const Report& report, const HtmlAssets& assets,
       "<script type=\"application/json\" id=\"fl-data\">" + page::timeline_data_json(report) +
       "</script>\n<script>" + script + "</script>\n</body>\n</html>\n";
   return html;
-}
-
-Status write_html_report(const Report& report, const std::string& path,
-                         const AnalysisSettings& settings, const HtmlOptions& options,
-                         const ThumbnailCollector* thumbnails) {
-  HtmlAssets assets = collect_html_assets(
-      report, settings, options, thumbnails ? thumbnails->thumbnails() : std::vector<Thumbnail>{});
-  return write_file_atomic(path, render_clip_page(report, assets, options));
 }
 
 }  // namespace clipwarden

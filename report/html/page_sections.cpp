@@ -3,9 +3,8 @@
 #include <cmath>
 #include <cstdio>
 
-#include "analyzer/inspect/panels.h"
 #include "report/html/html_escape.h"
-#include "report/html/object_boxes.h"
+#include "analyzer/core/object_boxes.h"
 #include "report/html/page_parts.h"
 
 namespace clipwarden::page {
@@ -27,11 +26,10 @@ std::string frame_ref(int64_t frame) { return "frame\u00a0" + std::to_string(fra
 
 // The heat map's scale: ticks evenly spaced along the bar, labelled with the
 // squared error each position stands for (the bar is in sqrt units).
-std::string colour_bar_html() {
+std::string colour_bar_html(const PanelLegends& legends) {
   std::string ticks;
-  for (double position : warp_error_tick_positions())
-    ticks += "<span>" + std::string(position >= 1 ? "\u2265\u00a0" : "") +
-             num(warp_error_at_position(position)) + "</span>";
+  for (const auto& [position, error] : legends.warp_error_ticks)
+    ticks += "<span>" + std::string(position >= 1 ? "\u2265\u00a0" : "") + num(error) + "</span>";
   return "<div class=\"colour-bar\" role=\"img\" aria-label=\"colour scale of the squared error "
          "from 0 to " +
          num(kWarpErrorHeatMax) + " and above\"></div><div class=\"scale\">" + ticks + "</div>";
@@ -55,7 +53,7 @@ std::string looks_block(const PanelImages& p) {
   return out + "</div>\n";
 }
 
-std::string panel_set(const Report& report, const PanelImages& p) {
+std::string panel_set(const Report& report, const PanelImages& p, const PanelLegends& legends) {
   const std::string f = std::to_string(p.frame_index);
   std::string out = "<section class=\"card panel-set\" id=\"frame-" + f +
                     "\" aria-labelledby=\"h-frame-" + f + "\">\n<h3 id=\"h-frame-" + f +
@@ -87,7 +85,7 @@ std::string panel_set(const Report& report, const PanelImages& p) {
   out += figure(p.warped_previous, "previous frame warped onto the current one",
                 "<b>Previous warped onto current</b>");
   out += figure(p.warp_error_heat, "warp error heat map",
-                "<b>Warp error</b> \u00b7 squared RGB difference per pixel", colour_bar_html());
+                "<b>Warp error</b> \u00b7 squared RGB difference per pixel", colour_bar_html(legends));
   out += figure(
       p.flow_colour, "optical flow in the Middlebury colour coding",
       "<b>Motion</b> \u00b7 full colour\u00a0=\u00a0" + num(p.max_flow_px) + "\u00a0px per frame",
@@ -164,7 +162,7 @@ std::string panels_section(const Report& report, const HtmlAssets& assets) {
       "<dt>Occlusion</dt><dd>Red pixels fail the forward\u2013backward flow check (Sundaram et al. "
       "2010): newly uncovered, covered, or badly tracked. They are left out of the warp "
       "error.</dd></dl></details>\n";
-  for (const auto& p : assets.panels) out += panel_set(report, p);
+  for (const auto& p : assets.panels) out += panel_set(report, p, assets.legends);
   return out + "</section>\n";
 }
 

@@ -5,7 +5,7 @@
 #include <opencv2/imgproc.hpp>
 
 #include "analyzer/inspect/panels.h"
-#include "report/html/object_boxes.h"
+#include "analyzer/core/object_boxes.h"
 
 namespace clipwarden::fixtures {
 namespace {
@@ -220,6 +220,7 @@ HtmlAssets synthetic_assets(const Report& report, const SyntheticScene& scene,
     thumbs.add(f);
   }
   assets.thumbnails = thumbs.thumbnails();
+  assets.legends = make_panel_legends();
   for (int64_t frame : panel_frames(report, options)) {
     FramePlanes prev, cur;
     FramePair pair;

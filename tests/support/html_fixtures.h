@@ -7,7 +7,7 @@
 
 #include <string>
 
-#include "analyzer/metrics/frame_pair.h"
+#include "analyzer/frame/frame_pair.h"
 #include "clipwarden/html_report.h"
 #include "clipwarden/report.h"
 

@@ -12,7 +12,7 @@
 
 #include "clipwarden/html_report.h"
 #include "report/html/csp.h"
-#include "report/html/object_boxes.h"
+#include "analyzer/core/object_boxes.h"
 #include "support/html_fixtures.h"
 
 using namespace clipwarden;

@@ -5,7 +5,7 @@
 
 #include <cmath>
 
-#include "analyzer/metrics/series_math.h"
+#include "analyzer/frame/series_math.h"
 #include "analyzer/segments/segmenter.h"
 #include "analyzer/summary/summary.h"
 

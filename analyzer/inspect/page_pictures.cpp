@@ -1,5 +1,6 @@
 // Pictures for the HTML page: thumbnails during analysis, then one targeted
-// pass that builds frame pairs only at the frames the page shows.
+// pass that builds frame pairs only at the frames the page shows. The page
+// itself (report/html) only lays out what this pass made.
 #include <algorithm>
 #include <map>
 #include <set>
@@ -10,7 +11,8 @@
 #include "analyzer/inspect/frame_walk.h"
 #include "analyzer/inspect/panels.h"
 #include "clipwarden/html_report.h"
-#include "report/html/object_boxes.h"
+#include "clipwarden/report_io.h"
+#include "analyzer/core/object_boxes.h"
 
 namespace clipwarden {
 namespace {
@@ -151,6 +153,15 @@ PanelImages encode_panels(const FramePanels& panels, const Report& report,
   return out;
 }
 
+PanelLegends make_panel_legends() {
+  PanelLegends legends;
+  legends.flow_wheel = encode_png(flow_colour_key(96));
+  legends.warp_error_bar = encode_png(warp_error_colour_bar(256, 1, false));
+  for (double position : warp_error_tick_positions())
+    legends.warp_error_ticks.emplace_back(position, warp_error_at_position(position));
+  return legends;
+}
+
 HtmlAssets collect_html_assets(const Report& report, const AnalysisSettings& settings,
                                const HtmlOptions& options, std::vector<Thumbnail> thumbnails) {
   HtmlAssets assets;
@@ -193,6 +204,7 @@ HtmlAssets collect_html_assets(const Report& report, const AnalysisSettings& set
   auto walked = walk_frames(report.clip.path, settings, walk);
   if (!walked) assets.notes.push_back("Pictures are missing: " + walked.error().message() + ".");
   if (need_thumbnails) assets.thumbnails = collector.thumbnails();
+  if (!assets.panels.empty()) assets.legends = make_panel_legends();
 
   for (auto& panel : assets.panels)
     for (auto& look : panel.objects)
@@ -207,6 +219,14 @@ HtmlAssets collect_html_assets(const Report& report, const AnalysisSettings& set
               return rank(a.frame_index) < rank(b.frame_index);
             });
   return assets;
+}
+
+Status write_html_report(const Report& report, const std::string& path,
+                         const AnalysisSettings& settings, const HtmlOptions& options,
+                         const ThumbnailCollector* thumbnails) {
+  HtmlAssets assets = collect_html_assets(
+      report, settings, options, thumbnails ? thumbnails->thumbnails() : std::vector<Thumbnail>{});
+  return write_file_atomic(path, render_clip_page(report, assets, options));
 }
 
 }  // namespace clipwarden

@@ -1,4 +1,4 @@
-#include "analyzer/metrics/shot_boundaries.h"
+#include "analyzer/frame/shot_boundaries.h"
 
 namespace clipwarden {
 

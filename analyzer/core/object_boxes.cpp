@@ -1,4 +1,4 @@
-#include "report/html/object_boxes.h"
+#include "analyzer/core/object_boxes.h"
 
 #include <algorithm>
 #include <cmath>

@@ -1,4 +1,4 @@
-#include "analyzer/metrics/series_math.h"
+#include "analyzer/frame/series_math.h"
 
 #include <algorithm>
 #include <cmath>
