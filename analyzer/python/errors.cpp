@@ -31,8 +31,6 @@ const char* kind_name(ErrorKind kind) {
       return "output";
     case ErrorKind::internal:
       return "internal";
-    case ErrorKind::interrupted:
-      return "interrupted";
   }
   return "internal";
 }

@@ -58,7 +58,7 @@ struct FrameIterator::State {
       return true;
     } catch (py::error_already_set& e) {
       raised = std::make_unique<py::error_already_set>(std::move(e));
-      return Error{ErrorKind::interrupted, name, "the frame iterable raised an exception"};
+      return Error{ErrorKind::internal, name, "the frame iterable raised an exception"};
     }
   }
 };

@@ -110,7 +110,10 @@ class GateIterator {
   std::thread runner_;
 };
 
-py::object optional_text(const std::string& s) { return s.empty() ? py::none() : py::str(s); }
+py::object optional_text(const std::string& s) {
+  if (s.empty()) return py::none();
+  return py::str(s);
+}
 
 std::unique_ptr<GateIterator> gate(const py::object& paths, const py::object& out,
                                    const py::object& policy, const py::object& jobs,

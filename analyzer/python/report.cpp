@@ -116,7 +116,7 @@ void add_report(py::module_& m) {
       .def("__getitem__", &metric_values, py::arg("name"))
       .def("__len__", [](const ReportObject& r) { return r.report().frame_times_s.size(); })
       .def(
-          "to_json", [](const ReportObject& r) { return report_json_text(r.report()); },
+          "to_json", [](const ReportObject& r) { return json_text(r); },
           "The JSON text, exactly as `clipwarden analyze` writes DIR/<name>.json.")
       .def(
           "to_dict", [](const ReportObject& r) { return nlohmann::json(r.json()); },

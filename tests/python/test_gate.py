@@ -35,11 +35,9 @@ def test_gate_yields_every_clip_as_the_cli_judges_it(batches):
     cli_queue = queue(root / "cli")
     for r in results:
         line = cli_queue[r.path]
-        assert r.status == line["status"]
-        assert r.reasons == line.get("reasons", [])
-        mine = r.to_dict()
-        for key in ("status", "coherence", "reasons", "report", "error", "sha256"):
-            assert mine.get(key) == line.get(key), key
+        assert r.status == (line["verdict"] or "error")
+        assert r.reasons == line["reasons"]
+        assert r.to_dict() == line
     bad = next(r for r in results if r.path == inputs[2])
     assert bad.status == "error" and bad.error and bad.coherence is None
     # The reports themselves are the CLI's.

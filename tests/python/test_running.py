@@ -72,7 +72,8 @@ def test_ctrl_c_stops_an_endless_analysis():
         # The module still works afterwards.
         print(clipwarden.analyze_frames(np.zeros((3, 16, 16, 3), np.uint8), 24).verdict)
     """)
-    assert out.split() == ["interrupted", "pass"]
+    first, after = out.split()
+    assert first == "interrupted" and after in ("pass", "review", "reject")
 
 
 def test_ctrl_c_stops_the_analysis_of_a_file(tmp_path):
@@ -92,7 +93,6 @@ def test_ctrl_c_stops_the_analysis_of_a_file(tmp_path):
             time.sleep(0.5)
             os.kill(os.getpid(), signal.SIGINT)
         threading.Thread(target=interrupt, daemon=True).start()
-        t0 = time.monotonic()
         try:
             started.set()
             clipwarden.analyze({str(clip)!r})

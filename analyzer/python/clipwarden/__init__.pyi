@@ -14,7 +14,7 @@ _Frames = Union[npt.NDArray[np.uint8], npt.NDArray[np.floating[Any]], Iterable[n
 class Error(Exception):
     """A clipwarden call failed; str(e) is the line the CLI prints."""
 
-    kind: Literal["usage", "input", "output", "internal", "interrupted"]
+    kind: Literal["usage", "input", "output", "internal"]
     subject: str
     cause: str
 
