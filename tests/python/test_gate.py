@@ -70,3 +70,18 @@ def test_compare_is_the_clis(batches):
 def test_gate_errors_raise():
     with pytest.raises(clipwarden.UsageError, match="jobs"):
         clipwarden.gate([FLICKER_CLIP], jobs=0)
+
+
+def test_close_stops_the_batch_and_a_rerun_finishes_it(tmp_path):
+    clips = [FLICKER_CLIP, JUMP_CLIP, FLICKER_CLIP.replace("flicker", "clean")]
+    settings = dict(out=tmp_path, html=False, jobs=1, preset="fast", width=160)
+    with clipwarden.gate(clips, **settings) as batch:
+        first = next(batch)
+    # Closed after the first clip: the queue holds the finished clips only
+    # (the one in flight was stopped, unless it had finished already).
+    finished = list(queue(tmp_path))
+    assert first.path in finished and set(finished) <= set(clips)
+    rest = list(clipwarden.gate(clips, **settings))
+    assert sorted(r.path for r in rest) == sorted(clips)
+    assert all(r.from_store for r in rest if r.path in finished)
+    assert list(queue(tmp_path)) == clips
