@@ -1,4 +1,4 @@
-// compare.json ("clipwarden.compare/1") and writing both output files.
+// compare.json ("clipwarden.compare/2") and writing both output files.
 #include <cmath>
 #include <filesystem>
 
@@ -26,6 +26,7 @@ json bootstrap_settings(const CompareOptions& o) {
 json metric_to_json(const MetricComparison& m, const CompareOptions& o) {
   return {{"metric", m.what.metric},
           {"statistic", m.what.statistic},
+          {"family", m.primary ? "primary" : "exploratory"},
           {"n", m.n},
           {"mean_diff", number_or_null(m.mean_diff)},
           {"median_diff", number_or_null(m.median_diff)},
@@ -38,9 +39,54 @@ json metric_to_json(const MetricComparison& m, const CompareOptions& o) {
           {"wins_b", m.wins_b},
           {"ties", m.ties},
           {"better", m.better},
+          {"unadjusted_better", m.unadjusted_better},
           {"direction", m.what.direction},
           {"test", m.test},
+          {"sign_test",
+           {{"b_better", m.wins_b},
+            {"b_worse", m.wins_a},
+            {"ties", m.ties},
+            {"p_value", number_or_null(m.sign_p_value)},
+            {"b_better_share", number_or_null(m.b_better_share)},
+            {"ci_low", number_or_null(m.b_better_low)},
+            {"ci_high", number_or_null(m.b_better_high)},
+            {"interval", "Clopper-Pearson exact"}}},
+          {"seed_spread",
+           {{"sd_within_prompt_a", number_or_null(m.seed_sd_a)},
+            {"sd_within_prompt_b", number_or_null(m.seed_sd_b)},
+            {"noise_of_prompt_difference", number_or_null(m.seed_noise)}}},
           {"bootstrap", bootstrap_settings(o)}};
+}
+
+json verdicts_to_json(const VerdictComparison& v) {
+  auto counts = [](const std::array<int, 3>& c) {
+    return json{{"pass", c[0]}, {"review", c[1]}, {"reject", c[2]}};
+  };
+  return {{"clips_a", counts(v.clips_a)},
+          {"clips_b", counts(v.clips_b)},
+          {"prompt_passes", "more than half of the prompt's clips pass"},
+          {"prompts",
+           {{"both_pass", v.both_pass},
+            {"only_a_passes", v.only_a_pass},
+            {"only_b_passes", v.only_b_pass},
+            {"neither_passes", v.neither_pass}}},
+          {"test", "McNemar exact (binomial test on the discordant prompts), two-sided"},
+          {"method_used", v.test},
+          {"p_value", v.p_value}};
+}
+
+json design_to_json(const DesignLimits& d) {
+  return {{"prompts", d.prompts},
+          {"primary_family_size", d.primary_family},
+          {"smallest_p", d.smallest_p},
+          {"smallest_holm_p", d.smallest_holm_p},
+          {"single_test_can_reach_alpha", d.single_test_can_reach},
+          {"primary_can_reach_alpha", d.primary_can_reach},
+          {"prompts_needed_single", d.prompts_needed_single},
+          {"prompts_needed_primary", d.prompts_needed_primary},
+          {"basis",
+           "exact paired tests on n prompts cannot go below 2/2^n; Holm's first step multiplies "
+           "the smallest p by the primary family size"}};
 }
 
 json report_paths(const std::vector<ClipEntry>& clips) {
@@ -72,12 +118,15 @@ json settings_to_json(const Comparison& c) {
       {"test", "Wilcoxon signed-rank, two-sided, on the paired differences B - A"},
       {"exact_up_to_n", 50},
       {"exact_when",
-       "no ties among the ranked differences and at most 50 of them; "
-       "otherwise the normal approximation with tie correction"},
+       "at most 50 ranked differences, none of them zero (tied ones keep average ranks: "
+       "exact given the ties); otherwise the normal approximation with tie correction"},
       {"zero_rule", to_string(o.zero_rule)},
       {"statistics", o.statistics},
       {"effect_size", "matched-pairs rank-biserial correlation (Kerby 2014), positive when B > A"},
-      {"multiple_comparisons", "Holm step-down across all compared statistics"},
+      {"primary", o.primary},
+      {"multiple_comparisons",
+       "Holm step-down within the primary family; exploratory statistics carry unadjusted p "
+       "and no verdict"},
       {"alpha", o.alpha},
       {"bootstrap", bootstrap_settings(o)}};
 }
@@ -109,7 +158,11 @@ nlohmann::ordered_json comparison_to_json(const Comparison& c) {
        "clips that share a key on one side (several seeds of a prompt) are averaged per "
        "statistic before pairing, so each key counts once"},
       {"averaged", c.averaged},
+      {"most_clips_per_key", c.most_clips_per_key},
       {"settings", settings_to_json(c)},
+      {"headline", c.headline},
+      {"design", design_to_json(c.design)},
+      {"verdicts", verdicts_to_json(c.verdicts)},
       {"metrics", std::move(metrics)},
       {"pairs", std::move(pairs)},
       {"unpaired", std::move(unpaired)},

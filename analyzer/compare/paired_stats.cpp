@@ -115,9 +115,29 @@ std::vector<uint64_t> signed_rank_null_counts(int n) {
 
 namespace {
 
-void exact_p_value(WilcoxonResult& r, Alternative alternative) {
-  const auto counts = signed_rank_null_counts(r.n_ranked);
-  const auto observed = static_cast<size_t>(std::llround(r.r_plus));
+// Null distribution of 2 R+ for the given ranks (average ranks when |d| is
+// tied, so doubling makes them whole numbers): counts[k] is the number of
+// the 2^n sign patterns whose positive ranks sum to k / 2. With ties this is
+// the exact distribution conditional on the tie pattern, the one a paired
+// permutation test enumerates by flipping signs (Hollander & Wolfe,
+// Nonparametric Statistical Methods, section 3.1, comment on ties).
+std::vector<uint64_t> doubled_rank_sum_counts(const std::vector<double>& ranks) {
+  std::vector<int> doubled;
+  int total = 0;
+  for (double r : ranks) total += doubled.emplace_back(static_cast<int>(std::lround(2 * r)));
+  std::vector<uint64_t> counts(static_cast<size_t>(total) + 1, 0);
+  counts[0] = 1;
+  int reach = 0;
+  for (int d : doubled) {
+    reach += d;
+    for (int k = reach; k >= d; --k) counts[k] += counts[k - d];
+  }
+  return counts;
+}
+
+void exact_p_value(WilcoxonResult& r, Alternative alternative, const std::vector<double>& ranks) {
+  const auto counts = doubled_rank_sum_counts(ranks);
+  const auto observed = static_cast<size_t>(std::llround(2 * r.r_plus));
   uint64_t at_most = 0, at_least = 0;
   for (size_t k = 0; k < counts.size(); ++k) {
     if (k <= observed) at_most += counts[k];
@@ -215,12 +235,14 @@ WilcoxonResult wilcoxon_signed_rank(std::span<const double> differences, const W
   const double tie_sum = tie_term(o.zero_method == ZeroMethod::zsplit ? abs_all : abs_nonzero);
   const double nonzero_ties = tie_term(abs_nonzero);
   r.ties = nonzero_ties > 0;
-  const bool exact_valid = !r.ties && (r.n_zero == 0 || o.zero_method == ZeroMethod::wilcox);
+  // Exact (conditional on ties) whenever every ranked difference is
+  // non-zero; ranked zeros (pratt, zsplit) take the normal approximation.
+  const bool exact_valid = r.n_zero == 0 || o.zero_method == ZeroMethod::wilcox;
   bool use_exact = false;
   if (o.method == TestMethod::automatic) use_exact = exact_valid && r.n_ranked <= o.exact_max_n;
   if (o.method == TestMethod::exact) use_exact = exact_valid && r.n_ranked <= 62;
   if (use_exact)
-    exact_p_value(r, o.alternative);
+    exact_p_value(r, o.alternative, ranks);
   else
     normal_p_value(r, o, tie_sum);
   r.p_value = std::clamp(r.p_value, 0.0, 1.0);

@@ -46,8 +46,10 @@ enum class ZeroMethod { wilcox, pratt, zsplit };
 // Alternatives are about d = B - A: `greater` means d tends to be positive.
 enum class Alternative { two_sided, less, greater };
 
-// automatic: exact when it is valid (no ties, no ranked zeros) and the
-// number of ranked differences is at most exact_max_n, normal otherwise.
+// automatic: exact when it is valid (no ranked zeros) and the number of
+// ranked differences is at most exact_max_n, normal otherwise. With tied
+// |d| the exact distribution is the one conditional on the ties (all 2^n
+// sign patterns of the observed average ranks).
 // exact is honoured only when valid; `none` marks a test with no non-zero
 // difference (nothing to rank).
 enum class TestMethod { automatic, exact, normal, none };

@@ -71,6 +71,7 @@ Expected<ClipEntry> load_clip(const std::string& report_path) {
   e.id = e.name;
   e.clip_path = report->clip.path;
   e.values = comparable_values(*report);
+  e.verdict = report->verdict.status;
   return e;
 }
 
@@ -137,6 +138,10 @@ void load_plain_folder(const fs::path& dir, const std::string& side, LoadedFolde
 std::vector<std::pair<std::string, double>> comparable_values(const Report& report) {
   std::vector<std::pair<std::string, double>> out;
   add_if_defined(out, "coherence.score", report.summary.coherence);
+  // One clip is all or nothing; averaged over a prompt's seeds these become
+  // the share of its clips at that verdict.
+  out.emplace_back("verdict.pass_share", report.verdict.status == Verdict::pass ? 1.0 : 0.0);
+  out.emplace_back("verdict.reject_share", report.verdict.status == Verdict::reject ? 1.0 : 0.0);
   std::vector<std::string> known;  // every metric the report speaks of, in order
   auto know = [&](const std::string& m) {
     if (m != "coherence" && std::find(known.begin(), known.end(), m) == known.end())

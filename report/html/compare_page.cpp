@@ -17,7 +17,8 @@ namespace {
 using html_detail::format_number;
 namespace fs = std::filesystem;
 
-constexpr size_t kWorstShown = 12;
+constexpr size_t kWorstShown = 8;
+constexpr size_t kCharts = 8;
 
 std::string esc(std::string_view s) { return html_escape(s); }
 
@@ -58,6 +59,14 @@ std::string verdict_badge(const MetricComparison& m) {
   return "<span class=\"badge neither\">no clear difference</span>";
 }
 
+// An exploratory statistic's unadjusted reading, drawn so it cannot be
+// mistaken for a verdict.
+std::string lead_badge(const MetricComparison& m) {
+  if (m.unadjusted_better == "b") return "<span class=\"badge lead-better\">B better?</span>";
+  if (m.unadjusted_better == "a") return "<span class=\"badge lead-worse\">B worse?</span>";
+  return "<span class=\"badge neither\">&ndash;</span>";
+}
+
 std::string head(const Comparison& c) {
   return "<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\">"
          "<meta http-equiv=\"Content-Security-Policy\" content=\"default-src 'none'; "
@@ -70,21 +79,15 @@ std::string head(const Comparison& c) {
 }
 
 std::string overview(const Comparison& c) {
-  int better = 0, worse = 0;
-  for (const auto& m : c.metrics) better += m.better == "b", worse += m.better == "a";
   std::string s = "<header><h1>Model comparison</h1><dl class=\"inputs\"><dt>A</dt><dd>" +
                   esc(c.a_dir) + " <span class=\"muted\">(" + std::to_string(c.a_clip_count) +
                   " clips)</span></dd><dt>B</dt><dd>" + esc(c.b_dir) + " <span class=\"muted\">(" +
                   std::to_string(c.b_clip_count) + " clips)</span></dd></dl>";
-  s += "<p class=\"lede\">" + std::to_string(c.pairs.size()) + " keys paired by <b>" +
-       esc(to_string(c.pair_by)) + "</b>. Of " + std::to_string(c.metrics.size()) +
-       " compared statistics, B is significantly better on <b>" + std::to_string(better) +
-       "</b> and significantly worse on <b>" + std::to_string(worse) +
-       "</b> (Wilcoxon signed-rank, Holm-adjusted across all statistics at " +
-       format_number(c.options.alpha) + ").</p>";
-  if (c.averaged)
-    s += "<p class=\"note\">Several clips share a key on one side (e.g. seeds of a prompt); "
-         "their values were averaged per key before pairing, so each key counts once.</p>";
+  s += "<p class=\"muted\">" + std::to_string(c.pairs.size()) + " prompts paired by <b>" +
+       esc(to_string(c.pair_by)) + "</b>.</p><ul class=\"headline\">";
+  for (size_t i = 0; i < c.headline.size(); ++i)
+    s += std::string(i == 0 ? "<li class=\"lead\">" : "<li>") + esc(c.headline[i]) + "</li>";
+  s += "</ul>";
   if (!c.unpaired.empty() || !c.failed.empty())
     s += "<p class=\"note\">" + std::to_string(c.unpaired.size()) + " unpaired key(s) and " +
          std::to_string(c.failed.size()) +
@@ -92,114 +95,152 @@ std::string overview(const Comparison& c) {
   return s + "</header>\n";
 }
 
+std::string share_interval(const MetricComparison& m) {
+  if (!std::isfinite(m.b_better_share)) return "\xE2\x80\x93";
+  auto pct = [](double v) { return std::to_string(static_cast<int>(std::lround(100 * v))) + "%"; };
+  return pct(m.b_better_share) + "<br><span class=\"muted small\">" + pct(m.b_better_low) +
+         " &hellip; " + pct(m.b_better_high) + "</span>";
+}
+
 std::string verdict_row(const MetricComparison& m) {
-  const char* row = m.better == "a" ? "row-worse" : m.better == "b" ? "row-better" : "";
+  const std::string& side = m.primary ? m.better : m.unadjusted_better;
+  const char* row = !m.primary ? "" : side == "a" ? "row-worse" : side == "b" ? "row-better" : "";
   return std::string("<tr class=\"") + row + "\"><th scope=\"row\"><span class=\"metric\">" +
          esc(m.what.metric) + "</span> " + esc(m.what.statistic) +
          "<br><span class=\"muted small\">" + esc(m.what.direction) +
          "</span></th><td class=\"num\">" + std::to_string(m.n) + "</td><td class=\"num\">" +
-         signed_number(m.mean_diff) + "</td><td class=\"num\">" + format_number(m.ci_low) +
-         " &hellip; " + format_number(m.ci_high) + "</td><td class=\"num\">" +
-         signed_number(m.median_diff) + "</td><td class=\"num\">" + std::to_string(m.wins_a) +
+         signed_number(m.mean_diff) + "<br><span class=\"muted small\">" + format_number(m.ci_low) +
+         " &hellip; " + format_number(m.ci_high) + "</span></td><td class=\"num\">" +
+         format_number(m.seed_noise) + "</td><td class=\"num\">" + std::to_string(m.wins_a) +
          " / " + std::to_string(m.ties) + " / " + std::to_string(m.wins_b) +
-         "</td><td class=\"num\">" + signed_number(m.effect_size) + "</td><td class=\"num\">" +
-         format_p(m.p_value) + "<br><span class=\"muted small\">" + esc(m.test) +
-         "</span></td><td class=\"num\">" + format_p(m.p_holm) + "</td><td>" + verdict_badge(m) +
-         "</td></tr>";
+         "</td><td class=\"num\">" + share_interval(m) + "</td><td class=\"num\">" +
+         format_p(m.sign_p_value) + "</td><td class=\"num\">" + signed_number(m.effect_size) +
+         "</td><td class=\"num\">" + format_p(m.p_value) + "<br><span class=\"muted small\">" +
+         esc(m.test) + "</span></td><td class=\"num\">" +
+         (m.primary ? format_p(m.p_holm) : "<span class=\"muted\">not adjusted</span>") +
+         "</td><td>" + (m.primary ? verdict_badge(m) : lead_badge(m)) + "</td></tr>";
 }
 
-std::string verdict_table(const Comparison& c) {
+std::string statistics_table(const Comparison& c, bool primary) {
   const int percent = static_cast<int>(std::lround(c.options.confidence_level * 100));
   std::string s =
-      "<section><h2>Verdict per statistic</h2><div class=\"scroll\"><table class=\"verdicts\">"
-      "<thead><tr><th>Statistic</th><th class=\"num\">n</th><th class=\"num\">Mean B&minus;A</th>"
-      "<th class=\"num\">" +
-      std::to_string(percent) +
-      "% CI (BCa)</th><th class=\"num\">Median "
-      "B&minus;A</th><th class=\"num\" title=\"keys where A is better / equal / B is better\">"
-      "A / tie / B</th><th class=\"num\">Effect r</th><th class=\"num\">p</th>"
-      "<th class=\"num\">p (Holm)</th><th>Verdict</th></tr></thead><tbody>";
-  for (const auto& m : c.metrics) s += verdict_row(m);
+      primary ? "<section><h2>Primary family: the verdict</h2><p class=\"muted\">These decide the "
+                "headline. Holm's adjustment runs over these statistics only.</p>"
+              : "<section><h2>Exploratory statistics</h2><p class=\"muted\">Shown with their "
+                "effect size, interval and <b>unadjusted</b> p: leads to follow, not verdicts. "
+                "With many statistics some will have a small p by chance.</p>";
+  s += "<div class=\"scroll\"><table class=\"verdicts\"><thead><tr><th>Statistic</th>"
+       "<th class=\"num\">n</th><th class=\"num\">Mean B&minus;A<br>" +
+       std::to_string(percent) +
+       "% CI (BCa)</th><th class=\"num\" title=\"standard deviation of one prompt's difference "
+       "from resampling seeds alone\">Seed noise</th><th class=\"num\" title=\"prompts where A "
+       "is better / equal / B is better\">A / tie / B</th><th class=\"num\">B better share<br>" +
+       std::to_string(percent) +
+       "% CI (exact)</th><th class=\"num\">Sign test p</th><th class=\"num\">Effect r</th>"
+       "<th class=\"num\">Wilcoxon p</th><th class=\"num\">p (Holm)</th><th>" +
+       (primary ? "Verdict" : "Lead") + "</th></tr></thead><tbody>";
+  int rows = 0;
+  for (const auto& m : c.metrics)
+    if (m.primary == primary) s += verdict_row(m), ++rows;
+  if (rows == 0) return "";
   return s + "</tbody></table></div></section>\n";
+}
+
+// The statistics worth a per-prompt chart: the primary ones that were
+// tested, then the exploratory leads by p, at most kCharts.
+std::vector<size_t> charted(const Comparison& c) {
+  std::vector<size_t> primary, leads;
+  for (size_t i = 0; i < c.metrics.size(); ++i) {
+    const auto& m = c.metrics[i];
+    if (m.primary && m.test != "none") primary.push_back(i);
+    if (!m.primary && m.unadjusted_better != "neither") leads.push_back(i);
+  }
+  std::stable_sort(leads.begin(), leads.end(),
+                   [&](size_t x, size_t y) { return c.metrics[x].p_value < c.metrics[y].p_value; });
+  primary.insert(primary.end(), leads.begin(), leads.end());
+  if (primary.size() > kCharts) primary.resize(kCharts);
+  return primary;
+}
+
+std::string worst_prompts_table(const Comparison& c, size_t column, const std::string& out_dir) {
+  const auto changes = html_detail::prompt_changes(c, column);
+  std::string rows;
+  for (size_t i = 0; i < changes.size() && i < kWorstShown && changes[i].worse > 0; ++i) {
+    const auto& ch = changes[i];
+    rows += "<tr><th scope=\"row\">" + esc(ch.pair->key) + "</th><td class=\"num\">" +
+            format_number(ch.a) + "</td><td class=\"num\">" + format_number(ch.b) +
+            "</td><td class=\"num\">" + signed_number(ch.b - ch.a) + "</td><td>" +
+            clip_links(ch.pair->a, out_dir) + "</td><td>" + clip_links(ch.pair->b, out_dir) +
+            "</td></tr>";
+  }
+  if (rows.empty()) return "<p class=\"muted\">No prompt got worse in B on this statistic.</p>";
+  return "<div class=\"scroll\"><table class=\"worst\"><thead><tr><th>" +
+         esc(to_string(c.pair_by)) +
+         "</th><th class=\"num\">A</th><th class=\"num\">B</th><th class=\"num\">B&minus;A</th>"
+         "<th>Clips of A</th><th>Clips of B</th></tr></thead><tbody>" +
+         rows + "</tbody></table></div>";
+}
+
+std::string per_prompt_charts(const Comparison& c, const std::string& out_dir) {
+  const auto columns = charted(c);
+  if (columns.empty()) return "";
+  std::string s =
+      "<section><h2>Prompt by prompt</h2><p class=\"muted\">Each bar is one prompt's difference "
+      "B&nbsp;&minus;&nbsp;A, worst in B on the left; <span class=\"key-worse\">worse in "
+      "B</span>, <span class=\"key-better\">better in B</span>. The grey band is the "
+      "seed-to-seed noise of one prompt's difference when prompts have several clips. The "
+      "table under each chart links both sides' clips of the prompts that got most worse.</p>";
+  for (size_t column : columns) {
+    const auto& m = c.metrics[column];
+    s += "<figure class=\"wide\"><figcaption><b>" + esc(m.what.metric) + "</b> " +
+         esc(m.what.statistic) + " " + (m.primary ? verdict_badge(m) : lead_badge(m)) +
+         " <span class=\"muted\">" + esc(m.what.direction) + "</span></figcaption>" +
+         html_detail::prompt_difference_chart(c, column) + worst_prompts_table(c, column, out_dir) +
+         "</figure>";
+  }
+  return s + "</section>\n";
+}
+
+std::string verdict_comparison(const Comparison& c) {
+  const auto& v = c.verdicts;
+  const int prompts = v.both_pass + v.only_a_pass + v.only_b_pass + v.neither_pass;
+  if (prompts == 0) return "";
+  auto cell = [](int n) { return "<td class=\"num\">" + std::to_string(n) + "</td>"; };
+  auto counts = [&](const char* side, const std::array<int, 3>& k) {
+    return std::string("<tr><th scope=\"row\">") + side + "</th>" + cell(k[0]) + cell(k[1]) +
+           cell(k[2]) + "</tr>";
+  };
+  return "<section><h2>Verdicts</h2><div class=\"twin\"><div><h3>Prompts passing</h3>"
+         "<table class=\"mcnemar\"><thead><tr><th></th><th class=\"num\">B passes</th>"
+         "<th class=\"num\">B does not</th></tr></thead><tbody><tr><th scope=\"row\">A "
+         "passes</th>" +
+         cell(v.both_pass) + cell(v.only_a_pass) + "</tr><tr><th scope=\"row\">A does not</th>" +
+         cell(v.only_b_pass) + cell(v.neither_pass) +
+         "</tr></tbody></table><p class=\"muted small\">A prompt passes when more than half of "
+         "its clips pass. McNemar's exact test on the " +
+         std::to_string(v.only_a_pass + v.only_b_pass) +
+         " prompts that changed: p = " + format_p(v.p_value) +
+         " (not part of the Holm family; the pass share above is).</p></div><div><h3>Clips "
+         "at each verdict</h3><table><thead><tr><th></th><th class=\"num\">pass</th><th "
+         "class=\"num\">review</th><th class=\"num\">reject</th></tr></thead><tbody>" +
+         counts("A", v.clips_a) + counts("B", v.clips_b) +
+         "</tbody></table></div></div></section>\n";
 }
 
 std::string dot_plots(const Comparison& c) {
   std::string s =
-      "<section><h2>Each key, A beside B</h2><p class=\"muted\">One line per key from its A value "
-      "to its B value; <span class=\"key-worse\">worse in B</span>, <span "
-      "class=\"key-better\">better "
-      "in B</span>, <span class=\"key-same\">unchanged</span>, judged in each statistic's own "
+      "<section><details><summary><h2>Every statistic, A beside B</h2></summary><p "
+      "class=\"muted\">One line per prompt from its A value to its B value; <span "
+      "class=\"key-worse\">worse in B</span>, <span class=\"key-better\">better in B</span>, "
+      "<span class=\"key-same\">unchanged</span>, judged in each statistic's own "
       "direction.</p><div class=\"plots\">";
   for (size_t i = 0; i < c.metrics.size(); ++i) {
     const auto& m = c.metrics[i];
     s += "<figure>" + html_detail::paired_dot_plot(c, i) + "<figcaption><b>" + esc(m.what.metric) +
-         "</b> " + esc(m.what.statistic) + " " + verdict_badge(m) + "<br><span class=\"muted\">" +
-         esc(m.what.direction) + "</span></figcaption></figure>";
+         "</b> " + esc(m.what.statistic) + " " + (m.primary ? verdict_badge(m) : lead_badge(m)) +
+         "<br><span class=\"muted\">" + esc(m.what.direction) + "</span></figcaption></figure>";
   }
-  return s + "</div></section>\n";
-}
-
-// For each key: the statistic that worsened most, measured in standard
-// deviations of that statistic's differences across keys.
-std::pair<std::string, double> largest_worsening(const Comparison& c, const PairedKey& p) {
-  std::pair<std::string, double> worst{"", 0};
-  for (size_t i = 0; i < c.metrics.size(); ++i) {
-    const auto& m = c.metrics[i];
-    double sum = 0, sum2 = 0;
-    int n = 0;
-    for (const auto& q : c.pairs)
-      if (std::isfinite(q.a_values[i]) && std::isfinite(q.b_values[i])) {
-        const double d = q.b_values[i] - q.a_values[i];
-        sum += d, sum2 += d * d, ++n;
-      }
-    if (n < 2 || !std::isfinite(p.a_values[i]) || !std::isfinite(p.b_values[i])) continue;
-    const double sd = std::sqrt(std::max(0.0, (sum2 - sum * sum / n) / (n - 1)));
-    if (!(sd > 0)) continue;
-    const double d = p.b_values[i] - p.a_values[i];
-    const double worsening = (m.what.higher_is_better ? -d : d) / sd;
-    if (worsening > worst.second) worst = {m.what.metric + " " + m.what.statistic, worsening};
-  }
-  return worst;
-}
-
-std::string worst_keys(const Comparison& c, const std::string& out_dir) {
-  size_t coherence = c.metrics.size();
-  for (size_t i = 0; i < c.metrics.size(); ++i)
-    if (c.metrics[i].what.key() == "coherence.score") coherence = i;
-  std::vector<std::pair<double, const PairedKey*>> ranked;  // how much worse, bigger first
-  for (const auto& p : c.pairs) {
-    const double drop = coherence < c.metrics.size() ? p.a_values[coherence] - p.b_values[coherence]
-                                                     : largest_worsening(c, p).second;
-    if (std::isfinite(drop) && drop > 0) ranked.push_back({drop, &p});
-  }
-  std::stable_sort(ranked.begin(), ranked.end(),
-                   [](auto& x, auto& y) { return x.first > y.first; });
-  std::string s = "<section><h2>Keys that got most worse</h2>";
-  if (ranked.empty()) return s + "<p class=\"muted\">No key lost coherence in B.</p></section>\n";
-  s +=
-      "<p class=\"muted\">Ranked by the drop in coherence score from A to B; the last column names "
-      "the statistic that worsened most for that key, in standard deviations of its differences "
-      "across keys.</p><div class=\"scroll\"><table><thead><tr><th>" +
-      esc(to_string(c.pair_by)) +
-      "</th><th class=\"num\">"
-      "Coherence A</th><th class=\"num\">Coherence B</th><th class=\"num\">Change</th>"
-      "<th>Report A</th><th>Report B</th><th>Largest worsening</th></tr></thead><tbody>";
-  for (size_t i = 0; i < ranked.size() && i < kWorstShown; ++i) {
-    const PairedKey& p = *ranked[i].second;
-    const auto worst = largest_worsening(c, p);
-    const bool has_coherence = coherence < c.metrics.size();
-    s += "<tr><th scope=\"row\">" + esc(p.key) + "</th><td class=\"num\">" +
-         (has_coherence ? format_number(p.a_values[coherence]) : "") + "</td><td class=\"num\">" +
-         (has_coherence ? format_number(p.b_values[coherence]) : "") + "</td><td class=\"num\">" +
-         (has_coherence ? signed_number(p.b_values[coherence] - p.a_values[coherence]) : "") +
-         "</td><td>" + clip_links(p.a, out_dir) + "</td><td>" + clip_links(p.b, out_dir) +
-         "</td><td>" +
-         (worst.first.empty() ? ""
-                              : esc(worst.first) + " <span class=\"muted\">+" +
-                                    format_number(worst.second) + " sd</span>") +
-         "</td></tr>";
-  }
-  return s + "</tbody></table></div></section>\n";
+  return s + "</div></details></section>\n";
 }
 
 std::string leftovers(const Comparison& c, const std::string& out_dir) {
@@ -228,12 +269,16 @@ std::string method_note(const Comparison& c) {
   const auto& o = c.options;
   return "<footer><h2>How to read this</h2><p>Each statistic is compared on the paired differences "
          "B&nbsp;&minus;&nbsp;A, one per key. The p-value is the two-sided Wilcoxon signed-rank "
-         "test (exact null distribution up to 50 untied differences, otherwise the normal "
-         "approximation with tie correction); zero differences: <b>" +
+         "test (exact null distribution up to 50 differences, given their ties; otherwise the "
+         "normal approximation with tie correction); zero differences: <b>" +
          esc(to_string(o.zero_rule)) +
-         "</b> rule. p (Holm) adjusts for testing all statistics at once; a verdict needs "
+         "</b> rule. p (Holm) adjusts for testing the primary family at once; a verdict needs "
          "p (Holm) &lt; " +
          format_number(o.alpha) +
+         ". Exploratory statistics are not adjusted and get no verdict. The sign test counts "
+         "the prompts where B is better against those where it is worse (ties left out); its "
+         "interval is the exact Clopper&ndash;Pearson interval of that share. Several clips of "
+         "a prompt (seeds) are averaged first: prompts are the independent unit" +
          ". The interval is a BCa bootstrap interval of "
          "the mean difference (" +
          std::to_string(o.bootstrap_resamples) + " resamples, seed " +
@@ -248,7 +293,8 @@ std::string method_note(const Comparison& c) {
 }  // namespace
 
 std::string comparison_to_html(const Comparison& c, const std::string& out_dir) {
-  return head(c) + "<main>" + overview(c) + verdict_table(c) + worst_keys(c, out_dir) +
+  return head(c) + "<main>" + overview(c) + per_prompt_charts(c, out_dir) +
+         statistics_table(c, true) + verdict_comparison(c) + statistics_table(c, false) +
          dot_plots(c) + leftovers(c, out_dir) + method_note(c) + "</main></body></html>\n";
 }
 

@@ -48,9 +48,9 @@ struct PlainFolders {
           b + "/" + name + ".json");
     }
     clipwarden::test::write_synthetic_report(scenario_clip(rng, levels[20], "a/only.mp4", false),
-                                            a + "/only_in_a.json");
+                                             a + "/only_in_a.json");
     clipwarden::test::write_synthetic_report(scenario_clip(rng, levels[20], "b/only.mp4", false),
-                                            b + "/only_in_b.json");
+                                             b + "/only_in_b.json");
   }
   std::string args() const { return sh(a) + " " + sh(b) + " --out " + sh(out) + " --quiet"; }
 };
@@ -65,11 +65,14 @@ TEST(CompareCli, InjectedFlickerMakesBWorseOnFlickerOnly) {
   EXPECT_EQ(c["pair_by"], "name");
   EXPECT_EQ(c["pairs"].size(), 20u);
 
+  // Flicker is exploratory by default: its unadjusted reading, no verdict.
   const json* flicker = find_compared(c, "flicker", "p95");
   ASSERT_NE(flicker, nullptr);
-  EXPECT_EQ((*flicker)["better"], "a");
+  EXPECT_EQ((*flicker)["family"], "exploratory");
+  EXPECT_EQ((*flicker)["better"], "neither");
+  EXPECT_EQ((*flicker)["unadjusted_better"], "a");
   EXPECT_LT((*flicker)["p_value"].get<double>(), 0.05);
-  EXPECT_LT((*flicker)["p_holm"].get<double>(), 0.05);
+  EXPECT_TRUE((*flicker)["p_holm"].is_null());
   EXPECT_GT((*flicker)["mean_diff"].get<double>(), 0.0);
   EXPECT_GT((*flicker)["ci_low"].get<double>(), 0.0);  // the interval excludes no change
   EXPECT_GE((*flicker)["wins_a"].get<int>(), 10);      // at least the 10 injected prompts
@@ -86,8 +89,20 @@ TEST(CompareCli, InjectedFlickerMakesBWorseOnFlickerOnly) {
   EXPECT_EQ((*drift)["better"], "neither");
   const json* coherence = find_compared(c, "coherence", "score");
   ASSERT_NE(coherence, nullptr);
+  EXPECT_EQ((*coherence)["family"], "primary");
   EXPECT_EQ((*coherence)["direction"], "higher coherence is better");
   EXPECT_EQ((*coherence)["better"], "a");
+  EXPECT_LT((*coherence)["p_holm"].get<double>(), 0.05);
+
+  // Named primary, flicker gets a verdict, Holm-adjusted within its family.
+  ASSERT_EQ(run_compare(folders.args() + " --primary flicker:p95 --primary coherence"), 0);
+  const json named = read_json_file(folders.out + "/compare.json");
+  const json* primary_flicker = find_compared(named, "flicker", "p95");
+  ASSERT_NE(primary_flicker, nullptr);
+  EXPECT_EQ((*primary_flicker)["family"], "primary");
+  EXPECT_EQ((*primary_flicker)["better"], "a");
+  EXPECT_EQ((*find_compared(named, "verdict", "pass_share"))["family"], "exploratory");
+  EXPECT_EQ(named["design"]["primary_family_size"], 2);
 
   std::set<std::pair<std::string, std::string>> unpaired;
   for (const auto& u : c["unpaired"])
@@ -117,6 +132,7 @@ TEST(CompareCli, UsageAndInputErrors) {
   EXPECT_EQ(run_compare(folders.args() + " --pair-by seed"), 2);
   EXPECT_EQ(run_compare(folders.args() + " --stat p99"), 2);
   EXPECT_EQ(run_compare(folders.args() + " --resamples 5"), 2);
+  EXPECT_EQ(run_compare(folders.args() + " --primary no_such_metric"), 2);
   EXPECT_EQ(run_compare(sh(folders.root.file("missing")) + " " + sh(folders.b) + " --out " +
                         sh(folders.out)),
             3);

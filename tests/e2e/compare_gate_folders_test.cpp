@@ -2,7 +2,7 @@
 // two seeds per prompt, a hostile prompt id, a clip the gate could not read
 // and a prompt only B has; then the structure of compare.json key by key and
 // the safety of compare.html. Synthetic, invented report values (see
-// tests/support/compare_reports.h); the queue lines follow DESIGN.md's
+// tests/support/compare_reports.h); the queue lines follow docs/gate.md's
 // description of the gate's queue.jsonl.
 #include <gtest/gtest.h>
 
@@ -119,8 +119,8 @@ TEST(CompareGateFolders, PairsByPromptAveragesSeedsAndListsLeftovers) {
   EXPECT_EQ(c["unpaired"][0]["key"], "extra-only-b");
   ASSERT_EQ(c["failed"].size(), 1u);
   EXPECT_NE(c["failed"][0]["error"].get<std::string>().find("not a video file"), std::string::npos);
-  EXPECT_EQ((*find_compared(c, "flicker", "p95"))["better"], "a");
-  EXPECT_EQ((*find_compared(c, "drift", "p95"))["better"], "neither");
+  EXPECT_EQ((*find_compared(c, "flicker", "p95"))["unadjusted_better"], "a");
+  EXPECT_EQ((*find_compared(c, "drift", "p95"))["unadjusted_better"], "neither");
 
   // Pairing by report name pairs seed with seed (24 pairs, nothing averaged);
   // by id nothing pairs ("a-..." vs "b-..."), which is bad usage.
@@ -137,16 +137,20 @@ TEST(CompareGateFolders, CompareJsonStructureKeyByKey) {
   const json c = read_json_file(folders.out + "/compare.json");
   ASSERT_TRUE(c.is_object());
   EXPECT_EQ(keys_of(c), (std::set<std::string>{"schema", "tool", "inputs", "pair_by", "differences",
-                                               "aggregation", "averaged", "settings", "metrics",
-                                               "pairs", "unpaired", "failed"}));
-  EXPECT_EQ(c["schema"], "clipwarden.compare/1");
+                                               "aggregation", "averaged", "most_clips_per_key",
+                                               "settings", "headline", "design", "verdicts",
+                                               "metrics", "pairs", "unpaired", "failed"}));
+  EXPECT_EQ(c["schema"], "clipwarden.compare/2");
   EXPECT_EQ(c["differences"], "B - A");
   EXPECT_EQ(c["settings"]["zero_rule"], "wilcox");
 
   const std::set<std::string> metric_keys = {
-      "metric",  "statistic", "n",         "mean_diff",   "median_diff", "ci_low",
-      "ci_high", "p_value",   "p_holm",    "effect_size", "wins_a",      "wins_b",
-      "ties",    "better",    "direction", "test",        "bootstrap"};
+      "metric",    "statistic",   "family",      "n",
+      "mean_diff", "median_diff", "ci_low",      "ci_high",
+      "p_value",   "p_holm",      "effect_size", "wins_a",
+      "wins_b",    "ties",        "better",      "unadjusted_better",
+      "direction", "test",        "sign_test",   "seed_spread",
+      "bootstrap"};
   std::set<std::string> compared;
   for (const auto& m : c["metrics"]) {
     const std::string key =
@@ -155,10 +159,18 @@ TEST(CompareGateFolders, CompareJsonStructureKeyByKey) {
     EXPECT_EQ(keys_of(m), metric_keys) << key;
     EXPECT_TRUE(m["n"].is_number_integer()) << key;
     for (const char* number :
-         {"mean_diff", "median_diff", "ci_low", "ci_high", "p_value", "p_holm", "effect_size"})
+         {"mean_diff", "median_diff", "ci_low", "ci_high", "p_value", "effect_size"})
       EXPECT_TRUE(m[number].is_number()) << key << " " << number;
     EXPECT_LE(m["ci_low"].get<double>(), m["ci_high"].get<double>()) << key;
-    EXPECT_GE(m["p_holm"].get<double>(), m["p_value"].get<double>()) << key;
+    // Holm applies within the primary family only.
+    if (m["family"] == "primary")
+      EXPECT_GE(m["p_holm"].get<double>(), m["p_value"].get<double>()) << key;
+    else
+      EXPECT_TRUE(m["p_holm"].is_null() && m["better"] == "neither") << key;
+    EXPECT_EQ(m["sign_test"]["b_better"], m["wins_b"]) << key;
+    EXPECT_EQ(m["sign_test"]["b_worse"], m["wins_a"]) << key;
+    // Two seeds per prompt on both sides: the spread is known.
+    EXPECT_TRUE(m["seed_spread"]["noise_of_prompt_difference"].is_number()) << key;
     EXPECT_EQ(m["wins_a"].get<int>() + m["wins_b"].get<int>() + m["ties"].get<int>(),
               m["n"].get<int>())
         << key;
@@ -176,6 +188,16 @@ TEST(CompareGateFolders, CompareJsonStructureKeyByKey) {
       EXPECT_TRUE(compared.count(std::string(metric) + "." + statistic))
           << metric << " " << statistic;
   EXPECT_TRUE(compared.count("coherence.score"));
+  EXPECT_TRUE(compared.count("verdict.pass_share"));
+  EXPECT_TRUE(compared.count("verdict.reject_share"));
+  EXPECT_EQ(c["design"]["prompts"], 12);
+  EXPECT_EQ(c["design"]["primary_family_size"], 3);
+  EXPECT_TRUE(c["headline"].is_array() && !c["headline"].empty());
+  EXPECT_EQ(c["verdicts"]["prompts"]["both_pass"].get<int>() +
+                c["verdicts"]["prompts"]["only_a_passes"].get<int>() +
+                c["verdicts"]["prompts"]["only_b_passes"].get<int>() +
+                c["verdicts"]["prompts"]["neither_passes"].get<int>(),
+            12);
   EXPECT_FALSE(compared.count("flicker.mean"));
 
   for (const auto& p : c["pairs"]) {

@@ -6,8 +6,13 @@
 // Where each side uses which method, and why the settings are chosen:
 // - scipy 1.10's method='auto' is exact for n <= 50 unless there are zeros
 //   (then it falls back to the normal approximation). With ties it stays
-//   "exact" but truncates the tied rank sum, which is not a valid exact test,
-//   so tied samples are compared against scipy's method='approx'.
+//   "exact" but truncates the tied rank sum, which is not a valid exact test.
+//   Ours is exact with ties too, conditional on them (every sign pattern of
+//   the observed average ranks): that is checked against
+//   scipy.stats.permutation_test on the pairs (d, 0), which enumerates every
+//   swap within a pair, i.e. every sign flip of d (n <= 17, 2^17 patterns).
+//   Our normal approximation on tied samples is checked against scipy's
+//   method='approx'.
 // - Our default drops zeros first ("wilcox") and then uses the exact
 //   distribution of the remaining ranks when they are untied; that case is
 //   compared against scipy on the sample with its zeros removed.
@@ -40,6 +45,18 @@ for c in cases:
     d = np.array(c["d"], dtype=float)
     if c["drop_zeros_first"]:
         d = d[d != 0]
+    if c["scipy_method"] == "permutation":
+        ranks = stats.rankdata(np.abs(d))
+        def r_plus(x, y, axis=-1):
+            return np.sum(ranks * ((x - y) > 0), axis=axis)
+        r = stats.permutation_test((d, np.zeros_like(d)), r_plus, vectorized=True,
+                                   permutation_type="samples", n_resamples=np.inf,
+                                   alternative=c["alternative"])
+        r_plus_obs = float(r.statistic)
+        statistic = min(r_plus_obs, float(ranks.sum()) - r_plus_obs) \
+            if c["alternative"] == "two-sided" else r_plus_obs
+        out.append([statistic, float(r.pvalue)])
+        continue
     r = stats.wilcoxon(d, zero_method=c["zero_method"], correction=c["correction"],
                        alternative=c["alternative"], method=c["scipy_method"])
     out.append([float(r.statistic), float(r.pvalue)])
@@ -89,10 +106,13 @@ std::vector<WilcoxonCase> make_cases() {
       const std::string suffix = " n=" + std::to_string(n) + " " + name_of(alt);
       cases.push_back({"continuous" + suffix, continuous, ZeroMethod::wilcox, alt, false,
                        TestMethod::automatic, small ? TestMethod::exact : TestMethod::normal});
-      cases.push_back({"ties" + suffix, tied, ZeroMethod::wilcox, alt, false, TestMethod::automatic,
+      cases.push_back({"ties" + suffix, tied, ZeroMethod::wilcox, alt, false, TestMethod::normal,
                        TestMethod::normal, "approx"});
       cases.push_back({"ties, continuity correction" + suffix, tied, ZeroMethod::wilcox, alt, true,
-                       TestMethod::automatic, TestMethod::normal, "approx"});
+                       TestMethod::normal, TestMethod::normal, "approx"});
+      if (n <= 17)
+        cases.push_back({"ties, exact given the ties" + suffix, tied, ZeroMethod::wilcox, alt,
+                         false, TestMethod::automatic, TestMethod::exact, "permutation"});
       for (ZeroMethod z : {ZeroMethod::wilcox, ZeroMethod::pratt, ZeroMethod::zsplit})
         cases.push_back({std::string("zeros+ties ") + name_of(z) + suffix, zeros_and_ties, z, alt,
                          false, TestMethod::normal, TestMethod::normal, "approx"});

@@ -50,6 +50,7 @@ Report synthetic_report(const SyntheticClip& clip) {
   }
   r.segments = clip.segments;
   r.summary.coherence = clip.coherence;
+  r.verdict.status = clip.verdict;
   r.summary.stream.video_duration_s = r.clip.duration_s;
   return r;
 }

@@ -17,6 +17,7 @@ struct SyntheticClip {
   std::map<std::string, std::vector<double>> series;  // per-frame values by metric
   std::vector<Segment> segments;
   double coherence = 100;
+  Verdict verdict = Verdict::pass;
 };
 
 // A complete report: clip facts for 24 fps, one row per frame, and the

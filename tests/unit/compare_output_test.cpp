@@ -1,4 +1,4 @@
-// The pieces of `clipwarden compare` that are our own contract (DESIGN.md's
+// The pieces of `clipwarden compare` that are our own contract (docs/compare.md's
 // compare.json fields, HTML escaping rules of the HTML 5 spec for text and
 // attribute values, RFC 3986 percent-encoding): escaping, the values read
 // from a report, and the page for edge cases.
@@ -58,7 +58,7 @@ TEST(ComparePage, EmptyComparisonStillRenders) {
   EXPECT_EQ(page.find("<a>"), std::string::npos);
   EXPECT_NE(page.find("</html>"), std::string::npos);
   const auto json = comparison_to_json(c);
-  EXPECT_EQ(json["schema"], "clipwarden.compare/1");
+  EXPECT_EQ(json["schema"], "clipwarden.compare/2");
   EXPECT_TRUE(json["metrics"].empty());
 }
 

@@ -78,6 +78,28 @@ TEST(Wilcoxon, CriticalValuesOfTheStandardTable) {
   }
 }
 
+TEST(Wilcoxon, ExactGivenTheTies) {
+  // d = 1, 1, 2, -2: |d| ranks 1.5 1.5 3.5 3.5, R+ = 6.5, R- = 3.5. By hand,
+  // the 16 sign patterns of the doubled ranks {3, 3, 7, 7} give the doubled
+  // sums 0 (1 pattern), 3 (2), 6 (1), 7 (2), 10 (4), 13 (2), 14 (1), 17 (2),
+  // 20 (1); the observed 13 has P(>= 13) = 6/16 and P(<= 13) = 12/16, so the
+  // two-sided p is 2 * 6/16 = 0.75.
+  const auto r = st::wilcoxon_signed_rank(std::vector<double>{1, 1, 2, -2});
+  EXPECT_TRUE(r.ties);
+  EXPECT_EQ(r.method_used, st::TestMethod::exact);
+  EXPECT_EQ(r.r_plus, 6.5);
+  EXPECT_DOUBLE_EQ(r.p_value, 0.75);
+  // Every prompt moving by the same whole step (a verdict share with one
+  // clip per prompt): all ranks tied, and the exact floor 2/2^n holds, where
+  // the normal approximation would give 0.0253 at n = 5 (z = -7.5/sqrt(11.25)).
+  EXPECT_DOUBLE_EQ(st::wilcoxon_signed_rank(std::vector<double>(5, -1.0)).p_value, 2.0 / 32);
+  EXPECT_DOUBLE_EQ(st::wilcoxon_signed_rank(std::vector<double>(8, 1.0)).p_value, 2.0 / 256);
+  st::WilcoxonOptions normal;
+  normal.method = st::TestMethod::normal;
+  EXPECT_NEAR(st::wilcoxon_signed_rank(std::vector<double>(5, -1.0), normal).p_value,
+              2 * st::normal_cdf(-7.5 / std::sqrt(11.25)), 1e-15);
+}
+
 TEST(Wilcoxon, NullCountsSumToAllSignPatterns) {
   for (int n : {1, 2, 10, 50}) {
     const auto counts = st::signed_rank_null_counts(n);
