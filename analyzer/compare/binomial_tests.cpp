@@ -57,11 +57,29 @@ double binomial_upper_tail(int k, int n, double p) {
   return pmf_sum(k, n, n, p);
 }
 
+namespace {
+
+// P(X <= k) at p = 1/2, k below the centre. Up to n = 1022 (where 2^-n is
+// still a normal double) the terms come from C(n, i + 1) = C(n, i) (n - i) /
+// (i + 1) on 2^-n: exact while the coefficients stay below 2^53, so small
+// studies get exact answers (2/2^n, 18/256); beyond, the log form.
+double lower_tail_half(int k, int n) {
+  if (n > 1022) return binomial_cdf(k, n, 0.5);
+  double term = std::ldexp(1.0, -n), sum = 0;
+  for (int i = 0; i <= k; ++i) {
+    sum += term;
+    term = term * (n - i) / (i + 1);
+  }
+  return sum;
+}
+
+}  // namespace
+
 double binomial_test_half(int k, int n) {
   if (n <= 0) return 1;
   const int smaller = std::min(k, n - k);
   if (2 * smaller == n) return 1;  // k is the centre: every outcome is at most as likely
-  return std::min(1.0, 2.0 * binomial_cdf(smaller, n, 0.5));
+  return std::min(1.0, 2.0 * lower_tail_half(smaller, n));
 }
 
 ProportionInterval clopper_pearson(int k, int n, double confidence_level) {

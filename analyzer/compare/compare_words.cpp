@@ -23,7 +23,7 @@ std::string p_value(double p) {
   if (!std::isfinite(p)) return "n/a";
   if (p < 1e-4) return "< 0.0001";
   char buffer[32];
-  std::snprintf(buffer, sizeof buffer, "%.2g", p);
+  std::snprintf(buffer, sizeof buffer, "%.3g", p);
   return buffer;
 }
 

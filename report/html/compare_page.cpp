@@ -67,6 +67,16 @@ std::string lead_badge(const MetricComparison& m) {
   return "<span class=\"badge neither\">&ndash;</span>";
 }
 
+// A primary statistic without a verdict says whether the prompts at hand
+// could have given one at all.
+std::string badge(const Comparison& c, const MetricComparison& m) {
+  if (!m.primary) return lead_badge(m);
+  if (m.better == "neither" && !c.design.primary_can_reach)
+    return "<span class=\"badge neither\" title=\"the smallest Holm-adjusted p these prompts "
+           "allow is not below the level\">too few prompts to tell</span>";
+  return verdict_badge(m);
+}
+
 std::string head(const Comparison& c) {
   return "<!DOCTYPE html>\n<html lang=\"en\"><head><meta charset=\"utf-8\">"
          "<meta http-equiv=\"Content-Security-Policy\" content=\"default-src 'none'; "
@@ -102,7 +112,7 @@ std::string share_interval(const MetricComparison& m) {
          " &hellip; " + pct(m.b_better_high) + "</span>";
 }
 
-std::string verdict_row(const MetricComparison& m) {
+std::string verdict_row(const Comparison& c, const MetricComparison& m) {
   const std::string& side = m.primary ? m.better : m.unadjusted_better;
   const char* row = !m.primary ? "" : side == "a" ? "row-worse" : side == "b" ? "row-better" : "";
   return std::string("<tr class=\"") + row + "\"><th scope=\"row\"><span class=\"metric\">" +
@@ -118,7 +128,7 @@ std::string verdict_row(const MetricComparison& m) {
          "</td><td class=\"num\">" + format_p(m.p_value) + "<br><span class=\"muted small\">" +
          esc(m.test) + "</span></td><td class=\"num\">" +
          (m.primary ? format_p(m.p_holm) : "<span class=\"muted\">not adjusted</span>") +
-         "</td><td>" + (m.primary ? verdict_badge(m) : lead_badge(m)) + "</td></tr>";
+         "</td><td>" + badge(c, m) + "</td></tr>";
 }
 
 std::string statistics_table(const Comparison& c, bool primary) {
@@ -141,7 +151,7 @@ std::string statistics_table(const Comparison& c, bool primary) {
        (primary ? "Verdict" : "Lead") + "</th></tr></thead><tbody>";
   int rows = 0;
   for (const auto& m : c.metrics)
-    if (m.primary == primary) s += verdict_row(m), ++rows;
+    if (m.primary == primary) s += verdict_row(c, m), ++rows;
   if (rows == 0) return "";
   return s + "</tbody></table></div></section>\n";
 }
@@ -193,8 +203,8 @@ std::string per_prompt_charts(const Comparison& c, const std::string& out_dir) {
   for (size_t column : columns) {
     const auto& m = c.metrics[column];
     s += "<figure class=\"wide\"><figcaption><b>" + esc(m.what.metric) + "</b> " +
-         esc(m.what.statistic) + " " + (m.primary ? verdict_badge(m) : lead_badge(m)) +
-         " <span class=\"muted\">" + esc(m.what.direction) + "</span></figcaption>" +
+         esc(m.what.statistic) + " " + badge(c, m) + " <span class=\"muted\">" +
+         esc(m.what.direction) + "</span></figcaption>" +
          html_detail::prompt_difference_chart(c, column) + worst_prompts_table(c, column, out_dir) +
          "</figure>";
   }
@@ -237,8 +247,8 @@ std::string dot_plots(const Comparison& c) {
   for (size_t i = 0; i < c.metrics.size(); ++i) {
     const auto& m = c.metrics[i];
     s += "<figure>" + html_detail::paired_dot_plot(c, i) + "<figcaption><b>" + esc(m.what.metric) +
-         "</b> " + esc(m.what.statistic) + " " + (m.primary ? verdict_badge(m) : lead_badge(m)) +
-         "<br><span class=\"muted\">" + esc(m.what.direction) + "</span></figcaption></figure>";
+         "</b> " + esc(m.what.statistic) + " " + badge(c, m) + "<br><span class=\"muted\">" +
+         esc(m.what.direction) + "</span></figcaption></figure>";
   }
   return s + "</div></details></section>\n";
 }
