@@ -74,8 +74,8 @@ nlohmann::json drift_truth(const lanternfish::ShotParams& drift) {
   const double t = (kFrames - 1) / kFps;
   const cv::Rect2d box = clean_scene.lantern_box(t);
   const inject::SoftMask body = inject::feathered_ellipse({480, 270}, box, 0.15);
-  const double de = inject::ciede2000(inject::mean_lab(clean_scene.render(t), body),
-                                      inject::mean_lab(drift_scene.render(t), body));
+  const double de = color::ciede2000(inject::as_lab(inject::mean_lab(clean_scene.render(t), body)),
+                                     inject::as_lab(inject::mean_lab(drift_scene.render(t), body)));
   const int first = static_cast<int>(drift.drift_start_s * kFps) + 1;
   nlohmann::json track = nlohmann::json::array();
   for (int i = first; i < kFrames; ++i) {

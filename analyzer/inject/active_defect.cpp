@@ -184,7 +184,8 @@ void ActiveDefect::apply_colour_drift(cv::Mat& frame, const FrameContext& ctx, c
   const double m = chroma_shift_for_de(clean_lab, chroma_direction_, target);
   shift_chroma(frame, m * chroma_direction_, mask);
   // What the viewer gets after 8-bit rounding and gamut clipping.
-  details_["de2000_last"] = round3(ciede2000(clean_lab, mean_lab(frame, mask)));
+  details_["de2000_last"] =
+      round3(color::ciede2000(as_lab(clean_lab), as_lab(mean_lab(frame, mask))));
 }
 
 void ActiveDefect::apply_strobe(cv::Mat& frame, const FrameContext& ctx) {

@@ -56,9 +56,6 @@ void map_linear(cv::Mat& bgr, const SoftMask& mask, F f) {
   }
 }
 
-double degrees(double rad) { return rad * 180.0 / CV_PI; }
-double radians(double deg) { return deg * CV_PI / 180.0; }
-
 }  // namespace
 
 SoftMask whole_frame(cv::Size frame) { return {cv::Rect(0, 0, frame.width, frame.height), {}}; }
@@ -213,50 +210,11 @@ void displace(cv::Mat& bgr, cv::Point2d shift) {
   bgr = moved;
 }
 
-double ciede2000(const cv::Vec3d& lab1, const cv::Vec3d& lab2) {
-  // Sharma, Wu & Dalal (2005), equations 2-20, with kL = kC = kH = 1.
-  const double c1 = std::hypot(lab1[1], lab1[2]), c2 = std::hypot(lab2[1], lab2[2]);
-  const double c_bar7 = std::pow((c1 + c2) / 2, 7);
-  const double g = 0.5 * (1 - std::sqrt(c_bar7 / (c_bar7 + std::pow(25.0, 7))));
-  const double a1 = (1 + g) * lab1[1], a2 = (1 + g) * lab2[1];
-  const double cp1 = std::hypot(a1, lab1[2]), cp2 = std::hypot(a2, lab2[2]);
-  auto hue = [](double b, double a) {
-    if (a == 0 && b == 0) return 0.0;
-    const double h = degrees(std::atan2(b, a));
-    return h < 0 ? h + 360 : h;
-  };
-  const double h1 = hue(lab1[2], a1), h2 = hue(lab2[2], a2);
-  const double dl = lab2[0] - lab1[0], dc = cp2 - cp1;
-  double dh = 0;
-  if (cp1 * cp2 != 0) {
-    dh = h2 - h1;
-    if (dh > 180) dh -= 360;
-    else if (dh < -180) dh += 360;
-  }
-  const double d_big_h = 2 * std::sqrt(cp1 * cp2) * std::sin(radians(dh / 2));
-  const double l_bar = (lab1[0] + lab2[0]) / 2, cp_bar = (cp1 + cp2) / 2;
-  double h_bar = h1 + h2;
-  if (cp1 * cp2 != 0) {
-    if (std::fabs(h1 - h2) <= 180) h_bar = (h1 + h2) / 2;
-    else h_bar = (h1 + h2 < 360) ? (h1 + h2 + 360) / 2 : (h1 + h2 - 360) / 2;
-  }
-  const double t = 1 - 0.17 * std::cos(radians(h_bar - 30)) + 0.24 * std::cos(radians(2 * h_bar)) +
-                   0.32 * std::cos(radians(3 * h_bar + 6)) - 0.20 * std::cos(radians(4 * h_bar - 63));
-  const double d_theta = 30 * std::exp(-std::pow((h_bar - 275) / 25, 2));
-  const double cp_bar7 = std::pow(cp_bar, 7);
-  const double r_c = 2 * std::sqrt(cp_bar7 / (cp_bar7 + std::pow(25.0, 7)));
-  const double l50 = (l_bar - 50) * (l_bar - 50);
-  const double s_l = 1 + 0.015 * l50 / std::sqrt(20 + l50);
-  const double s_c = 1 + 0.045 * cp_bar, s_h = 1 + 0.015 * cp_bar * t;
-  const double r_t = -std::sin(radians(2 * d_theta)) * r_c;
-  const double tl = dl / s_l, tc = dc / s_c, th = d_big_h / s_h;
-  return std::sqrt(tl * tl + tc * tc + th * th + r_t * tc * th);
-}
-
 double chroma_shift_for_de(const cv::Vec3d& lab, const cv::Vec2d& direction, double target_de) {
   if (target_de <= 0) return 0;
   auto de_at = [&](double m) {
-    return ciede2000(lab, {lab[0], lab[1] + m * direction[0], lab[2] + m * direction[1]});
+    return color::ciede2000(as_lab(lab),
+                            {lab[0], lab[1] + m * direction[0], lab[2] + m * direction[1]});
   };
   double lo = 0, hi = 1;
   while (de_at(hi) < target_de && hi < 512) hi *= 2;

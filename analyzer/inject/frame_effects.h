@@ -5,6 +5,8 @@
 
 #include <opencv2/core.hpp>
 
+#include "analyzer/color/ciede2000.h"
+
 namespace clipwarden::inject {
 
 // A weight in [0, 1] over part of a frame: `weight` (CV_32FC1) covers `roi`.
@@ -58,11 +60,10 @@ void fade_into_surroundings(cv::Mat& bgr, const SoftMask& mask, double amount);
 // Translates the whole picture by `shift` pixels; edges are replicated.
 void displace(cv::Mat& bgr, cv::Point2d shift);
 
-// CIEDE2000 colour difference (Sharma, Wu & Dalal 2005, eqs. 1-20) between
-// two CIELAB colours.
-double ciede2000(const cv::Vec3d& lab1, const cv::Vec3d& lab2);
+// A CIELAB colour held as (L*, a*, b*), for color::ciede2000.
+inline color::Lab as_lab(const cv::Vec3d& lab) { return {lab[0], lab[1], lab[2]}; }
 
-// The length m such that ciede2000(lab, lab + m * (0, direction)) equals
+// The length m such that color::ciede2000(lab, lab + m * (0, direction)) equals
 // `target_de` (bisection; direction is a unit vector in the a*b* plane).
 double chroma_shift_for_de(const cv::Vec3d& lab, const cv::Vec2d& direction, double target_de);
 
