@@ -62,10 +62,21 @@ TEST(ComparePage, EmptyComparisonStillRenders) {
   EXPECT_TRUE(json["metrics"].empty());
 }
 
-TEST(CompareOptions, NamesRoundTrip) {
-  for (auto p : {PairBy::id, PairBy::prompt_id, PairBy::name})
-    EXPECT_EQ(pair_by_from_string(to_string(p)), p);
+TEST(CompareOptions, NamesAreTheDocumentedOnes) {
+  // --pair-by as docs/compare.md spells it; --zero-rule as scipy.stats.wilcoxon
+  // names its zero_method values ("wilcox", "pratt", "zsplit").
+  const std::vector<std::pair<const char*, PairBy>> pair_by = {
+      {"id", PairBy::id}, {"prompt_id", PairBy::prompt_id}, {"name", PairBy::name}};
+  for (const auto& [name, p] : pair_by) {
+    EXPECT_STREQ(to_string(p), name);
+    EXPECT_EQ(pair_by_from_string(name), p) << name;
+  }
   EXPECT_FALSE(pair_by_from_string("automatic").has_value());
-  for (auto z : {ZeroRule::wilcox, ZeroRule::pratt, ZeroRule::zsplit})
-    EXPECT_EQ(zero_rule_from_string(to_string(z)), z);
+  const std::vector<std::pair<const char*, ZeroRule>> zero_rules = {
+      {"wilcox", ZeroRule::wilcox}, {"pratt", ZeroRule::pratt}, {"zsplit", ZeroRule::zsplit}};
+  for (const auto& [name, z] : zero_rules) {
+    EXPECT_STREQ(to_string(z), name);
+    EXPECT_EQ(zero_rule_from_string(name), z) << name;
+  }
+  EXPECT_FALSE(zero_rule_from_string("Pratt").has_value());
 }

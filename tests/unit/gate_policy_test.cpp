@@ -46,6 +46,70 @@ TEST(GatePolicy, DefaultRoundTripsUnchanged) {
   EXPECT_EQ(back->rules.size(), default_policy().rules.size());
 }
 
+// A policy file as docs/gate.md describes the format, written by hand: every
+// hard rule and every segment field differs from the default, so a key the
+// writer leaves out or the reader ignores shows.
+const char* kNightShootPolicy = R"({
+  "schema": "clipwarden.policy/1",
+  "name": "night-shoot",
+  "rules": {
+    "flash_hazard_rejects": false,
+    "stream_mismatch_review_s": null,
+    "coherence_review_below": 61.5,
+    "coherence_reject_below": 30.5,
+    "dropped_frames_review": 4,
+    "decode_warnings_review": false
+  },
+  "metrics": {
+    "flicker": {
+      "segment": {"enter": 0.75, "leave": 0.5, "min_frames": 3, "merge_gap_frames": 5, "baseline_k": 2.5,
+                  "review_peak": 1.25, "reject_peak": null},
+      "thresholds": {"p95": {"review": 0.375, "reject": 0.625}, "segment_count": {"review": 2, "reject": null}}
+    }
+  }
+})";
+
+TEST(GatePolicy, HandWrittenFileReadsIntoEveryFieldAndIsWrittenBack) {
+  auto p = parse_policy(kNightShootPolicy, "night.json");
+  ASSERT_TRUE(p.ok()) << p.error().message();
+  EXPECT_EQ(p->name, "night-shoot");
+  EXPECT_FALSE(p->flash_hazard_rejects);
+  EXPECT_FALSE(p->stream_mismatch_review_s.has_value());
+  EXPECT_EQ(p->coherence_review_below, 61.5);
+  EXPECT_EQ(p->coherence_reject_below, 30.5);
+  EXPECT_EQ(p->dropped_frames_review, 4);
+  EXPECT_FALSE(p->decode_warnings_review);
+  ASSERT_EQ(p->segments.count("flicker"), 1u);
+  const SegmentRule& seg = p->segments.at("flicker");
+  EXPECT_EQ(seg.enter, 0.75);
+  EXPECT_EQ(seg.leave, 0.5);
+  EXPECT_EQ(seg.min_frames, 3);
+  EXPECT_EQ(seg.merge_gap_frames, 5);
+  EXPECT_EQ(seg.baseline_k, 2.5);
+  EXPECT_EQ(seg.review_peak, 1.25);
+  EXPECT_FALSE(std::isfinite(seg.reject_peak));  // null: never rejects from the peak
+  const SummaryRule* p95 = find_rule(*p, "flicker", "p95");
+  ASSERT_NE(p95, nullptr);
+  EXPECT_EQ(p95->review, 0.375);
+  EXPECT_EQ(p95->reject, 0.625);
+  const SummaryRule* count = find_rule(*p, "flicker", "segment_count");
+  ASSERT_NE(count, nullptr);
+  EXPECT_EQ(count->review, 2);
+  EXPECT_FALSE(count->reject.has_value());
+
+  // Written back: the hand-written keys with the same values. Other metrics
+  // keep the default's rules (the file is a patch over the default) and are
+  // not compared here.
+  const nlohmann::json written = nlohmann::json::parse(policy_to_json(*p).dump());
+  const nlohmann::json expected = nlohmann::json::parse(kNightShootPolicy);
+  EXPECT_EQ(written["schema"], expected["schema"]);
+  EXPECT_EQ(written["name"], expected["name"]);
+  EXPECT_EQ(written["rules"], expected["rules"]);
+  EXPECT_EQ(written["metrics"]["flicker"]["segment"], expected["metrics"]["flicker"]["segment"]);
+  for (const auto& [statistic, levels] : expected["metrics"]["flicker"]["thresholds"].items())
+    EXPECT_EQ(written["metrics"]["flicker"]["thresholds"][statistic], levels) << statistic;
+}
+
 TEST(GatePolicy, DefaultCoversTheInitialMetricsWithPossibleThresholds) {
   const Policy& p = default_policy();
   // flash has no segment rule: its metric writes the WCAG hazard segments

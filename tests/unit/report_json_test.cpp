@@ -6,7 +6,9 @@
 #include <filesystem>
 #include <fstream>
 
+#include "analyzer/core/assets.h"
 #include "clipwarden/report_io.h"
+#include "support/clips.h"
 #include "support/report_fixtures.h"
 
 using namespace clipwarden;
@@ -37,11 +39,132 @@ TEST(ReportJson, SchemaViolationsNameThePath) {
   EXPECT_FALSE(validate_report_json(j, "r.json").ok());
 }
 
-TEST(ReportJson, RoundTripKeepsEveryField) {
-  const Report r = fixtures::small_report();
-  auto back = report_from_json(report_to_json(r), "mem");
+namespace {
+
+// A 3-frame report in which every field the schema knows has a value other
+// than its default, so a field the writer leaves out or the reader drops
+// shows as a difference from the hand-written document below.
+Report full_report() {
+  Report r;
+  r.tool_version = "9.8.7";
+  r.clip = {"takes/lantern.mp4",
+            std::string(64, 'b'),
+            "matroska,webm",
+            "hevc",
+            640,
+            360,
+            3.0,
+            3,
+            1.0,
+            "yuv420p10le",
+            10,
+            90,
+            {true, "opus", 1.25, 0.75}};
+  r.settings = {{"preset", "fast"}, {"working_long_side", 320}};
+  r.frame_times_s = {0.0, 0.5, 1.0};
+  r.series = {{"warp_error", {kUndefined, 0.25, 0.125}}, {"flicker", {0.5, 0.0625, kUndefined}}};
+  r.segments = {{"flicker", 0, 1, 0.0, 0.5, 0.5, 0, Severity::reject}};
+  r.summary.metrics = {{"warp_error", 0.1875, 0.1875, 0.246875, 0.25},
+                       {"flicker", kUndefined, kUndefined, kUndefined, kUndefined}};
+  r.summary.coherence = 42.5;
+  r.summary.stream = {1.0, 1.25, 0.25, true, 1, 2};
+  r.summary.details = {{"flicker", {{"pulses", 2}}}, {"flash", {{"hazard", true}}}};
+  TrackedObject o;
+  o.id = 7;
+  o.first_frame = 1;
+  o.last_frame = 2;
+  o.vanished = true;
+  o.end_reason = "vanished";
+  o.detail = nlohmann::json::parse(R"({
+    "kind": "moving", "reference_frame": 1, "working_size": [320, 180], "frames": [1, 2],
+    "boxes": [[10, 20, 30, 40], [12, 20, 30, 40]], "boxes_frac": [[0.5, 0.25, 0.125, 0.0625], [null, null, null, null]],
+    "drift": [0, 1.5], "color_de00": [0, 3.5], "structure": [0, 0.25], "size_pct": [0, -12.5],
+    "size_window_pct": [0, -6.25], "visible_pct": [100, 50], "peak_drift": 1.5, "peak_frame": 2,
+    "drift_rate_per_s": 3, "color_de00_rate_per_s": 7,
+    "drift_segments": [{"start_frame": 1, "end_frame": 2, "start_s": 0.5, "end_s": 1, "peak": 1.5, "peak_frame": 2}]
+  })");
+  r.objects = {o};
+  r.verdict = {Verdict::reject, {"flicker segment peak 0.5 >= reject 0.1 (frame 0, 0.00 s)"}};
+  r.notes = {"a note"};
+  return r;
+}
+
+// The report above as docs/ and report/schema describe it, written by hand:
+// frames row-wise with null for undefined values, a summary entry per metric
+// with its details, details of a metric without a series on their own.
+const char* kFullReportJson = R"json({
+  "schema": "clipwarden.report/1",
+  "tool": {"name": "clipwarden", "version": "9.8.7"},
+  "clip": {"path": "takes/lantern.mp4", "sha256": "bbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbb",
+           "container": "matroska,webm", "codec": "hevc", "width": 640, "height": 360, "fps": 3.0,
+           "frame_count": 3, "duration_s": 1.0, "pix_fmt": "yuv420p10le", "bit_depth": 10, "rotation": 90,
+           "audio": {"present": true, "codec": "opus", "duration_s": 1.25, "silent_from_s": 0.75}},
+  "settings": {"preset": "fast", "working_long_side": 320},
+  "frames": [{"index": 0, "t": 0.0, "warp_error": null, "flicker": 0.5},
+             {"index": 1, "t": 0.5, "warp_error": 0.25, "flicker": 0.0625},
+             {"index": 2, "t": 1.0, "warp_error": 0.125, "flicker": null}],
+  "segments": [{"metric": "flicker", "start_frame": 0, "end_frame": 1, "start_s": 0.0, "end_s": 0.5,
+                "peak": 0.5, "peak_frame": 0, "severity": "reject"}],
+  "summary": {"warp_error": {"mean": 0.1875, "p50": 0.1875, "p95": 0.246875, "max": 0.25},
+              "flicker": {"mean": null, "p50": null, "p95": null, "max": null, "details": {"pulses": 2}},
+              "flash": {"details": {"hazard": true}},
+              "coherence": 42.5,
+              "stream": {"video_duration_s": 1.0, "audio_duration_s": 1.25, "mismatch_s": 0.25, "vfr": true,
+                         "dropped_frames": 1, "duplicate_timestamps": 2}},
+  "objects": [{"id": 7, "first_frame": 1, "last_frame": 2, "vanished": true, "end_reason": "vanished",
+    "kind": "moving", "reference_frame": 1, "working_size": [320, 180], "frames": [1, 2],
+    "boxes": [[10, 20, 30, 40], [12, 20, 30, 40]], "boxes_frac": [[0.5, 0.25, 0.125, 0.0625], [null, null, null, null]],
+    "drift": [0, 1.5], "color_de00": [0, 3.5], "structure": [0, 0.25], "size_pct": [0, -12.5],
+    "size_window_pct": [0, -6.25], "visible_pct": [100, 50], "peak_drift": 1.5, "peak_frame": 2,
+    "drift_rate_per_s": 3, "color_de00_rate_per_s": 7,
+    "drift_segments": [{"start_frame": 1, "end_frame": 2, "start_s": 0.5, "end_s": 1, "peak": 1.5, "peak_frame": 2}]}],
+  "verdict": {"status": "reject", "reasons": ["flicker segment peak 0.5 >= reject 0.1 (frame 0, 0.00 s)"]},
+  "notes": ["a note"]
+})json";
+
+// Every property the schema declares at `schema` is present in `doc`
+// (recursively, through arrays' items): a field in the contract that the
+// writer never writes fails here. `where` names the path for the message.
+void expect_every_declared_property(const nlohmann::json& schema, const nlohmann::json& doc,
+                                    const std::string& where) {
+  if (schema.contains("properties") && doc.is_object()) {
+    for (const auto& [key, sub] : schema["properties"].items()) {
+      if (!doc.contains(key)) {
+        ADD_FAILURE() << where << "." << key << " is declared by the schema but not written";
+        continue;
+      }
+      expect_every_declared_property(sub, doc[key], where + "." + key);
+    }
+  }
+  if (schema.contains("items") && doc.is_array())
+    for (size_t i = 0; i < doc.size(); ++i)
+      expect_every_declared_property(schema["items"], doc[i],
+                                     where + "[" + std::to_string(i) + "]");
+}
+
+}  // namespace
+
+TEST(ReportJson, WriterWritesTheHandWrittenDocument) {
+  const nlohmann::json written = report_to_json(full_report());
+  EXPECT_EQ(written, nlohmann::json::parse(kFullReportJson)) << written.dump(1);
+  auto valid = validate_report_json(written, "full");
+  EXPECT_TRUE(valid.ok()) << (valid.ok() ? "" : valid.error().message());
+  expect_every_declared_property(nlohmann::json::parse(asset("clipwarden.report-1.schema.json")),
+                                 written, "$");
+}
+
+TEST(ReportJson, ReaderKeepsEveryFieldOfTheHandWrittenDocument) {
+  // Read from the hand-written text, not from our writer's output; every
+  // value differs from its default, so a dropped field shows.
+  const nlohmann::json expected = nlohmann::json::parse(kFullReportJson);
+  auto back = report_from_json(expected, "full.json");
   ASSERT_TRUE(back.ok()) << back.error().message();
-  EXPECT_EQ(report_to_json(*back), report_to_json(r));
+  EXPECT_EQ(back->clip.audio.silent_from_s, 0.75);
+  EXPECT_EQ(back->clip.bit_depth, 10);
+  EXPECT_EQ(back->summary.stream.duplicate_timestamps, 2);
+  EXPECT_EQ(back->objects.at(0).detail.at("peak_drift"), 1.5);
+  EXPECT_EQ(back->notes, std::vector<std::string>{"a note"});
+  EXPECT_EQ(report_to_json(*back), expected);
 }
 
 TEST(ReportJson, ReaderNamesTheBadKey) {
@@ -53,8 +176,8 @@ TEST(ReportJson, ReaderNamesTheBadKey) {
 }
 
 TEST(ReportJson, AtomicWriteReplacesWholeFiles) {
-  const auto dir = std::filesystem::temp_directory_path() / ("clipwarden-atomic-" + std::to_string(::getpid()));
-  std::filesystem::create_directories(dir);
+  const test::TempDir temp;
+  const std::filesystem::path& dir = temp.path();
   const std::string path = (dir / "r.json").string();
   ASSERT_TRUE(write_file_atomic(path, "first").ok());
   ASSERT_TRUE(write_file_atomic(path, "second").ok());
@@ -65,5 +188,4 @@ TEST(ReportJson, AtomicWriteReplacesWholeFiles) {
   for (auto& e : std::filesystem::directory_iterator(dir)) files += e.is_regular_file();
   EXPECT_EQ(files, 1u) << "no temporary file may be left behind";
   EXPECT_FALSE(write_file_atomic((dir / "missing" / "r.json").string(), "x").ok());
-  std::filesystem::remove_all(dir);
 }
