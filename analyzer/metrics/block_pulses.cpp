@@ -2,11 +2,25 @@
 
 #include <algorithm>
 #include <cmath>
+#include <cstdlib>
 #include <limits>
 
 namespace clipwarden {
 
 namespace {
+
+// Calls fn(block, y0, y1, x0, x1) for each block of a cols x rows grid over
+// a plane of `size` (block = row * cols + col; rows [y0, y1), columns
+// [x0, x1)).
+template <class Fn>
+void for_each_block(cv::Size size, int cols, int rows, Fn&& fn) {
+  for (int by = 0; by < rows; ++by) {
+    const int y0 = by * size.height / rows, y1 = (by + 1) * size.height / rows;
+    for (int bx = 0; bx < cols; ++bx)
+      fn(static_cast<size_t>(by) * cols + bx, y0, y1, bx * size.width / cols,
+         (bx + 1) * size.width / cols);
+  }
+}
 
 // The median change if at least three quarters of the pixels move the same
 // way (the quartile on the far side has the median's sign), else 0: a
@@ -36,32 +50,121 @@ std::vector<float> block_luminance_changes(const cv::Mat& cur, const cv::Mat& wa
                                            float level_floor) {
   std::vector<float> out(static_cast<size_t>(cols) * rows, std::numeric_limits<float>::quiet_NaN());
   std::vector<float> diffs;
-  for (int by = 0; by < rows; ++by) {
-    const int y0 = by * cur.rows / rows, y1 = (by + 1) * cur.rows / rows;
-    for (int bx = 0; bx < cols; ++bx) {
-      const int x0 = bx * cur.cols / cols, x1 = (bx + 1) * cur.cols / cols;
-      diffs.clear();
-      double level = 0;
-      for (int y = y0; y < y1; ++y) {
-        const float* c = cur.ptr<float>(y);
-        const float* w = warped_prev.ptr<float>(y);
-        const uint8_t* v = valid.empty() ? nullptr : valid.ptr<uint8_t>(y);
-        for (int x = x0; x < x1; ++x)
-          if (!v || v[x]) {
-            diffs.push_back(c[x] - w[x]);
-            level += w[x];
-          }
+  for_each_block(cur.size(), cols, rows, [&](size_t block, int y0, int y1, int x0, int x1) {
+    diffs.clear();
+    double level = 0;
+    for (int y = y0; y < y1; ++y) {
+      const float* c = cur.ptr<float>(y);
+      const float* w = warped_prev.ptr<float>(y);
+      const uint8_t* v = valid.empty() ? nullptr : valid.ptr<uint8_t>(y);
+      for (int x = x0; x < x1; ++x)
+        if (!v || v[x]) {
+          diffs.push_back(c[x] - w[x]);
+          level += w[x];
+        }
+    }
+    const size_t area = static_cast<size_t>(y1 - y0) * (x1 - x0);
+    if (diffs.empty() || 2 * diffs.size() < area) return;
+    const float change = uniform_change(diffs);
+    out[block] =
+        level_floor > 0
+            ? change / std::max(level_floor,
+                                static_cast<float>(level / static_cast<double>(diffs.size())))
+            : change;
+  });
+  return out;
+}
+
+std::vector<float> block_texture_agreement(const cv::Mat& cur, const cv::Mat& warped_prev,
+                                           const cv::Mat& valid, int cols, int rows,
+                                           float min_relative_spread) {
+  std::vector<float> out(static_cast<size_t>(cols) * rows, std::numeric_limits<float>::quiet_NaN());
+  for_each_block(cur.size(), cols, rows, [&](size_t block, int y0, int y1, int x0, int x1) {
+    // Sums in double: a block holds up to a few thousand pixels.
+    double n = 0, sc = 0, sw = 0, scc = 0, sww = 0, scw = 0;
+    for (int y = y0; y < y1; ++y) {
+      const float* c = cur.ptr<float>(y);
+      const float* w = warped_prev.ptr<float>(y);
+      const uint8_t* v = valid.empty() ? nullptr : valid.ptr<uint8_t>(y);
+      for (int x = x0; x < x1; ++x)
+        if (!v || v[x]) {
+          n += 1, sc += c[x], sw += w[x];
+          scc += double(c[x]) * c[x], sww += double(w[x]) * w[x], scw += double(c[x]) * w[x];
+        }
+    }
+    const double area = static_cast<double>(y1 - y0) * (x1 - x0);
+    if (n < 2 || 2 * n < area) return;
+    const double mc = sc / n, mw = sw / n;
+    const double vc = std::max(0.0, scc / n - mc * mc), vw = std::max(0.0, sww / n - mw * mw);
+    const double floor_c = min_relative_spread * std::max(mc, 1e-6);
+    const double floor_w = min_relative_spread * std::max(mw, 1e-6);
+    if (vc <= floor_c * floor_c && vw <= floor_w * floor_w) return;
+    const double denom = std::sqrt(vc * vw);
+    // One side flat, the other not: the pattern appeared or vanished.
+    out[block] = denom > 0 ? static_cast<float>((scw / n - mc * mw) / denom) : 0.0f;
+  });
+  return out;
+}
+
+std::vector<float> block_own_motion(const cv::Mat& flow, const cv::Matx33d& camera_homography,
+                                    const cv::Mat& valid, int cols, int rows) {
+  std::vector<float> out(static_cast<size_t>(cols) * rows, std::numeric_limits<float>::quiet_NaN());
+  const cv::Matx33d back = camera_homography.inv();
+  for_each_block(flow.size(), cols, rows, [&](size_t block, int y0, int y1, int x0, int x1) {
+    double n = 0, sum = 0;
+    for (int y = y0; y < y1; ++y) {
+      const cv::Vec2f* f = flow.ptr<cv::Vec2f>(y);
+      const uint8_t* v = valid.empty() ? nullptr : valid.ptr<uint8_t>(y);
+      for (int x = x0; x < x1; ++x) {
+        if (v && !v[x]) continue;
+        const double w = back(2, 0) * x + back(2, 1) * y + back(2, 2);
+        if (std::abs(w) < 1e-12) continue;
+        const double cx = (back(0, 0) * x + back(0, 1) * y + back(0, 2)) / w - x;
+        const double cy = (back(1, 0) * x + back(1, 1) * y + back(1, 2)) / w - y;
+        n += 1;
+        sum += std::hypot(f[x][0] - cx, f[x][1] - cy);
       }
-      const size_t area = static_cast<size_t>(y1 - y0) * (x1 - x0);
-      if (diffs.empty() || 2 * diffs.size() < area) continue;
-      const float change = uniform_change(diffs);
-      out[static_cast<size_t>(by) * cols + bx] =
-          level_floor > 0
-              ? change / std::max(level_floor, static_cast<float>(level / static_cast<double>(diffs.size())))
-              : change;
+    }
+    const double area = static_cast<double>(y1 - y0) * (x1 - x0);
+    if (n < 1 || 2 * n < area) return;
+    out[block] = static_cast<float>(sum / n);
+  });
+  return out;
+}
+
+std::vector<bool> blocks_near_movers(const std::vector<float>& own_motion, int cols, int rows,
+                                     float max_motion) {
+  std::vector<bool> near(static_cast<size_t>(cols) * rows, false);
+  for (int r = 0; r < rows; ++r)
+    for (int c = 0; c < cols; ++c) {
+      const float m = own_motion[static_cast<size_t>(r) * cols + c];
+      if (!(m > max_motion)) continue;
+      for (int dr = -1; dr <= 1; ++dr)
+        for (int dc = -1; dc <= 1; ++dc) {
+          const int rr = r + dr, cc = c + dc;
+          if (rr >= 0 && rr < rows && cc >= 0 && cc < cols)
+            near[static_cast<size_t>(rr) * cols + cc] = true;
+        }
+    }
+  return near;
+}
+
+std::vector<Pulse> pulses_with_neighbours(const std::vector<Pulse>& pulses, int cols) {
+  std::vector<Pulse> kept;
+  for (size_t i = 0; i < pulses.size(); ++i) {
+    const Pulse& p = pulses[i];
+    const int row = p.block / cols, col = p.block % cols;
+    for (size_t j = 0; j < pulses.size(); ++j) {
+      const Pulse& q = pulses[j];
+      const int dr = q.block / cols - row, dc = q.block % cols - col;
+      if (j == i || q.block == p.block || std::abs(dr) > 1 || std::abs(dc) > 1) continue;
+      if (q.start_frame <= p.end_frame && p.start_frame <= q.end_frame) {
+        kept.push_back(p);
+        break;
+      }
     }
   }
-  return out;
+  return kept;
 }
 
 float remove_common_change(std::span<float> changes) {

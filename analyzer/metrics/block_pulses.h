@@ -33,6 +33,35 @@ std::vector<float> block_luminance_changes(const cv::Mat& cur_luminance,
                                            const cv::Mat& valid, int cols, int rows,
                                            float level_floor = 0);
 
+// How well each block's texture survived from the warped previous frame:
+// the Pearson correlation of the two luminances over the block's valid
+// pixels. A change of light scales the texture and keeps its pattern
+// (correlation near 1); an occluder passing, a limb smeared by motion blur,
+// flames or caustics re-drawing themselves change the pattern. NaN where
+// the block has fewer than half its pixels valid or where both sides are
+// flat (spread below `min_relative_spread` of the block's mean): a flat
+// block has no pattern to judge by.
+std::vector<float> block_texture_agreement(const cv::Mat& cur_luminance,
+                                           const cv::Mat& warped_prev_luminance,
+                                           const cv::Mat& valid, int cols, int rows,
+                                           float min_relative_spread);
+
+// How far each block's content moves apart from the camera: the mean over
+// the block's valid pixels of |flow(x) - camera(x)|, where camera(x) is the
+// backward displacement the camera homography gives (prev -> cur, so
+// H^-1 x - x), in pixels per frame. NaN where fewer than half the pixels
+// are valid.
+std::vector<float> block_own_motion(const cv::Mat& flow_backward,
+                                    const cv::Matx33d& camera_homography, const cv::Mat& valid,
+                                    int cols, int rows);
+
+// Blocks with something moving of its own in their 3 x 3 neighbourhood
+// (own motion above `max_motion`): there a passing object, a swinging limb
+// or a smooth body the flow cannot hold brings brightness with it, and a
+// change of the block's level is not light.
+std::vector<bool> blocks_near_movers(const std::vector<float>& own_motion, int cols, int rows,
+                                     float max_motion);
+
 // Subtracts the median of the known changes from each (the frame's common
 // change); returns that median (0 when nothing is known).
 float remove_common_change(std::span<float> changes);
@@ -43,6 +72,13 @@ struct Pulse {
   int64_t end_frame = 0;    // frame where the swing back was confirmed
   double amplitude = 0;     // smaller of the two swings, in the changes' units
 };
+
+// The pulses that share their time with a pulse of a neighbouring block
+// (8-neighbourhood on a grid `cols` wide, frame spans overlapping): a region
+// that pulses is seldom smaller than two blocks, while the changes natural
+// footage leaves behind (a glint, a caustic, a flow error at one edge) sit
+// in one block at a time. Order is kept.
+std::vector<Pulse> pulses_with_neighbours(const std::vector<Pulse>& pulses, int cols);
 
 // A pulse is recorded when the swing back is confirmed; while that swing
 // goes on - until it has come as far back as the first swing went, and for

@@ -17,20 +17,35 @@
 // (RGB in [0,1]; the earlier residual warped onto frame t by the same
 // flow), over cells of about an eighth of the long side where both
 // residuals pass the forward-backward check for at least half the cell.
-// The frame's value is the worst cell's c minus the median cell's: a source
-// with grain everywhere (film grain, sensor noise) raises every cell alike
-// and is not a local defect. Units: 8-bit noise of standard deviation
-// sigma added to all channels gives 3 (sigma/255)^2, e.g. 0.0046 for 10.
+// Against the other cells: a source with grain everywhere raises every cell
+// alike and is not a local defect. Units: 8-bit noise of standard deviation
+// sigma, smooth at the scale of a few pixels, added to all channels gives
+// 3 (sigma/255)^2, e.g. 0.0046 for 10.
 //
 // Pixel-fine noise under sub-pixel motion reads less: warping interpolates,
 // and an interpolated sum of independent pixels has less variance (half at
 // a half-pixel shift). Grain a few pixels across, as generated textures
 // boil, is hardly affected.
 //
+// Scale. Film grain, sensor noise and GIF dithering are fresh every frame
+// too, but pixel-fine; generated textures boil in blobs of a few pixels. So
+// the residual is averaged over 3 x 3 pixels before the product: pixel-fine
+// noise keeps a ninth of its variance (the mean of 9 independent values),
+// a blob several pixels across keeps most of its own.
+//
+// Natural re-drawing. Water, foliage and flames re-draw their texture all
+// the time, in the same place, at a steady level; generated boiling starts
+// and stops, or sits where nothing should change. So each cell is judged
+// against its own quiet level over the clip, the lower quartile of its
+// values (a boiling that covers up to three quarters of the clip still
+// leaves the quartile at the cell's clean level), and the frame's value is
+// the worst cell's excess over its quiet level minus the median cell's.
+//
 // Frame rate: the statistic compares adjacent frames, so noise re-drawn
 // every frame reads the same at any frame rate.
 #include <algorithm>
 #include <cmath>
+#include <utility>
 #include <vector>
 
 #include <opencv2/imgproc.hpp>
@@ -43,6 +58,8 @@ namespace {
 
 constexpr int kCellsPerLongSide = 8;
 constexpr double kMinValidShare = 0.5;
+// Below this many measured frames a cell has no quiet level of its own.
+constexpr size_t kMinFramesForQuiet = 8;
 
 class BoilingMetric final : public Metric {
  public:
@@ -68,8 +85,11 @@ class BoilingMetric final : public Metric {
     } else {
       compute_residual(pair.cur->bgr, pair.warped_prev_bgr, residual_, warped_scaled_);
     }
-    if (has_previous_ && previous_residual_.size() == residual_.size())
-      out[0] = worst_cell_excess(residual_, pair.valid, pair.flow_backward);
+    if (has_previous_ && previous_residual_.size() == residual_.size()) {
+      std::vector<double> cells = cell_statistics(residual_, pair.valid, pair.flow_backward);
+      out[0] = excess_of_worst_cell(cells, {});
+      cells_by_frame_.emplace_back(pair.cur->index, std::move(cells));
+    }
     has_previous_ = true;
     pair.valid.copyTo(previous_valid_);
   }
@@ -77,8 +97,13 @@ class BoilingMetric final : public Metric {
   // Across a cut there is no motion to compensate; the frame after it would
   // still compare with a residual from across it.
   void finish(Report& report) override {
-    if (MetricSeries* s = report.find_series("boiling"))
-      clear_across_boundaries(s->values, shot_boundaries(report), 2);
+    MetricSeries* s = report.find_series("boiling");
+    if (!s) return;
+    const std::vector<double> quiet = quiet_levels();
+    for (const auto& [frame, cells] : cells_by_frame_)
+      if (frame >= 0 && frame < static_cast<int64_t>(s->values.size()))
+        s->values[static_cast<size_t>(frame)] = excess_of_worst_cell(cells, quiet);
+    clear_across_boundaries(s->values, shot_boundaries(report), 2);
   }
 
  private:
@@ -103,7 +128,9 @@ class BoilingMetric final : public Metric {
   // does a quarter of the work.
   static constexpr int kStride = 2;
 
-  double worst_cell_excess(const cv::Mat& residual, const cv::Mat& valid, const cv::Mat& flow_backward) {
+  // Each cell's c (NaN where too few pixels were measured), in raster order.
+  std::vector<double> cell_statistics(const cv::Mat& residual, const cv::Mat& valid,
+                                      const cv::Mat& flow_backward) {
     const int cell = std::max(8, std::max(residual.cols, residual.rows) / kCellsPerLongSide);
     const int cols = (residual.cols + cell - 1) / cell, rows = (residual.rows + cell - 1) / cell;
     // Each column's cell, looked up rather than divided per pixel.
@@ -128,14 +155,45 @@ class BoilingMetric final : public Metric {
         ++count[c];
       }
     }
-    std::vector<double> cells;
+    std::vector<double> cells(sum.size(), kUndefined);
     for (size_t c = 0; c < sum.size(); ++c)
-      if (count[c] > 0 && count[c] >= kMinValidShare * area[c]) cells.push_back(sum[c] / count[c]);
-    if (cells.size() < 2) return kUndefined;
-    const double worst = *std::max_element(cells.begin(), cells.end());
-    const auto middle = cells.begin() + static_cast<std::ptrdiff_t>(cells.size() / 2);
-    std::nth_element(cells.begin(), middle, cells.end());
+      if (count[c] > 0 && count[c] >= kMinValidShare * area[c]) cells[c] = sum[c] / count[c];
+    return cells;
+  }
+
+  // The worst cell's excess over its quiet level (0 where `quiet` is empty
+  // or has no level for it) minus the median cell's; undefined with fewer
+  // than two measured cells.
+  static double excess_of_worst_cell(const std::vector<double>& cells,
+                                     const std::vector<double>& quiet) {
+    std::vector<double> excess;
+    for (size_t c = 0; c < cells.size(); ++c)
+      if (!std::isnan(cells[c]))
+        excess.push_back(cells[c] - (c < quiet.size() && !std::isnan(quiet[c]) ? quiet[c] : 0.0));
+    if (excess.size() < 2) return kUndefined;
+    const double worst = *std::max_element(excess.begin(), excess.end());
+    const auto middle = excess.begin() + static_cast<std::ptrdiff_t>(excess.size() / 2);
+    std::nth_element(excess.begin(), middle, excess.end());
     return std::max(0.0, worst - *middle);
+  }
+
+  // Per cell, the lower quartile of its values over the clip (NaN for a
+  // cell never measured). With fewer than kMinFramesForQuiet values there
+  // is no telling a steady level from a defect: no quiet level then.
+  std::vector<double> quiet_levels() const {
+    if (cells_by_frame_.size() < kMinFramesForQuiet) return {};
+    const size_t n = cells_by_frame_.front().second.size();
+    std::vector<double> quiet(n, kUndefined), values;
+    for (size_t c = 0; c < n; ++c) {
+      values.clear();
+      for (const auto& [frame, cells] : cells_by_frame_)
+        if (c < cells.size() && !std::isnan(cells[c])) values.push_back(cells[c]);
+      if (values.size() < kMinFramesForQuiet) continue;
+      const auto q = values.begin() + static_cast<std::ptrdiff_t>(values.size() / 4);
+      std::nth_element(values.begin(), q, values.end());
+      quiet[c] = std::max(0.0, *q);
+    }
+    return quiet;
   }
 
   // r = V_t - W(V_{t-1}) with 8-bit values scaled to [0,1]: each term
@@ -156,6 +214,7 @@ class BoilingMetric final : public Metric {
       warped.rowRange(rows).convertTo(band, CV_32F, 1.0 / 255.0);
       cv::subtract(out, band, out);
     }
+    cv::blur(residual, residual, cv::Size(3, 3), cv::Point(-1, -1), cv::BORDER_REPLICATE);
   }
 
   struct Residual {
@@ -166,6 +225,7 @@ class BoilingMetric final : public Metric {
   };
 
   bool has_previous_ = false;
+  std::vector<std::pair<int64_t, std::vector<double>>> cells_by_frame_;  // frame, cell statistics
   cv::Mat residual_, previous_residual_, previous_valid_, warped_scaled_;
   std::vector<int> cell_of_column_;  // scratch
 };

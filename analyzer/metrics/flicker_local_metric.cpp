@@ -14,6 +14,8 @@
 #include <cmath>
 #include <map>
 
+#include <opencv2/imgproc.hpp>
+
 #include "analyzer/metrics/block_pulses.h"
 #include "analyzer/metrics/metric.h"
 
@@ -32,6 +34,22 @@ constexpr int kGridCols = 16, kGridRows = 16;
 constexpr float kDarkLevelFloor = 0.02f;
 constexpr double kMinSwing = 0.06;
 constexpr double kMaxPulse_s = 0.5;
+// Pixels within this many pixels of one that fails the forward-backward
+// check are left out too: next to an occlusion boundary the check still
+// passes but the warp already mixes the two surfaces.
+constexpr int kOcclusionMargin_px = 3;
+// A change counts as light only where the block's texture kept its pattern
+// (block_texture_agreement at least this); blocks whose spread is below
+// 2% of their mean on both sides are flat and have no pattern to judge.
+constexpr float kMinTextureAgreement = 0.75f;
+constexpr float kFlatSpread = 0.02f;
+// ... and only blocks with nothing moving of its own nearby: own motion
+// (apart from the camera) at most 0.75 px per frame at a 512 px long side
+// in the block and its eight neighbours. DIS flow on a still scene departs
+// from the camera fit by a few tenths of a pixel; a walker, a limb or a
+// passing object by a pixel or more. The neighbours count because the flow
+// often holds the edges of a smooth moving body but not its inside.
+constexpr float kMaxOwnMotion_px = 0.75f;
 
 class FlickerLocalMetric final : public Metric {
  public:
@@ -57,7 +75,7 @@ class FlickerLocalMetric final : public Metric {
   void finish(Report& report) override {
     MetricSeries* series = report.find_series("flicker_local");
     if (!series) return;
-    const std::vector<Pulse>& pulses = tracker_.pulses();
+    const std::vector<Pulse> pulses = pulses_with_neighbours(tracker_.pulses(), kGridCols);
     auto& v = series->values;
     const size_t n = v.size();
     std::vector<int> blocks_pulsing(n, 0);
@@ -78,10 +96,32 @@ class FlickerLocalMetric final : public Metric {
   };
 
   static std::vector<float> changes_of(const FramePair& pair) {
+    cv::Mat valid;
+    if (!pair.valid.empty())
+      cv::erode(pair.valid, valid,
+                cv::getStructuringElement(cv::MORPH_RECT, cv::Size(2 * kOcclusionMargin_px + 1,
+                                                                   2 * kOcclusionMargin_px + 1)));
     std::vector<float> changes =
-        block_luminance_changes(pair.cur->luminance, pair.warped_prev_luminance, pair.valid,
-                                kGridCols, kGridRows, kDarkLevelFloor);
+        block_luminance_changes(pair.cur->luminance, pair.warped_prev_luminance, valid, kGridCols,
+                                kGridRows, kDarkLevelFloor);
+    const std::vector<float> agreement = block_texture_agreement(
+        pair.cur->luminance, pair.warped_prev_luminance, valid, kGridCols, kGridRows, kFlatSpread);
+    const float max_motion =
+        kMaxOwnMotion_px *
+        static_cast<float>(std::max(pair.cur->luminance.cols, pair.cur->luminance.rows)) / 512.0f;
+    const std::vector<bool> near_movers =
+        pair.flow_backward.empty()
+            ? std::vector<bool>(changes.size(), false)
+            : blocks_near_movers(block_own_motion(pair.flow_backward, pair.camera_homography,
+                                                  pair.valid, kGridCols, kGridRows),
+                                 kGridCols, kGridRows, max_motion);
     remove_common_change(changes);
+    // After the common change is known (a pattern-changing block still
+    // tells how the frame's light went): only blocks that kept their
+    // pattern may carry a change of their own.
+    for (size_t b = 0; b < changes.size(); ++b)
+      if (!std::isnan(changes[b]) && (agreement[b] < kMinTextureAgreement || near_movers[b]))
+        changes[b] = 0;
     return changes;
   }
 

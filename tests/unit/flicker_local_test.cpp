@@ -154,3 +154,50 @@ TEST(FlickerLocalMetric, ARegionThatChangesForGoodIsNotAPulse) {
   for (size_t i = 1; i < r.frame_times_s.size(); ++i)
     EXPECT_EQ(r.find_series("flicker_local")->values[i], 0) << i;
 }
+
+// Pearson's correlation (the textbook definition) is 1 for a copy scaled
+// by a positive gain plus an offset, whatever the gain: light that scales a
+// region keeps its pattern. A pattern moved by a quarter of a block is
+// another pattern; flat blocks have none to judge.
+TEST(BlockTextureAgreement, LightKeepsThePatternAnOccluderDoesNot) {
+  cv::Mat prev(64, 64, CV_32F);
+  cv::randu(prev, 0.1, 0.5);
+  cv::GaussianBlur(prev, prev, cv::Size(0, 0), 1.5);
+  const cv::Mat lit = prev * 1.3 + 0.01;
+  const auto same = block_texture_agreement(lit, prev, cv::Mat(), 2, 2, 0.02f);
+  for (float a : same) EXPECT_NEAR(a, 1.0f, 1e-4);
+  cv::Mat moved;
+  const cv::Mat shift = (cv::Mat_<double>(2, 3) << 1, 0, 8, 0, 1, 0);
+  cv::warpAffine(prev, moved, shift, prev.size(), cv::INTER_LINEAR, cv::BORDER_REFLECT);
+  for (float a : block_texture_agreement(moved, prev, cv::Mat(), 2, 2, 0.02f)) EXPECT_LT(a, 0.5f);
+  const cv::Mat flat(64, 64, CV_32F, cv::Scalar(0.3));
+  for (float a : block_texture_agreement(flat * 1.2, flat, cv::Mat(), 2, 2, 0.02f))
+    EXPECT_TRUE(std::isnan(a));
+}
+
+TEST(BlockOwnMotion, CameraMotionIsNotOwnMotion) {
+  // The camera moves everything by (3, -2) px from prev to cur: the
+  // backward flow is (-3, 2) everywhere, which the homography explains.
+  const cv::Matx33d camera(1, 0, 3, 0, 1, -2, 0, 0, 1);
+  cv::Mat flow(64, 64, CV_32FC2, cv::Scalar(-3, 2));
+  // A patch in block (1,1) moves by another 2 px to the right.
+  flow(cv::Rect(32, 32, 32, 32)).setTo(cv::Scalar(-5, 2));
+  const auto own = block_own_motion(flow, camera, cv::Mat(), 2, 2);
+  EXPECT_NEAR(own[0], 0, 1e-5);
+  EXPECT_NEAR(own[1], 0, 1e-5);
+  EXPECT_NEAR(own[3], 2, 1e-5);
+  const auto near = blocks_near_movers({0, 0, 0, 0, 0, 0, 0, 0, 2}, 3, 3, 0.75f);
+  // Block 8 (bottom right of a 3 x 3 grid) moves: it and its neighbours
+  // 4, 5 and 7 are near a mover, the rest not.
+  EXPECT_EQ(near, (std::vector<bool>{false, false, false, false, true, true, false, true, true}));
+}
+
+TEST(BlockPulses, OnlyPulsesSharedWithANeighbourAreKept) {
+  // Grid 4 wide: blocks 5 and 6 are neighbours, block 15 is alone.
+  const std::vector<Pulse> pulses = {
+      {5, 10, 14, 0.1}, {6, 12, 16, 0.1}, {15, 10, 14, 0.3}, {9, 30, 32, 0.1}};
+  const auto kept = pulses_with_neighbours(pulses, 4);
+  ASSERT_EQ(kept.size(), 2u);
+  EXPECT_EQ(kept[0].block, 5);
+  EXPECT_EQ(kept[1].block, 6);
+}

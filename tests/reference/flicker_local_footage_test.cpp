@@ -1,0 +1,88 @@
+// flicker_local on real footage, through the whole analysis. Outside
+// anchors: camera clips of natural light that changes fast and locally -
+// sunlit water with caustics on a pool floor, a wall of flames (from the
+// evaluation corpus, CLIPWARDEN_CORPUS; skipped without it) and opencv-doc
+// tree.avi (foliage in wind, hand-held) - in which nothing pulses the way a
+// generated region does, so no local flicker may reach the review level;
+// and a pulse of known gain injected (clipwarden inject) into real footage,
+// opencv-doc vtest.avi, which must be found at its frames.
+#include <gtest/gtest.h>
+
+#include <string>
+
+#include "clipwarden/analysis.h"
+#include "clipwarden/inject.h"
+#include "clipwarden/policy.h"
+#include "support/clips.h"
+#include "support/corpus.h"
+#include "support/drift_pairs.h"
+
+namespace clipwarden::test {
+namespace {
+
+Report analyse(const std::string& path) {
+  auto report = analyze_clip(path, AnalysisSettings{}, default_policy());
+  if (!report) ADD_FAILURE() << path << ": " << report.error().message();
+  return report ? std::move(*report) : Report{};
+}
+
+void expect_no_flagged_local_flicker(const std::string& path) {
+  const Report r = analyse(path);
+  for (const Segment& s : r.segments)
+    if (s.metric == "flicker_local")
+      EXPECT_EQ(s.severity, Severity::info)
+          << path << ": frames " << s.start_frame << "-" << s.end_frame << " peak " << s.peak;
+}
+
+TEST(FlickerLocalFootage, CausticsOnAPoolFloorAreNotLocalFlicker) {
+  const std::string pool = corpus_clip("cam_mmaction2_test.mp4");
+  if (pool.empty()) GTEST_SKIP() << "evaluation corpus not found (set CLIPWARDEN_CORPUS)";
+  expect_no_flagged_local_flicker(pool);
+}
+
+TEST(FlickerLocalFootage, FlamesAreNotLocalFlicker) {
+  const std::string fire = corpus_clip("cam_haulth_fire_wall.mp4");
+  if (fire.empty()) GTEST_SKIP() << "evaluation corpus not found (set CLIPWARDEN_CORPUS)";
+  expect_no_flagged_local_flicker(fire);
+}
+
+TEST(FlickerLocalFootage, FoliageInWindIsNotLocalFlicker) {
+  const std::string tree = opencv_sample("tree.avi");
+  if (tree.empty()) GTEST_SKIP() << "opencv-doc tree.avi not installed";
+  expect_no_flagged_local_flicker(tree);
+}
+
+TEST(FlickerLocalFootage, AnInjectedPulseInAStreetSceneIsFoundAtItsFrames) {
+  const std::string vtest = opencv_sample("vtest.avi");
+  if (vtest.empty()) GTEST_SKIP() << "opencv-doc vtest.avi not installed";
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
+  TempDir dir;
+  const std::string trimmed = dir.file("street.avi");
+  ASSERT_EQ(run_command({"ffmpeg", "-v", "error", "-y", "-i", vtest, "-frames:v", "60", "-c",
+                         "copy", trimmed})
+                .exit_code,
+            0);
+  // Moderate local flicker (gain 0.25, square wave at 4 Hz) for one second
+  // (10 frames at 10 fps) on a box of 30% of the frame over the plaza.
+  InjectOptions options;
+  options.defect_specs = {"local_flicker@20-29:strength=moderate,region=0.35/0.4/0.3/0.3"};
+  options.output_path = dir.file("pulsing.mkv");
+  auto truth = inject_defects(trimmed, options);
+  ASSERT_TRUE(truth.ok()) << truth.error().message();
+  const std::string injected = (*truth)["output"]["path"].get<std::string>();
+  const Report r = analyse(injected);
+  bool found = false;
+  for (const Segment& s : r.segments) {
+    if (s.metric != "flicker_local") continue;
+    // Pulses are marked from the first swing to the swing back: inside the
+    // defect's second, give or take two frames.
+    EXPECT_GE(s.end_frame, 18) << s.start_frame << "-" << s.end_frame;
+    EXPECT_LE(s.start_frame, 31) << s.start_frame << "-" << s.end_frame;
+    if (s.severity != Severity::info && s.start_frame <= 24) found = true;
+  }
+  EXPECT_TRUE(found)
+      << "no flicker_local review/reject segment starting within the injected second";
+}
+
+}  // namespace
+}  // namespace clipwarden::test

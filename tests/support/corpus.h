@@ -1,0 +1,14 @@
+// The evaluation corpus of real clips (camera footage and model outputs,
+// with a MANIFEST.tsv), kept outside the repository: tests that need it
+// read it from the folder named by the CLIPWARDEN_CORPUS environment
+// variable and skip when it is not set or the clip is missing.
+#pragma once
+
+#include <string>
+
+namespace clipwarden::test {
+
+// Path of clips/<file> in the corpus, or "" when there is none.
+std::string corpus_clip(const std::string& file);
+
+}  // namespace clipwarden::test
