@@ -27,7 +27,7 @@ function(clipwarden_layer name)
     PUBLIC $<BUILD_INTERFACE:${PROJECT_SOURCE_DIR}/include> $<INSTALL_INTERFACE:include>
     PRIVATE ${PROJECT_SOURCE_DIR} ${PROJECT_BINARY_DIR}/generated)
   target_include_directories(${target} SYSTEM PUBLIC ${OpenCV_INCLUDE_DIRS})
-  target_link_libraries(${target} PUBLIC ${OpenCV_LIBS} nlohmann_json::nlohmann_json)
+  target_link_libraries(${target} PUBLIC ${CLIPWARDEN_OPENCV_LIBS} nlohmann_json::nlohmann_json)
   foreach(used IN LISTS L_USES)
     target_link_libraries(${target} PUBLIC clipwarden_${used})
   endforeach()

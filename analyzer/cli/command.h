@@ -2,6 +2,7 @@
 // library. Commands are listed in commands.cpp.
 #pragma once
 
+#include <cstdio>
 #include <functional>
 #include <optional>
 #include <string>
@@ -29,7 +30,7 @@ const std::vector<Command>& commands();
 
 // Shared output conventions: one line per error on stderr, prefixed with the
 // program name; progress only when stderr is a terminal and not --quiet.
-void print_error(const std::string& line);
+inline void print_error(const std::string& line) { std::fprintf(stderr, "clipwarden: %s\n", line.c_str()); }
 bool stderr_is_terminal();
 
 // How a command describes itself in --help.

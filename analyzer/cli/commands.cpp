@@ -1,12 +1,16 @@
 #include <unistd.h>
 
 #include <cstdio>
+#include <map>
+#include <string_view>
 
 #include "analyzer/cli/command.h"
+#include "analyzer/cli/command_names.h"
 
 namespace clipwarden::cli {
 
-// Each command lives in its own file; one line here registers it.
+// Each command lives in its own file; one line here and one in
+// command_names.h register it.
 int run_analyze(const std::vector<std::string>& args);
 int run_compare(const std::vector<std::string>& args);
 int run_probe(const std::vector<std::string>& args);
@@ -16,20 +20,19 @@ int run_inspect(const std::vector<std::string>& args);
 int run_inject(const std::vector<std::string>& args);
 
 const std::vector<Command>& commands() {
-  static const std::vector<Command> table = {
-      {"analyze", "analyze clips; write a JSON and an HTML report per clip", run_analyze},
-      {"probe", "print what a clip's container holds, as JSON", run_probe},
-      {"gate", "judge a batch of clips into a review queue (queue.jsonl, index.html)", run_gate},
-      {"merge", "join the outputs of gate shards into one queue", run_merge},
-      {"inspect", "write PNG panels (flow, warp, error, occlusion) for one frame", run_inspect},
-      {"compare", "compare two model versions on the same prompts, with paired statistics",
-       run_compare},
-      {"inject", "write a copy of a clip with known defects, and where they are", run_inject},
-  };
+  static const std::vector<Command> table = [] {
+    const std::map<std::string_view, std::function<int(const std::vector<std::string>&)>> runs = {
+        {"analyze", run_analyze}, {"probe", run_probe},     {"gate", run_gate},
+        {"merge", run_merge},     {"inspect", run_inspect}, {"compare", run_compare},
+        {"inject", run_inject},
+    };
+    std::vector<Command> commands;
+    for (const CommandName& c : kCommandNames)
+      commands.push_back({c.name, c.summary, runs.at(c.name)});
+    return commands;
+  }();
   return table;
 }
-
-void print_error(const std::string& line) { std::fprintf(stderr, "clipwarden: %s\n", line.c_str()); }
 
 bool stderr_is_terminal() { return isatty(2) == 1; }
 

@@ -2,8 +2,7 @@
 #include <cstdio>
 #include <filesystem>
 
-#include <opencv2/imgcodecs.hpp>
-
+#include "analyzer/encode/picture_encoding.h"
 #include "analyzer/inspect/frame_walk.h"
 #include "analyzer/inspect/panels.h"
 #include "clipwarden/inspect.h"
@@ -58,10 +57,9 @@ Expected<std::vector<std::string>> write_panel_pngs(const FramePanels& panels,
   std::vector<std::string> paths;
   for (const auto& [what, image] : images) {
     const std::string path = prefix + what + ".png";
-    std::vector<uint8_t> png;
-    if (image.empty() || !cv::imencode(".png", image, png))
-      return output_error(path, "cannot encode the image as PNG");
-    auto written = write_file_atomic(path, std::string(png.begin(), png.end()));
+    auto png = png_file_bytes(image);
+    if (!png) return output_error(path, "cannot encode the image as PNG");
+    auto written = write_file_atomic(path, *png);
     if (!written) return written.error();
     paths.push_back(path);
   }

@@ -5,9 +5,9 @@
 #include <map>
 #include <set>
 
-#include <opencv2/imgcodecs.hpp>
 #include <opencv2/imgproc.hpp>
 
+#include "analyzer/encode/picture_encoding.h"
 #include "analyzer/inspect/frame_walk.h"
 #include "analyzer/inspect/panels.h"
 #include "clipwarden/html_report.h"
@@ -64,11 +64,10 @@ int severity_rank(Severity s) { return s == Severity::reject ? 2 : s == Severity
 
 EncodedImage encode_jpeg(const cv::Mat& bgr, int quality) {
   EncodedImage out;
-  std::vector<uint8_t> bytes;
-  if (bgr.empty() || !cv::imencode(".jpg", bgr, bytes, {cv::IMWRITE_JPEG_QUALITY, quality}))
-    return out;
+  auto bytes = jpeg_file_bytes(bgr, quality);
+  if (!bytes) return out;
   out.mime = "image/jpeg";
-  out.bytes.assign(bytes.begin(), bytes.end());
+  out.bytes = std::move(*bytes);
   out.width_px = bgr.cols;
   out.height_px = bgr.rows;
   return out;
@@ -76,10 +75,10 @@ EncodedImage encode_jpeg(const cv::Mat& bgr, int quality) {
 
 EncodedImage encode_png(const cv::Mat& image) {
   EncodedImage out;
-  std::vector<uint8_t> bytes;
-  if (image.empty() || !cv::imencode(".png", image, bytes)) return out;
+  auto bytes = png_file_bytes(image);
+  if (!bytes) return out;
   out.mime = "image/png";
-  out.bytes.assign(bytes.begin(), bytes.end());
+  out.bytes = std::move(*bytes);
   out.width_px = image.cols;
   out.height_px = image.rows;
   return out;
