@@ -117,8 +117,12 @@ int run_gate(const std::vector<std::string>& args) {
   gate.db_path = parsed->get("db").value_or("");
   gate.jobs = jobs->value_or(0);
   const bool html = !parsed->has("no-html");
-  gate.write_report = [html](const Report& r, const std::string& base) {
-    return write_reports(r, base, html);
+  gate.collect_thumbnails = html;
+  gate.write_report = [html](const Report& r, const std::string& base,
+                             const ThumbnailCollector* thumbnails) {
+    ReportExtras extras;
+    extras.thumbnails = thumbnails;
+    return write_reports(r, base, html, extras);
   };
   const bool quiet = parsed->has("quiet");
   BatchProgress progress(static_cast<int>(inputs.size()), quiet || !stderr_is_terminal());

@@ -27,6 +27,7 @@
 #include <thread>
 
 #include "clipwarden/gate.h"
+#include "clipwarden/html_report.h"
 #include "clipwarden/report_io.h"
 #include "clipwarden/store.h"
 #include "clipwarden/version.h"
@@ -77,7 +78,7 @@ bool take_from_store(Batch& b, const StoredAnalysis& row, const std::string& bas
   auto report = read_report_file(row.report_path);
   if (!report) return false;  // moved or deleted: recompute
   report->clip.path = r.input.path;
-  auto written = b.write_report(*report, base);
+  auto written = b.write_report(*report, base, nullptr);
   if (!written) {
     r.error = written.error();
     return true;
@@ -89,12 +90,20 @@ bool take_from_store(Batch& b, const StoredAnalysis& row, const std::string& bas
 
 void analyse_and_store(Batch& b, const std::string& base, ClipResult& r) {
   const GateInput& in = r.input;
-  auto report = b.analyze(in.path, b.settings, b.options.policy, AnalysisHooks{});
+  // Thumbnails taken from the analysis' own frames: without them the page
+  // would decode the whole clip a second time.
+  std::optional<ThumbnailCollector> thumbnails;
+  AnalysisHooks hooks;
+  if (b.options.collect_thumbnails) {
+    thumbnails.emplace();
+    hooks.on_frame = [&](const DecodedFrame& frame) { thumbnails->add(frame); };
+  }
+  auto report = b.analyze(in.path, b.settings, b.options.policy, hooks);
   if (!report) {
     r.error = report.error();
     return;
   }
-  auto written = b.write_report(*report, base);
+  auto written = b.write_report(*report, base, thumbnails ? &*thumbnails : nullptr);
   if (!written) {
     r.error = written.error();
     return;
@@ -253,9 +262,10 @@ Expected<GateRun> run_gate(const std::vector<GateInput>& inputs, const GateOptio
   b.settings_hash = settings_hash(options.settings, options.policy);
   b.analyze = options.analyze ? options.analyze : AnalyzeFunction(analyze_clip);
   b.write_report =
-      options.write_report ? options.write_report : [](const Report& r, const std::string& base) {
-        return write_json_report(r, base + ".json");
-      };
+      options.write_report ? options.write_report
+                           : [](const Report& r, const std::string& base, const ThumbnailCollector*) {
+                               return write_json_report(r, base + ".json");
+                             };
   b.observer = observer;
   b.results.resize(inputs.size());
   b.workers_running = jobs;

@@ -138,8 +138,12 @@ std::unique_ptr<GateIterator> gate(const py::object& paths, const py::object& ou
     gate.jobs = jobs.cast<int>();
     if (gate.jobs < 1) raise_error(usage_error("jobs", "must be at least 1"));
   }
-  gate.write_report = [html](const Report& r, const std::string& base) {
-    return cli::write_reports(r, base, html);
+  gate.collect_thumbnails = html;  // the pages then need not decode each clip again
+  gate.write_report = [html](const Report& r, const std::string& base,
+                             const ThumbnailCollector* thumbnails) {
+    cli::ReportExtras extras;
+    extras.thumbnails = thumbnails;
+    return cli::write_reports(r, base, html, extras);
   };
   CollectedInputs collected = take(collect_inputs(args));
   cli::OutputNamer namer;  // report names as `clipwarden gate` gives them

@@ -22,6 +22,8 @@
 
 namespace clipwarden {
 
+class ThumbnailCollector;  // clipwarden/html_report.h
+
 // One clip of a batch.
 struct GateInput {
   int64_t index = 0;      // position in the whole (unsharded) input list
@@ -108,7 +110,12 @@ struct GateRun {
 
 using AnalyzeFunction = std::function<Expected<Report>(
     const std::string& path, const AnalysisSettings&, const Policy&, const AnalysisHooks&)>;
-using ReportWriter = std::function<Status(const Report& report, const std::string& base_path)>;
+// `thumbnails`: the page's thumbnails kept while the clip was analysed
+// (GateOptions::collect_thumbnails), so writing the page need not decode the
+// whole clip again; null when not collected or when the report came from
+// the results store.
+using ReportWriter = std::function<Status(const Report& report, const std::string& base_path,
+                                          const ThumbnailCollector* thumbnails)>;
 
 struct GateOptions {
   AnalysisSettings settings;  // settings.threads = 0: max(1, cores / jobs) per clip
@@ -118,6 +125,7 @@ struct GateOptions {
   int jobs = 0;               // clips analysed at once; 0 = number of cores
   AnalyzeFunction analyze;    // empty = analyze_clip
   ReportWriter write_report;  // empty = JSON only (base_path + ".json")
+  bool collect_thumbnails = false;  // keep HTML thumbnails during analysis for write_report
   // Set from outside (e.g. by a signal handler) to stop the batch: no clip
   // starts once it is set; the clips in flight get stop_grace_s to finish
   // and are then abandoned: run_gate writes the queue of the finished clips
