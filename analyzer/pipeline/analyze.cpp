@@ -47,7 +47,11 @@ class Analysis {
     for (int i = 0; i < workers; ++i) builders_.push_back(std::make_unique<PairBuilder>(settings.preset));
     clocks_.assign(workers + 1, StageClock{0, std::vector<double>(metrics_.size(), 0.0)});
     for (const auto& m : metrics_) needs_in_order_ = needs_in_order_ || m->needs_in_order();
-    window_ = static_cast<size_t>(2 * workers + 1);
+    // Every pair in flight holds its flows, warps and metric scratch (~10 MB
+    // at the 512 px working size): one pair per worker plus one waiting for
+    // the next free worker is enough to keep them busy, since pairs cost
+    // about the same; twice that held 20 MB more at two workers.
+    window_ = static_cast<size_t>(workers + 1);
   }
 
   void add_frame(std::shared_ptr<const FramePlanes> frame) {
@@ -134,6 +138,10 @@ class Analysis {
   bool needs_in_order_ = false;
 };
 
+// Frames decoded ahead of the pairs: enough to absorb a slow frame of the
+// decoder (an I-frame), each one a few MB at the working size.
+constexpr size_t kDecodedFramesQueued = 2;
+
 int worker_count(const AnalysisSettings& settings) {
   const int cores = static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
   return settings.threads > 0 ? settings.threads : cores;
@@ -159,7 +167,7 @@ Expected<Report> analyze_source(ClipSource& source, const std::string& path, con
   Analysis analysis(settings, worker_count(settings));
   std::optional<Error> stopped;
   {
-    FrameStream stream(source, 4);
+    FrameStream stream(source, kDecodedFramesQueued);
     int64_t done = 0;
     while (auto frame = stream.next()) {
       if (hooks.on_frame) hooks.on_frame(DecodedFrame{frame->index, frame->t_s, frame->bgr});
