@@ -1,7 +1,7 @@
 // clipwarden_bench: how fast analysis runs next to decoding alone, on the same
 // clip in the same run, and how much memory it holds.
 //
-//   clipwarden_bench [CLIP...] [--standard] [--uhd] [--long] [--gate]
+//   clipwarden_bench [CLIP...] [--standard] [--real] [--uhd] [--long] [--gate]
 //                   [--clips-dir DIR] [--repeat N] [--preset P] [--width N] [--threads N]
 //
 // For each clip, three measurements, each in a child process so that its
@@ -12,12 +12,18 @@
 // and the per-stage thread time of the analysis in ms per frame. The ratio
 // is analysis fps / FFmpeg decode-only fps from the same run.
 //
-// Generated clips (testsrc2, H.264, made once with the FFmpeg CLI into
-// --clips-dir, default /tmp/clipwarden-bench): --standard 1080p24 10 s (also
-// the default when no clip is given), --uhd 2160p24 10 s, --long 1080p24
-// 60 s; --gate times `clipwarden gate --jobs 1` against `--jobs 2` on 20
-// distinct short clips (360p24 2 s, testsrc2 and mandelbrot at 20 hues and
-// start times), in fresh output folders.
+// Clips made once with the FFmpeg CLI into --clips-dir (default
+// /tmp/clipwarden-bench): --standard 1080p24 10 s testsrc2 (also the default
+// when no clip is given), --real 1080p10 24 s of real footage (opencv-doc's
+// vtest.avi scaled up), --uhd 2160p24 10 s, --long 1080p24 60 s; --gate
+// times `clipwarden gate --jobs 1` against `--jobs 2` on a batch like a
+// generation queue's (20 clips of opencv-doc footage: 480p-720p, 2-6 s,
+// 8-24 fps, H.264 MP4 and GIF), in fresh output folders.
+//
+// Every run starts with the CLI's start-up: wall and CPU time of
+// `clipwarden --version` and of a command that loads the analysis
+// (`clipwarden probe --help`), and the shared libraries each loads.
+#include <fcntl.h>
 #include <sys/resource.h>
 #include <sys/stat.h>
 #include <sys/wait.h>
@@ -28,7 +34,9 @@
 #include <cstdio>
 #include <cstdlib>
 #include <filesystem>
+#include <fstream>
 #include <functional>
+#include <set>
 #include <string>
 #include <vector>
 
@@ -129,16 +137,111 @@ json full_analysis(const std::string& clip, const AnalysisSettings& settings, co
 }
 
 // Makes `path` with the FFmpeg CLI unless it exists; false if that failed.
-// `filter`, when given, is an FFmpeg filter chain applied before encoding.
-bool make_clip(const std::string& path, const std::string& source, const std::string& size, int seconds,
-               const std::string& filter = "") {
+// `input` is FFmpeg's input arguments, `output` its encoding arguments.
+bool make_clip_with(const std::string& path, const std::string& input, const std::string& output) {
   if (fs::exists(path)) return true;
   std::printf("making %s ...\n", path.c_str());
   std::fflush(stdout);
-  const std::string cmd = "ffmpeg -v error -nostdin -y -f lavfi -i " + source + "=size=" + size +
-                          ":rate=24 -t " + std::to_string(seconds) + (filter.empty() ? "" : " -vf '" + filter + "'") + " -c:v libx264 -pix_fmt yuv420p '" + path +
-                          ".tmp.mp4' && mv '" + path + ".tmp.mp4' '" + path + "'";
+  const std::string tmp = path + ".tmp" + fs::path(path).extension().string();
+  const std::string cmd = "ffmpeg -v error -nostdin -y " + input + " " + output + " '" + tmp + "' && mv '" +
+                          tmp + "' '" + path + "'";
   return std::system(cmd.c_str()) == 0;
+}
+
+// A test-pattern clip: `source` is an FFmpeg lavfi source.
+bool make_clip(const std::string& path, const std::string& source, const std::string& size, int seconds) {
+  return make_clip_with(path,
+                        "-f lavfi -i " + source + "=size=" + size + ":rate=24 -t " + std::to_string(seconds),
+                        "-c:v libx264 -pix_fmt yuv420p");
+}
+
+const std::string kOpencvData = "/usr/share/doc/opencv-doc/examples/data/";
+
+// Real footage at 1080p: the first 240 frames of opencv-doc's vtest.avi
+// (768x576, 10 fps, a fixed camera over a walkway) scaled to 1920 wide and
+// cropped to 1080 rows.
+bool make_real_1080p(const std::string& path) {
+  return make_clip_with(path, "-i '" + kOpencvData + "vtest.avi'",
+                        "-vf 'scale=1920:1440:flags=lanczos,crop=1920:1080' -frames:v 240 -c:v libx264 "
+                        "-pix_fmt yuv420p");
+}
+
+// Start-up: a program run to its end, `runs` times (median wall and CPU
+// time), and the shared libraries it loads, from the dynamic loader's own
+// log (LD_DEBUG=files: one "file=NAME ... needed by / dynamically loaded by"
+// line per object it maps, dlopen'ed modules included).
+struct Startup {
+  double wall_ms = 0, cpu_ms = 0;
+  size_t libraries = 0;
+};
+
+double median(std::vector<double> v);
+
+// Runs `argv` with stdout to /dev/null and stderr to `stderr_fd` (or
+// /dev/null); returns its CPU seconds, or a negative number on failure.
+double run_program(const std::vector<std::string>& argv, bool loader_log, int stderr_fd) {
+  std::fflush(stdout);
+  const pid_t pid = fork();
+  if (pid == 0) {
+    const int null_fd = open("/dev/null", O_WRONLY);
+    dup2(null_fd, 1);
+    dup2(stderr_fd >= 0 ? stderr_fd : null_fd, 2);
+    if (loader_log) setenv("LD_DEBUG", "files", 1);
+    std::vector<char*> args;
+    for (const auto& a : argv) args.push_back(const_cast<char*>(a.c_str()));
+    args.push_back(nullptr);
+    execv(args[0], args.data());
+    _exit(127);
+  }
+  int status = 0;
+  struct rusage usage {};
+  if (pid < 0 || wait4(pid, &status, 0, &usage) < 0 || !WIFEXITED(status) || WEXITSTATUS(status) == 127) return -1;
+  return usage.ru_utime.tv_sec + usage.ru_utime.tv_usec * 1e-6 + usage.ru_stime.tv_sec + usage.ru_stime.tv_usec * 1e-6;
+}
+
+size_t libraries_loaded(const std::vector<std::string>& argv) {
+  char log_path[] = "/tmp/clipwarden-bench-ld-XXXXXX";
+  const int fd = mkstemp(log_path);
+  if (fd < 0) return 0;
+  run_program(argv, true, fd);
+  close(fd);
+  std::ifstream log(log_path);
+  std::set<std::string> names;
+  for (std::string line; std::getline(log, line);) {
+    const size_t at = line.find("file=");
+    if (at == std::string::npos) continue;
+    if (line.find("needed by") == std::string::npos && line.find("dynamically loaded by") == std::string::npos)
+      continue;
+    names.insert(line.substr(at + 5, line.find(' ', at) - at - 5));
+  }
+  fs::remove(log_path);
+  return names.size();
+}
+
+Startup time_startup(const std::vector<std::string>& argv, int runs) {
+  Startup s;
+  std::vector<double> wall, cpu;
+  for (int i = 0; i < runs; ++i) {
+    const auto start = Clock::now();
+    const double cpu_s = run_program(argv, false, -1);
+    if (cpu_s < 0) return s;
+    wall.push_back(1000 * seconds_since(start));
+    cpu.push_back(1000 * cpu_s);
+  }
+  s.wall_ms = median(wall);
+  s.cpu_ms = median(cpu);
+  s.libraries = libraries_loaded(argv);
+  return s;
+}
+
+void bench_startup() {
+  const std::string cli = CLIPWARDEN_BINARY;
+  const Startup version = time_startup({cli, "--version"}, 20);
+  const Startup command = time_startup({cli, "probe", "--help"}, 10);
+  std::printf("start-up, median of 20 / 10 runs: `clipwarden --version` %.1f ms (CPU %.1f ms, %zu shared "
+              "libraries); a command (`probe --help`) %.1f ms (CPU %.1f ms, %zu shared libraries)\n",
+              version.wall_ms, version.cpu_ms, version.libraries, command.wall_ms, command.cpu_ms,
+              command.libraries);
 }
 
 // One run's frame rates, kept to summarise repeated runs.
@@ -205,8 +308,12 @@ void print_spread(const std::string& clip, const std::vector<ClipRates>& runs) {
 }
 
 // `clipwarden gate FOLDER --jobs N` in a child, into a fresh output folder
-// (so nothing comes from a results store); returns clips per second.
-double gate_clips_per_s(const std::string& folder, int jobs, int clips, const std::string& work_dir) {
+// (so nothing comes from a results store): clips per minute and peak RSS.
+struct GateRate {
+  double clips_per_min = 0, peak_rss_mb = 0;
+};
+
+GateRate gate_rate(const std::string& folder, int jobs, int clips, const std::string& work_dir) {
   const std::string out = work_dir + "/gate-out-jobs" + std::to_string(jobs);
   fs::remove_all(out);
   const json r = in_child([&] {
@@ -215,39 +322,62 @@ double gate_clips_per_s(const std::string& folder, int jobs, int clips, const st
     return json{{"seconds", seconds_since(start)}, {"status", status}};
   });
   fs::remove_all(out);
-  if (!r.contains("seconds") || r["status"].get<int>() >= 2) return 0;
-  return clips / r["seconds"].get<double>();
+  if (!r.contains("seconds") || r["status"].get<int>() >= 2) return {};
+  return {60.0 * clips / r["seconds"].get<double>(), r["peak_rss_mb"].get<double>()};
+}
+
+// A batch like a generation queue's: 20 distinct short clips cut from
+// opencv-doc footage (Megamind.avi, an animated film, and vtest.avi, a fixed
+// camera over a walkway) at 480p-720p, 2-6 s and 8-24 fps (vtest at most its
+// own 10 fps, so no frame is repeated), every third one a GIF.
+bool make_gate_batch(const std::string& folder, int clips) {
+  const char* sizes[] = {"854:480", "960:540", "1280:720", "640:480"};
+  for (int i = 0; i < clips; ++i) {
+    const bool animated = i % 2 == 0;
+    const int seconds = 2 + i % 5;
+    const int fps = animated ? (i % 3 == 0 ? 12 : i % 3 == 1 ? 16 : 24) : (i % 4 < 2 ? 8 : 10);
+    // Megamind runs 11.3 s, vtest 79.5 s: start times spread over each.
+    const double start_s = animated ? (i / 2) * 0.5 : (i / 2) * 7.0;
+    const bool gif = i % 3 == 2;
+    char name[64];
+    std::snprintf(name, sizeof name, "/clip_%02d.%s", i, gif ? "gif" : "mp4");
+    const std::string input = "-ss " + std::to_string(start_s) + " -t " + std::to_string(seconds) + " -i '" +
+                              kOpencvData + (animated ? "Megamind.avi" : "vtest.avi") + "'";
+    const std::string filter =
+        "fps=" + std::to_string(fps) + ",scale=" + sizes[i % 4] + ":flags=lanczos,setsar=1";
+    if (!make_clip_with(folder + name, input,
+                        "-vf '" + filter + "' " + (gif ? "-f gif" : "-c:v libx264 -pix_fmt yuv420p")))
+      return false;
+  }
+  return true;
 }
 
 int bench_gate(const std::string& clips_dir) {
   // Twenty distinct contents: identical clips would be analysed once and
   // then served from the results store, which measures the store instead.
-  const std::string folder = clips_dir + "/gate20-distinct";
+  const std::string folder = clips_dir + "/gate20-footage";
   fs::create_directories(folder);
   constexpr int kClips = 20;
-  for (int i = 0; i < kClips; ++i) {
-    char name[64];
-    std::snprintf(name, sizeof name, "/short_%02d.mp4", i);
-    // Two sources, each turned to its own hue and started at its own time.
-    const std::string filter = "trim=start=" + std::to_string(i) + ",setpts=PTS-STARTPTS,hue=h=" + std::to_string(17 * i);
-    if (!make_clip(folder + name, i % 2 ? "mandelbrot" : "testsrc2", "640x360", 2, filter)) {
-      std::printf("gate: cannot make the short clips with ffmpeg\n");
-      return 3;
-    }
+  if (!make_gate_batch(folder, kClips)) {
+    std::printf("gate: cannot make the batch with ffmpeg from %s\n", kOpencvData.c_str());
+    return 3;
   }
-  const double one = gate_clips_per_s(folder, 1, kClips, clips_dir);
-  const double two = gate_clips_per_s(folder, 2, kClips, clips_dir);
-  std::printf("gate, %d clips 640x360 24 fps 2 s: --jobs 1 %.2f clips/s, --jobs 2 %.2f clips/s, ratio %.2f\n",
-              kClips, one, two, one > 0 ? two / one : 0.0);
-  return one > 0 && two > 0 ? 0 : 3;
+  const GateRate one = gate_rate(folder, 1, kClips, clips_dir);
+  const GateRate two = gate_rate(folder, 2, kClips, clips_dir);
+  std::printf("gate, %d clips (480p-720p, 2-6 s, 8-24 fps, MP4 and GIF): --jobs 1 %.1f clips/min (peak %.0f MB), "
+              "--jobs 2 %.1f clips/min (peak %.0f MB), ratio %.2f\n",
+              kClips, one.clips_per_min, one.peak_rss_mb, two.clips_per_min, two.peak_rss_mb,
+              one.clips_per_min > 0 ? two.clips_per_min / one.clips_per_min : 0.0);
+  return one.clips_per_min > 0 && two.clips_per_min > 0 ? 0 : 3;
 }
 
 std::vector<cli::OptionSpec> bench_specs() {
   auto specs = cli::analysis_option_specs();
   specs.push_back({"standard", false, "1080p24 10 s testsrc2 clip (the default without clips)"});
+  specs.push_back({"real", false, "also real footage at 1080p (opencv-doc vtest.avi scaled up, 240 frames)"});
   specs.push_back({"uhd", false, "also a 2160p24 10 s clip"});
   specs.push_back({"long", false, "also a 1080p24 60 s clip"});
-  specs.push_back({"gate", false, "gate --jobs 1 vs --jobs 2 on 20 short clips"});
+  specs.push_back({"gate", false, "gate --jobs 1 vs --jobs 2 on 20 short clips of real footage"});
   specs.push_back({"clips-dir", true, "where generated clips are kept (default /tmp/clipwarden-bench)"});
   specs.push_back({"repeat", true, "runs per clip, interleaved across clips, then their spread (default 1)"});
   return specs;
@@ -256,7 +386,7 @@ std::vector<cli::OptionSpec> bench_specs() {
 }  // namespace
 
 int main(int argc, char** argv) {
-  cv::setNumThreads(1);  // as the clipwarden CLI does (analyzer/cli/main.cpp)
+  cv::setNumThreads(1);  // as the clipwarden CLI does (analyzer/cli/module_entry.cpp)
   std::vector<std::string> args(argv + 1, argv + argc);
   auto parsed = cli::parse_args(args, bench_specs());
   if (!parsed) {
@@ -276,8 +406,8 @@ int main(int argc, char** argv) {
   }
   fs::create_directories(clips_dir);
   std::vector<std::string> clips = parsed->positionals;
-  const bool standard = parsed->has("standard") ||
-                        (clips.empty() && !parsed->has("uhd") && !parsed->has("long") && !parsed->has("gate"));
+  const bool standard = parsed->has("standard") || (clips.empty() && !parsed->has("real") && !parsed->has("uhd") &&
+                                                    !parsed->has("long") && !parsed->has("gate"));
   struct Generated {
     bool wanted;
     const char* file;
@@ -294,6 +424,16 @@ int main(int argc, char** argv) {
     }
     clips.push_back(clips_dir + g.file);
   }
+  if (parsed->has("real")) {
+    const std::string real = clips_dir + "/vtest_1080p10_240f.mp4";
+    if (!make_real_1080p(real)) {
+      std::fprintf(stderr, "clipwarden_bench: cannot make %s with ffmpeg from %s\n", real.c_str(),
+                   kOpencvData.c_str());
+      return 3;
+    }
+    clips.push_back(real);
+  }
+  bench_startup();
   int status = 0;
   if (!clips.empty()) {
     std::printf("%-24s %-10s %6s %9s %9s %9s %6s %8s %7s\n", "clip", "source", "frames", "ffmpeg", "decode",
