@@ -12,7 +12,7 @@
 
 namespace clipwarden::cli {
 
-// Exit statuses fixed by DESIGN.md.
+// Exit statuses, as docs/cli.md states them (CliDocs checks the table).
 enum ExitStatus : int {
   kExitOk = 0,
   kExitGateFailed = 1,

@@ -12,7 +12,7 @@ struct CommandName {
   const char* summary;
 };
 
-inline constexpr std::array<CommandName, 7> kCommandNames = {{
+inline constexpr std::array<CommandName, 8> kCommandNames = {{
     {"analyze", "analyze clips; write a JSON and an HTML report per clip"},
     {"probe", "print what a clip's container holds, as JSON"},
     {"gate", "judge a batch of clips into a review queue (queue.jsonl, index.html)"},
@@ -20,6 +20,7 @@ inline constexpr std::array<CommandName, 7> kCommandNames = {{
     {"inspect", "write PNG panels (flow, warp, error, occlusion) for one frame"},
     {"compare", "compare two model versions on the same prompts, with paired statistics"},
     {"inject", "write a copy of a clip with known defects, and where they are"},
+    {"metrics", "list the metrics: columns, units, better direction, default rules"},
 }};
 
 }  // namespace clipwarden::cli

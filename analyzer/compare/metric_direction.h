@@ -1,7 +1,7 @@
-// Which way is better for each statistic a report holds. The per-frame
-// metrics measure defects, so lower is better; the coherence score is the
-// exception. Some report columns describe the content rather than its
-// quality and have no better direction; they are not compared.
+// Which way is better for each statistic a report holds: a column's
+// direction comes from its metric's descriptor (Better, metric_descriptor.h);
+// the coherence score is higher-is-better. Columns that describe the content
+// rather than its quality have no better direction; they are not compared.
 #pragma once
 
 #include <string>

@@ -11,8 +11,8 @@
 namespace clipwarden {
 
 // The cut score at which a frame starts a new shot. Also the default
-// policy's cut threshold (analyzer/policy/default_policy.cpp), where the
-// measurement behind the number is given.
+// policy's cut threshold (cut's descriptor, analyzer/metrics/cut_metric.cpp,
+// where the measurement behind the number is given).
 inline constexpr double kShotBoundaryCut = 0.4;
 
 // true at frame t when frame t starts a new shot (t >= 1). Empty when the

@@ -1,5 +1,6 @@
-// The one interface every metric implements. A metric says which per-frame
-// columns it writes, measures a frame pair (possibly concurrently with other
+// The one interface every metric implements. A metric's descriptor (beside
+// its code, metric_descriptor.h) says which per-frame columns it writes and
+// what they mean; the metric measures a frame pair (possibly concurrently with other
 // pairs), may carry state across frames in order, and finishes its series
 // into the report once the clip ends. Metrics are listed in registry.cpp.
 //
@@ -21,6 +22,7 @@
 #include <vector>
 
 #include "analyzer/frame/frame_pair.h"
+#include "analyzer/metrics/metric_descriptor.h"
 #include "clipwarden/analysis.h"
 #include "clipwarden/report.h"
 
@@ -30,8 +32,16 @@ class Metric {
  public:
   virtual ~Metric() = default;
 
-  // Per-frame columns this metric writes into report.frames, in order.
-  virtual std::vector<std::string> columns() const = 0;
+  // The metric's descriptor, the same object registry.cpp lists.
+  virtual const MetricDescriptor& descriptor() const = 0;
+
+  // Per-frame columns this metric writes into report.frames, in order: the
+  // descriptor's columns.
+  std::vector<std::string> columns() const {
+    std::vector<std::string> names;
+    for (const auto& c : descriptor().columns) names.push_back(c.name);
+    return names;
+  }
 
   // Called for frame 0 (no previous frame); `out` has one slot per column,
   // pre-filled with kUndefined.

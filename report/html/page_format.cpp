@@ -3,6 +3,7 @@
 #include <cmath>
 #include <cstdio>
 
+#include "analyzer/metrics/metric_descriptor.h"
 #include "report/html/html_escape.h"
 #include "report/html/page_parts.h"
 
@@ -35,28 +36,9 @@ std::string pct(double fraction) {
 }
 
 std::string metric_description(const std::string& metric) {
-  if (metric == "warp_error")
-    return "Warping error (Lai et al. 2018): squared RGB difference (channels 0\u20131, summed) "
-           "between the frame and the previous frame warped onto it by optical flow, mean over "
-           "non-occluded pixels.";
-  if (metric.rfind("warp_error_", 0) == 0)
-    return "Long-range warping error: as warp_error, across several frames.";
-  if (metric == "occluded_pct")
-    return "Share of pixels failing the forward\u2013backward flow check (Sundaram et al. 2010), "
-           "in %.";
-  if (metric == "flicker")
-    return "Brightness change that motion does not explain (relative luminance after motion "
-           "compensation, against its running median).";
-  if (metric == "drift")
-    return "The worst tracked object's departure from its own first appearance (colour, structure, "
-           "size).";
-  if (metric == "cut")
-    return "A hard discontinuity: flow cannot follow and the picture changes a lot.";
-  if (metric == "freeze") return "The frame repeats the previous one.";
-  if (metric == "jerk") return "Spikes in the acceleration of the dominant (camera) motion.";
-  if (metric == "flash")
-    return "General and red flashes as defined by WCAG 2.x, counted in a one-second window.";
-  return "";
+  const ColumnDescriptor* column = find_column(metric);
+  if (!column) return "";
+  return column->description + " Unit: " + column->unit + ".";
 }
 
 const char* severity_name(Severity s) { return to_string(s); }

@@ -32,7 +32,8 @@ std::string num(double v);
 std::string seconds(double s);
 // "12.3%" for a CSS position.
 std::string pct(double fraction);
-// One line saying what a metric measures (known metrics), else "".
+// What a report column measures and its unit, from its metric's descriptor
+// (analyzer/metrics/metric_descriptor.h); "" for a column no metric writes.
 std::string metric_description(const std::string& metric);
 const char* severity_name(Severity s);
 

@@ -5,6 +5,7 @@
 #include <cstdio>
 #include <set>
 
+#include "analyzer/metrics/metric_descriptor.h"
 #include "analyzer/segments/segmenter.h"
 
 namespace clipwarden::accuracy {
@@ -12,24 +13,19 @@ using inject::DefectClass;
 using inject::StrengthLevel;
 
 const std::vector<std::string>& metrics_for(DefectClass cls) {
-  static const std::map<DefectClass, std::vector<std::string>> table = {
-      {DefectClass::flicker, {"flicker"}},
-      {DefectClass::local_flicker, {"flicker_local"}},
-      {DefectClass::boiling, {"boiling"}},
-      {DefectClass::colour_drift, {"drift"}},
-      {DefectClass::shape_drift, {"drift"}},
-      {DefectClass::vanish, {"drift"}},
-      {DefectClass::freeze, {"freeze"}},
-      {DefectClass::drop, {"jerk"}},  // plus summary.stream.dropped_frames
-      // A splice to another moment of the same shot (the evaluation's cuts
-      // come from the same clip) keeps the colours and, with a still
-      // camera, the layout: only what moved jumps. That is a local
-      // discontinuity the warping error sees at the splice, not a cut.
-      {DefectClass::cut, {"cut", "warp_error"}},
-      {DefectClass::jerk, {"jerk"}},
-      {DefectClass::strobe, {"flash"}},
-  };
-  return table.at(cls);
+  // From the descriptors: the columns that declare the class in `catches`,
+  // in registry order.
+  static const std::map<DefectClass, std::vector<std::string>> table = [] {
+    std::map<DefectClass, std::vector<std::string>> out;
+    for (const MetricDescriptor* m : metric_descriptors())
+      for (const ColumnDescriptor& c : m->columns)
+        for (const std::string& name : c.catches)
+          if (auto parsed = inject::defect_class_from_string(name)) out[*parsed].push_back(c.name);
+    return out;
+  }();
+  static const std::vector<std::string> none;
+  const auto it = table.find(cls);
+  return it == table.end() ? none : it->second;
 }
 
 namespace {

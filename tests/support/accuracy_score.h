@@ -18,11 +18,10 @@
 
 namespace clipwarden::accuracy {
 
-// The metrics whose segments should catch a class (DESIGN.md's metric list):
-// flicker -> flicker, local_flicker -> flicker_local, boiling -> boiling, colour/shape drift and vanish -> drift, freeze ->
-// freeze, drop -> the stream's dropped_frames (and jerk), cut -> cut and
-// warp_error (a splice within one shot),
-// jerk -> jerk, strobe -> flash.
+// The columns whose segments should catch a class: those whose descriptor
+// lists the class in `catches` (analyzer/metrics/*_metric.cpp), in registry
+// order; a drop is also found by the stream's dropped_frames. Empty for a
+// class no column declares (the registry test requires one for each).
 const std::vector<std::string>& metrics_for(inject::DefectClass cls);
 
 // Frames of one clip where a class's detection is expected: the truth range,
