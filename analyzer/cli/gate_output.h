@@ -35,7 +35,7 @@ std::string summary_text(const GateCounts& counts);
 // --fail-on review|reject (default reject).
 Expected<Verdict> fail_on_from_args(const ParsedArgs& args);
 
-// DESIGN.md: 3 if any clip could not be judged (outranks 1), 1 if any clip
+// docs/cli.md: 3 if any clip could not be judged (outranks 1), 1 if any clip
 // is at or above fail_on, else 0.
 int gate_exit_status(const GateCounts& counts, Verdict fail_on);
 

@@ -1,4 +1,4 @@
-// Hostile names through the real CLI into every page (issue 10): clips named
+// Hostile names through the real CLI into every page: clips named
 // like markup, javascript: URLs, an RTL override and a very long name go
 // through `clipwarden analyze` (clip pages), a manifest whose id, prompt_id,
 // model and free fields are hostile and whose paths hold ../ components goes

@@ -1,7 +1,7 @@
 // `clipwarden analyze` end to end, through the built binary: reports that
 // match the schema, frame counts that match ffprobe (the outside source),
 // and bad inputs that end in one clear line and exit status 3 while every
-// good clip in the same batch is still reported (DESIGN.md, exit status).
+// good clip in the same batch is still reported (docs/cli.md, exit statuses).
 #include <gtest/gtest.h>
 
 #include <fstream>

@@ -1,4 +1,4 @@
-// Bad-input corpus (issue 10): broken and unusual clips, made at run time
+// Bad-input corpus: broken and unusual clips, made at run time
 // from FFmpeg's lavfi test sources and byte surgery (never committed), each
 // given to the built `clipwarden analyze` with a time limit. Every case must
 // end in either a schema-valid report (exit 0/1) or a one-line error naming

@@ -1,5 +1,5 @@
 // `clipwarden probe` end to end: JSON on stdout with the report's clip keys
-// plus "stream" (DESIGN.md: probe prints what the container holds); bad
+// plus "stream" (docs/cli.md: probe prints what the container holds); bad
 // input gives exit status 3 and one line on stderr naming the file.
 #include <gtest/gtest.h>
 

@@ -1,5 +1,5 @@
-// `clipwarden gate` end to end through the built binary (DESIGN.md "gate" and
-// exit statuses, issue 6). Good clips are excerpts of real footage (OpenCV's
+// `clipwarden gate` end to end through the built binary (docs/gate.md and
+// docs/cli.md's exit statuses). Good clips are excerpts of real footage (OpenCV's
 // vtest.avi street scene, cut and scaled by FFmpeg); the defect is a
 // full-frame light/dark alternation made by FFmpeg's geq filter, six flashes
 // a second, over the WCAG 2.x limit of three; the bad inputs are random

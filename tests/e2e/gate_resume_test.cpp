@@ -1,4 +1,4 @@
-// Resuming a killed batch (issue 6): a real `clipwarden gate` child is killed
+// Resuming a killed batch (docs/gate.md): a real `clipwarden gate` child is killed
 // with SIGKILL once the results store holds at least one clip; running the
 // same command again finishes the rest. No clip may be lost or counted
 // twice: the queue has every clip once, the store one row per clip, and

@@ -1,4 +1,4 @@
-// Shards (issue 6): `gate --shard I/N` runs, one of them taking its index
+// Shards (docs/gate.md): `gate --shard I/N` runs, one of them taking its index
 // from a Kubernetes indexed Job's JOB_COMPLETION_INDEX, joined by `merge`,
 // equal a single run clip for clip, with no duplicates.
 #include <gtest/gtest.h>

@@ -1,4 +1,4 @@
-// Crash safety of `clipwarden gate` (issue 10): a batch of 8 short clips
+// Crash safety of `clipwarden gate` (docs/cli.md): a batch of 8 short clips
 // (--jobs 2) is interrupted at pseudo-random points (fixed seed, spread over
 // a measured uninterrupted run) with SIGKILL three times in a row, and once
 // each with SIGINT and SIGTERM; then the same command runs to completion.

@@ -1,4 +1,4 @@
-// `clipwarden inject` end to end (the built binary): DESIGN.md's synopsis
+// `clipwarden inject` end to end (the built binary): docs/cli.md's synopsis
 // and exit statuses (0 done, 2 bad usage, 3 unreadable input), the written
 // clip as ffprobe sees it, and the truth file.
 #include <gtest/gtest.h>

@@ -1,4 +1,4 @@
-// `clipwarden inspect` end to end on opencv-doc footage (DESIGN.md: writes PNG
+// `clipwarden inspect` end to end on opencv-doc footage (docs/html.md: writes PNG
 // panels for one frame and prints their paths; exit 2 for bad usage, 3 for
 // an unreadable input).
 #include <gtest/gtest.h>

@@ -69,7 +69,7 @@ double peak_drift_except(const Report& r, int id) {
 // within 15%, and its drift segment must open within 6 frames (0.5 s) of the
 // start of the injection; the static scene must stay below segment level.
 // Known regression after merging the pipeline changes of 2026-12-01: no drift
-// segment is produced any more (issue 3 note). Re-enable once fixed.
+// segment is produced any more. Re-enable once fixed.
 TEST(DriftInjected, HueRampOnMovingPatchIsColourDrift) {
   Scene s = base_scene();
   REQUIRE_SCENE(s);
@@ -124,7 +124,7 @@ TEST(DriftInjected, GlobalBrightnessAndColourRampIsNotDrift) {
 // The patch shrinks to 70% of its size (about its centre) over frames 12-36
 // while it moves; the camera does not zoom. Reported as size drift of about
 // -30% and a drift segment above the review level.
-// Known regression after the merge of 2026-12-01 (issue 3 note).
+// Known regression after the merge of 2026-12-01.
 TEST(DriftInjected, PatchShrinkingBy30PercentIsReported) {
   Scene s = base_scene();
   REQUIRE_SCENE(s);
@@ -173,7 +173,7 @@ TEST(DriftInjected, PatchWalkingOutOfTheFrameEndsAsLeftFrame) {
 // second, same timing in seconds) reads the same colour drift and the same
 // onset in seconds: drift compares a look with the reference, and its
 // timing constants are in seconds.
-// Known regression after the merge of 2026-12-01 (issue 3 note).
+// Known regression after the merge of 2026-12-01.
 TEST(DriftInjected, ColourDriftIsComparableAcrossFrameRates) {
   Scene s = base_scene();
   REQUIRE_SCENE(s);

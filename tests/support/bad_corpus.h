@@ -1,4 +1,4 @@
-// The bad-input corpus of issue 10: broken and unusual clips made at run
+// The bad-input corpus: broken and unusual clips made at run
 // time (FFmpeg lavfi sources, then byte surgery with fixed seeds), each with
 // what a correct checker must do with it.
 #pragma once

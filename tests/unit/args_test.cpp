@@ -1,5 +1,5 @@
 // The CLI argument parser (analyzer/cli/args.*): behaviour is our own
-// contract, so these checks are against DESIGN.md's command synopses.
+// contract, so these checks are against docs/cli.md's command synopses.
 #include <gtest/gtest.h>
 
 #include "analyzer/cli/args.h"

@@ -1,5 +1,5 @@
 // evaluate_policy on reports built in memory. The rules are our own contract
-// (DESIGN.md "Policy", issue 6); the flash rule follows WCAG 2.x ("more than
+// (docs/report.md "verdict", docs/gate.md); the flash rule follows WCAG 2.x ("more than
 // three flashes in any one-second period"); the reasons must name the metric,
 // the value, the threshold and the time range.
 #include <gtest/gtest.h>

@@ -1,4 +1,4 @@
-// Folder inputs that hold no clips (issue 10): a folder named like a video
+// Folder inputs that hold no clips (docs/gate.md): a folder named like a video
 // file is taken as a clip, so the batch reports it as unreadable instead of
 // dropping it; a folder argument with no clips at all warns.
 #include <gtest/gtest.h>

@@ -1,5 +1,5 @@
 // Gate inputs (analyzer/gate/inputs.cpp) and shards (analyzer/gate/shard.cpp).
-// Manifests and folders follow our own contract (DESIGN.md "gate"); the FNV-1a
+// Manifests and folders follow our own contract (docs/gate.md); the FNV-1a
 // check values are the published ones for 64-bit FNV-1a (Fowler/Noll/Vo test
 // suite; "a" and "foobar" recalled from memory and confirmed with a
 // three-line Python transcription of the published algorithm; "" is the

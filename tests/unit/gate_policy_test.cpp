@@ -1,5 +1,5 @@
 // Policy files (analyzer/policy/policy_json.cpp): the format is our own
-// contract (docs/gate.md, DESIGN.md "Policy"): unknown keys, wrong types and
+// contract (docs/gate.md, "Policy files"): unknown keys, wrong types and
 // impossible thresholds are usage errors naming the key path; the default
 // policy printed as JSON reads back unchanged.
 #include <gtest/gtest.h>

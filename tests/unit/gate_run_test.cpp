@@ -1,7 +1,7 @@
 // The gate's batch runner, store reuse, shards and merge (analyzer/gate/),
 // with a stand-in analysis so the batch logic is tested on its own: each
 // clip file holds the verdict its stand-in report gets. The contract is
-// DESIGN.md "gate" and issue 6: queue in input order, errors recorded,
+// docs/gate.md: queue in input order, errors recorded,
 // nothing recomputed that the store holds, shards' union equals one run.
 #include <gtest/gtest.h>
 

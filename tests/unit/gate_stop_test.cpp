@@ -1,4 +1,4 @@
-// Stopping a batch (issue 10): GateOptions::stop, set by the CLI's SIGINT and
+// Stopping a batch (docs/cli.md, exit statuses): GateOptions::stop, set by the CLI's SIGINT and
 // SIGTERM handlers, starts no new clip; clips in flight get stop_grace_s and
 // are then abandoned. Either way the queue holds exactly the finished clips,
 // the store one row per finished clip, and a rerun finishes the batch. A

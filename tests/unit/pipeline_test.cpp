@@ -1,6 +1,6 @@
 // The pipeline end to end on frames made in memory (no decoder): a smooth
 // pan of a texture, with known defects placed at known frames. The checks
-// are the definitions in DESIGN.md: warp error of frame 0 is undefined; a
+// are the definitions in docs/metrics.md: warp error of frame 0 is undefined; a
 // motion-compensated brightness pulse is flicker, a pan is not; a repeated
 // frame is a freeze; a jump to another texture is a cut.
 #include <gtest/gtest.h>

@@ -1,5 +1,5 @@
 // Report JSON: writing, reading back, schema checks. The schema is our own
-// contract (DESIGN.md "The per-clip report"); its checker is compared with
+// contract (docs/report.md); its checker is compared with
 // python-jsonschema in tests/reference/schema_reference_test.cpp.
 #include <gtest/gtest.h>
 

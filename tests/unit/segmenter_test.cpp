@@ -1,5 +1,5 @@
 // The segmenter and summary (analyzer/segments, analyzer/summary). The rules
-// are our own contract (DESIGN.md "Segments"); the statistics are checked
+// are our own contract (docs/report.md, segments); the statistics are checked
 // against hand-worked values of their textbook definitions.
 #include <gtest/gtest.h>
 
