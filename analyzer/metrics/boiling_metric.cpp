@@ -66,8 +66,8 @@ const MetricDescriptor& boiling_descriptor() {
           {.name = "boiling",
            .unit = "residual covariance, RGB in [0,1]: fresh noise of 8-bit sd s reads 3 (s/255)^2",
            .description = "Texture re-drawn every frame in part of the picture: the worst cell's "
-                          "anti-correlation of successive motion-compensated residuals, minus the median "
-                          "cell's.",
+                          "anti-correlation of successive motion-compensated residuals above its own quiet "
+                          "level, minus the median cell's.",
            .better = Better::lower,
            .frame_rate = FrameRateDependence::none,
            .frame_rate_text = "adjacent frames: noise re-drawn every frame reads the same at any fps",
