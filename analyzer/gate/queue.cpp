@@ -3,7 +3,7 @@
 
 #include "clipwarden/gate.h"
 #include "clipwarden/report_io.h"
-#include "report/html/queue_page.h"
+#include "analyzer/gate/queue_page.h"
 
 namespace clipwarden {
 namespace {

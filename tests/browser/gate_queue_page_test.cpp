@@ -1,4 +1,4 @@
-// The review-queue page (report/html/queue_page.cpp) loaded in headless
+// The review-queue page (analyzer/gate/queue_page.cpp) loaded in headless
 // Chromium (Debian's chromium package, driven by tests/browser/page_check.py):
 // the browser itself reports that the Content-Security-Policy lets the page's
 // style apply (no violation), that nothing is requested from the network and
@@ -7,7 +7,7 @@
 
 #include <filesystem>
 
-#include "report/html/queue_page.h"
+#include "analyzer/gate/queue_page.h"
 #include "support/clips.h"
 #include "support/gate_files.h"
 

@@ -1,4 +1,4 @@
-#include "report/html/queue_page.h"
+#include "analyzer/gate/queue_page.h"
 
 #include <algorithm>
 #include <cmath>
