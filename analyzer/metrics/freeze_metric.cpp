@@ -1,8 +1,9 @@
-// freeze: 1 when frame t repeats frame t-1, else 0. "Repeats" means the
-// mean absolute difference of the two grey frames is at most 0.001 of the
-// full range (-60 dB), the same noise floor FFmpeg's freezedetect filter
-// uses by default (its `noise` option, -60 dB) [recalled from FFmpeg's
-// filter documentation]. The freeze test checks agreement with freezedetect.
+// freeze: 1 when frame t repeats frame t-1 (same_picture, image_error.h),
+// else 0. Repeats that the clip's own cadence explains (a GIF storing every
+// picture 3 times) never reach the metric: the pipeline leaves them out
+// (analyzer/pipeline/cadence_filter.h), so what stays still here is motion
+// that stopped against the clip's cadence. The freeze test checks agreement
+// with FFmpeg's freezedetect.
 #include "analyzer/metrics/image_error.h"
 #include "analyzer/metrics/metric.h"
 
@@ -45,13 +46,11 @@ const MetricDescriptor& freeze_descriptor() {
 
 namespace {
 
-constexpr double kRepeatMaxMeanDifference = 0.001;
-
 class FreezeMetric final : public Metric {
  public:
   const MetricDescriptor& descriptor() const override { return freeze_descriptor(); }
   void measure_pair(const FramePair& pair, std::span<double> out) const override {
-    out[0] = mean_absolute_difference(pair.cur->gray, pair.prev->gray) <= kRepeatMaxMeanDifference ? 1.0 : 0.0;
+    out[0] = same_picture(pair.cur->gray, pair.prev->gray) ? 1.0 : 0.0;
   }
 };
 

@@ -1,5 +1,6 @@
 #include "analyzer/metrics/image_error.h"
 
+#include <algorithm>
 #include <cmath>
 #include <cstdlib>
 #include <limits>
@@ -30,6 +31,22 @@ double masked_squared_rgb_error(const cv::Mat& a, const cv::Mat& b, const cv::Ma
 double mean_absolute_difference(const cv::Mat& a, const cv::Mat& b) {
   CV_Assert(a.type() == CV_8UC1 && b.type() == CV_8UC1 && a.size() == b.size());
   return cv::norm(a, b, cv::NORM_L1) / (255.0 * static_cast<double>(a.total()));
+}
+
+bool same_picture(const cv::Mat& a, const cv::Mat& b) {
+  constexpr double kRepeatMaxMeanDifference = 0.001;
+  constexpr int kCellPx = 32;
+  constexpr double kCellMaxMeanDifference = 2.0 / 255.0;
+  if (a.size() != b.size() || mean_absolute_difference(a, b) > kRepeatMaxMeanDifference)
+    return false;
+  cv::Mat diff;
+  cv::absdiff(a, b, diff);
+  for (int y = 0; y < diff.rows; y += kCellPx)
+    for (int x = 0; x < diff.cols; x += kCellPx) {
+      const cv::Rect cell(x, y, std::min(kCellPx, diff.cols - x), std::min(kCellPx, diff.rows - y));
+      if (cv::mean(diff(cell))[0] / 255.0 > kCellMaxMeanDifference) return false;
+    }
+  return true;
 }
 
 double masked_mean_difference(const cv::Mat& a, const cv::Mat& b, const cv::Mat& mask) {

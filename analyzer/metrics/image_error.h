@@ -13,6 +13,18 @@ double masked_squared_rgb_error(const cv::Mat& a_bgr8, const cv::Mat& b_bgr8, co
 // Mean absolute difference of two CV_8UC1 images, in [0,1].
 double mean_absolute_difference(const cv::Mat& a8, const cv::Mat& b8);
 
+// True when two CV_8UC1 frames show the same picture: mean absolute
+// difference at most 0.001 of the full range (-60 dB), the noise floor
+// FFmpeg's freezedetect filter uses by default (its `noise` option) [recalled
+// from FFmpeg's filter documentation], and no 32x32 cell differing by more
+// than 2/255 on average. The second test keeps a near-still scene in which
+// one small thing moves (a person drinking, filmed from afar) from reading
+// as a frozen picture: the whole frame's mean hides the moving cell, and a
+// stored repeat's compression noise stays far below 2 levels in every
+// cell. The freeze metric and the cadence filter share this one test, so a
+// repeat the cadence keeps reads as still.
+bool same_picture(const cv::Mat& a8, const cv::Mat& b8);
+
 // Mean over mask of (a - b) for CV_32FC1 images; NaN if the mask is empty.
 double masked_mean_difference(const cv::Mat& a32, const cv::Mat& b32, const cv::Mat& mask);
 

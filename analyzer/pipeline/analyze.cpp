@@ -166,6 +166,7 @@ Expected<Report> analyze_source(ClipSource& source, const std::string& path, con
   const int64_t expected = source.info().frame_count;
   Analysis analysis(settings, worker_count(settings));
   std::optional<Error> stopped;
+  std::optional<Cadence> cadence;
   {
     FrameStream stream(source, kDecodedFramesQueued);
     int64_t done = 0;
@@ -175,6 +176,7 @@ Expected<Report> analyze_source(ClipSource& source, const std::string& path, con
       if (hooks.on_progress) hooks.on_progress(++done, expected);
     }
     stopped = stream.error();
+    cadence = stream.cadence().cadence(source.stream_facts().video_duration_s);
     if (hooks.timings) hooks.timings->decode_ms += stream.busy_ms();
   }
   MetricTable& table = analysis.finish();
@@ -184,7 +186,7 @@ Expected<Report> analyze_source(ClipSource& source, const std::string& path, con
   if (table.frame_count() == 0) return input_error(path, "no video frames could be decoded");
 
   const auto finishing = Clock::now();
-  ReportInputs inputs{path, settings, policy, source};
+  ReportInputs inputs{path, settings, policy, source, std::move(cadence)};
   Report report = assemble_report(inputs, table, analysis.metrics());
   if (PipelineTimings* t = hooks.timings) {
     analysis.add_times(*t);

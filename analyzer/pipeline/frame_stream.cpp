@@ -17,6 +17,13 @@ FrameStream::~FrameStream() {
 void FrameStream::run() {
   DecodedFrame frame;
   using Clock = std::chrono::steady_clock;
+  std::vector<CadenceFilter::Frame> ready;
+  auto hand_on = [&] {
+    for (auto& planes : ready)
+      if (!queue_.push(std::move(planes))) return false;  // consumer stopped
+    ready.clear();
+    return true;
+  };
   while (true) {
     const auto start = Clock::now();
     // The decoder scales straight into a recycled frame's BGR buffer.
@@ -30,8 +37,14 @@ void FrameStream::run() {
     }
     if (!*more) break;
     prepare_planes(frame.index, frame.t_s, planes->bgr, *planes);
+    cadence_.push(std::move(planes), ready);
     busy_ms_ += std::chrono::duration<double, std::milli>(Clock::now() - start).count();
-    if (!queue_.push(std::move(planes))) return;  // consumer stopped
+    if (!hand_on()) return;
+  }
+  // A stream that stopped on an error is not analysed: nothing to hand on.
+  if (!error_) {
+    cadence_.finish(ready);
+    if (!hand_on()) return;
   }
   queue_.close();
 }

@@ -1,5 +1,7 @@
 // Decoding on its own thread: frames are read, their planes prepared (grey,
-// luminance), and handed on through a bounded queue.
+// luminance), stored repeats that the clip's cadence explains are left out
+// (cadence_filter.h), and the rest handed on through a bounded queue,
+// numbered in analysis order.
 #pragma once
 
 #include <memory>
@@ -7,6 +9,7 @@
 #include <thread>
 
 #include "analyzer/frame/frame_pair.h"
+#include "analyzer/pipeline/cadence_filter.h"
 #include "analyzer/pipeline/bounded_queue.h"
 #include "analyzer/pipeline/planes_pool.h"
 #include "clipwarden/clip_source.h"
@@ -27,6 +30,9 @@ class FrameStream {
   const std::optional<Error>& error() const { return error_; }
   // Time the decoder thread spent working (not waiting), after the end.
   double busy_ms() const { return busy_ms_; }
+  // After the end: the cadence found (cadence_filter.h) and the decoded
+  // index of every frame handed on.
+  const CadenceFilter& cadence() const { return cadence_; }
 
  private:
   void run();
@@ -34,6 +40,7 @@ class FrameStream {
   BoundedQueue<std::shared_ptr<const FramePlanes>> queue_;
   std::shared_ptr<PlanesPool> pool_;
   std::optional<Error> error_;
+  CadenceFilter cadence_;
   double busy_ms_ = 0;
   std::thread thread_;
 };

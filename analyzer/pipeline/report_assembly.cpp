@@ -22,6 +22,9 @@ Report assemble_report(const ReportInputs& in, MetricTable& table,
   // frame's real duration, average fps); the count is what was analysed.
   report.clip.frame_count = static_cast<int64_t>(report.frame_times_s.size());
   report.summary.stream = in.source.stream_facts();
+  // A cadence is a fact of the stream, beside summary.stream: written
+  // as summary.cadence.details (README, "Frame cadences").
+  if (in.cadence) report.summary.details["cadence"] = in.cadence->to_json();
 
   for (auto& m : metrics) m->finish(report);  // may add details, objects, segments
 

@@ -8,6 +8,7 @@
 #include <vector>
 
 #include "analyzer/metrics/metric.h"
+#include "analyzer/pipeline/cadence_filter.h"
 #include "analyzer/pipeline/metric_table.h"
 #include "clipwarden/analysis.h"
 
@@ -18,6 +19,7 @@ struct ReportInputs {
   const AnalysisSettings& settings;
   const Policy& policy;
   const ClipSource& source;
+  std::optional<Cadence> cadence;  // when stored repeats were left out
 };
 
 Report assemble_report(const ReportInputs& in, MetricTable& table,

@@ -4,7 +4,9 @@
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
+#include <utility>
 
+#include "analyzer/policy/plain_words.h"
 #include "clipwarden/policy.h"
 
 namespace clipwarden {
@@ -56,9 +58,9 @@ std::string whole_clip(const Report& r) {
   return "(whole clip, 0.00-" + seconds(clip_duration_s(r)) + " s)";
 }
 
-// Frames first..last where `pred` holds on the series, as a range text.
+// The first and last frame where `pred` holds on the series ({-1, -1}: none).
 template <class Pred>
-std::string where(const Report& r, const std::string& metric, Pred pred) {
+std::pair<int64_t, int64_t> span_where(const Report& r, const std::string& metric, Pred pred) {
   const MetricSeries* s = r.find_series(metric);
   int64_t first = -1, last = -1;
   if (s)
@@ -67,6 +69,13 @@ std::string where(const Report& r, const std::string& metric, Pred pred) {
         if (first < 0) first = static_cast<int64_t>(i);
         last = static_cast<int64_t>(i);
       }
+  return {first, last};
+}
+
+// Frames where `pred` holds on the series, as a range text.
+template <class Pred>
+std::string where(const Report& r, const std::string& metric, Pred pred) {
+  const auto [first, last] = span_where(r, metric, pred);
   return first < 0 ? whole_clip(r) : frame_range(r, first, last);
 }
 
@@ -94,7 +103,17 @@ std::vector<const Segment*> segments_of(const Report& r, const std::string& metr
 struct Measured {
   double value;
   std::string place;
+  int64_t first = -1, last = -1;  // frames the place covers; -1: the whole clip
+  int count = 1;                  // stretches it covers
 };
+
+// ": what was seen", or "" when the metric has no wording.
+std::string seen(const Report& r, const std::string& metric, int64_t first, int64_t last,
+                 int count) {
+  if (first < 0) first = 0, last = static_cast<int64_t>(r.frame_times_s.size()) - 1;
+  const std::string words = plain_words(r, metric, first, last, count);
+  return words.empty() ? "" : ": " + words;
+}
 
 std::optional<double> details_number(const Report& r, const std::string& metric,
                                      const std::string& key) {
@@ -118,7 +137,7 @@ std::optional<Measured> measure(const Report& r, const SummaryRule& rule, double
   if (stat.rfind("details.", 0) == 0) {
     auto v = details_number(r, rule.metric, stat.substr(8));
     if (!v) return std::nullopt;
-    return Measured{*v, whole_clip(r)};
+    return Measured{*v, whole_clip(r), -1, -1, 1};
   }
   if (stat == "segment_count" || stat == "longest_segment_s" || stat == "segment_total_s") {
     auto segs = segments_of(r, rule.metric);
@@ -130,12 +149,15 @@ std::optional<Measured> measure(const Report& r, const SummaryRule& rule, double
         return segment_duration_s(r, *a) < segment_duration_s(r, *b);
       });
       return Measured{segment_duration_s(r, *longest),
-                      frame_range(r, longest->start_frame, longest->end_frame)};
+                      frame_range(r, longest->start_frame, longest->end_frame),
+                      longest->start_frame, longest->end_frame, 1};
     }
     double total = 0;
     for (auto* s : segs) total += segment_duration_s(r, *s);
     const std::string place = frame_range(r, segs.front()->start_frame, segs.back()->end_frame);
-    return Measured{stat == "segment_count" ? static_cast<double>(segs.size()) : total, place};
+    return Measured{stat == "segment_count" ? static_cast<double>(segs.size()) : total, place,
+                    segs.front()->start_frame, segs.back()->end_frame,
+                    static_cast<int>(segs.size())};
   }
   const MetricSummary* m = r.find_summary(rule.metric);
   if (!m) return std::nullopt;
@@ -144,7 +166,8 @@ std::optional<Measured> measure(const Report& r, const SummaryRule& rule, double
                    : stat == "p95" ? m->p95
                                    : m->max;
   if (!is_defined(v)) return std::nullopt;
-  return Measured{v, where(r, rule.metric, [&](double x) { return x >= threshold; })};
+  const auto [first, last] = span_where(r, rule.metric, [&](double x) { return x >= threshold; });
+  return Measured{v, first < 0 ? whole_clip(r) : frame_range(r, first, last), first, last, 1};
 }
 
 void check_summary_rules(const Report& r, const Policy& p, std::vector<Finding>& out) {
@@ -164,7 +187,8 @@ void check_summary_rules(const Report& r, const Policy& p, std::vector<Finding>&
       continue;
     }
     out.push_back({level, rule.metric + " " + rule.statistic + " " + num(m->value) +
-                              " >= " + to_string(level) + " " + num(threshold) + " " + m->place});
+                              " >= " + to_string(level) + " " + num(threshold) + " " + m->place +
+                              seen(r, rule.metric, m->first, m->last, m->count)});
   }
 }
 
@@ -198,6 +222,7 @@ void check_segments(const Report& r, const Policy& p, std::vector<Finding>& out)
     text += " " + frame_range(r, worst->start_frame, worst->end_frame);
     if (count > 1)
       text += ", " + std::to_string(count) + " " + to_string(level) + " segments in all";
+    text += seen(r, metric, worst->start_frame, worst->end_frame, 1);
     out.push_back({level, text});
   }
 }

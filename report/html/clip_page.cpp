@@ -74,6 +74,13 @@ std::string facts_block(const Report& report, const HtmlOptions& options) {
   if (st.dropped_frames) stream += ", " + std::to_string(st.dropped_frames) + " dropped";
   if (st.duplicate_timestamps)
     stream += ", " + std::to_string(st.duplicate_timestamps) + " repeated timestamps";
+  if (report.summary.details.contains("cadence")) {
+    const auto& cadence = report.summary.details["cadence"];
+    stream += ", " + std::to_string(cadence.value("stored_frames", 0)) + " stored frames hold " +
+              std::to_string(cadence.value("pictures", 0)) + " pictures (content " +
+              num(cadence.value("content_fps", 0.0)) +
+              " fps): repeats of that cadence were left out of the analysis";
+  }
   out += fact("timing", stream);
   std::string audio = c.audio.present ? html_escape(c.audio.codec) : "none";
   if (c.audio.duration_s) audio += ", " + seconds(*c.audio.duration_s);

@@ -11,6 +11,13 @@
 //       [--classes a,b] [--seed N] [--json FILE] [--markdown FILE] [--sweep]
 //       [--reports DIR]   (also write every analysed report to DIR)
 //       [--preset fast|balanced|thorough]   (flow effort; default balanced)
+//       [--corpus DIR]     (real-footage corpus with MANIFEST.tsv; default
+//                           $CLIPWARDEN_CORPUS or shared/corpus beside the
+//                           checkout when present: verdicts of its clips)
+//       [--corpus-only]    (the corpus part alone, no injected set)
+//       [--calibrate]      (derive the natural levels of
+//                           analyzer/metrics/natural_levels.cpp from the
+//                           corpus's camera clips and print them)
 #include <algorithm>
 #include <cmath>
 #include <cstdio>
@@ -22,6 +29,8 @@
 #include <string>
 
 #include "support/accuracy_run.h"
+#include "support/corpus_run.h"
+#include "support/natural_calibration.h"
 
 using namespace clipwarden;
 using namespace clipwarden::accuracy;
@@ -44,7 +53,14 @@ std::vector<std::string> split(const std::string& text) {
   std::exit(2);
 }
 
-EvalOptions parse(int argc, char** argv, std::string& json_path, std::string& md_path, bool& sweep) {
+struct CorpusOptions {
+  std::string dir;
+  bool only = false;
+  bool calibrate = false;
+};
+
+EvalOptions parse(int argc, char** argv, std::string& json_path, std::string& md_path, bool& sweep,
+                  CorpusOptions& corpus) {
   EvalOptions o;
   o.set.work_dir = "/tmp/clipwarden-accuracy";
   o.set.long_side = 512;
@@ -67,6 +83,9 @@ EvalOptions parse(int argc, char** argv, std::string& json_path, std::string& md
     else if (a == "--markdown") md_path = value();
     else if (a == "--sweep") sweep = true;
     else if (a == "--reports") o.reports_dir = value();
+    else if (a == "--corpus") corpus.dir = value();
+    else if (a == "--corpus-only") corpus.only = true;
+    else if (a == "--calibrate") corpus.calibrate = true;
     else if (a == "--preset") {
       auto preset = preset_from_string(value());
       if (!preset) usage("--preset is fast, balanced or thorough");
@@ -177,8 +196,39 @@ void print_sweep(const EvalRun& run, const Policy& base) {
 int main(int argc, char** argv) {
   std::string json_path, md_path;
   bool sweep = false;
-  EvalOptions options = parse(argc, argv, json_path, md_path, sweep);
+  CorpusOptions corpus_options;
+  EvalOptions options = parse(argc, argv, json_path, md_path, sweep, corpus_options);
   options.set.log = [](const std::string& line) { std::fprintf(stderr, "%s\n", line.c_str()); };
+  const auto corpus_dir = corpus::find_corpus(corpus_options.dir);
+  if (corpus_dir) {
+    auto clips = corpus::read_manifest(*corpus_dir);
+    if (!clips) {
+      std::fprintf(stderr, "clipwarden_accuracy_eval: %s\n", clips.error().message().c_str());
+      return 3;
+    }
+    AnalysisSettings settings = options.analysis;
+    settings.working_long_side = options.set.long_side;
+    const auto results = corpus::analyse_corpus(*clips, "", settings, options.policy, options.set.log);
+    std::printf("## Real-footage corpus\n%s", corpus::corpus_markdown(results).c_str());
+    if (corpus_options.calibrate) {
+      std::vector<const Report*> camera;
+      for (const auto& r : results)
+        if (r.clip.camera && r.report) camera.push_back(&*r.report);
+      const auto bins = calibration::derive_natural_levels(camera);
+      std::printf("\n## Natural levels from %zu camera clips\n\n%s\nRows for natural_levels.cpp:\n%s"
+                  "Largest relative difference from the kept table: %.3f\n",
+                  camera.size(), calibration::natural_levels_markdown(bins).c_str(),
+                  calibration::natural_levels_cpp(bins).c_str(),
+                  calibration::largest_relative_difference(bins, natural_bins()));
+    }
+  } else if (!corpus_options.dir.empty()) {
+    usage("no MANIFEST.tsv in " + corpus_options.dir);
+  } else if (corpus_options.calibrate) {
+    usage("--calibrate needs the corpus (--corpus DIR)");
+  } else {
+    std::fprintf(stderr, "clipwarden_accuracy_eval: no corpus found (--corpus DIR): corpus tables left out\n");
+  }
+  if (corpus_options.only) return 0;
   auto run = run_evaluation(options);
   if (!run) {
     std::fprintf(stderr, "clipwarden_accuracy_eval: %s\n", run.error().message().c_str());

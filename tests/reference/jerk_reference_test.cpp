@@ -30,9 +30,10 @@ std::vector<FramePlanes> pan(const cv::Mat& image, double fps, int n, int displa
   return frames;
 }
 
-// The default policy's jerk rule: enter at 5 diagonals/s^2 or the clip's
-// median + 8 MAD-sigmas if higher, review from a peak of 5.
-SegmentRule jerk_rule() { return default_policy().segments.at("jerk"); }
+// The default policy judges jolt (jerk per frame interval squared): enter at
+// 0.035 diagonals/frame^2 or the clip's median + 8 MAD-sigmas if higher,
+// review from a peak of 0.035.
+SegmentRule jolt_rule() { return default_policy().segments.at("jolt"); }
 
 }  // namespace
 
@@ -42,16 +43,18 @@ TEST(JerkReference, SmoothPanHasNoSegmentDisplacedFrameHasOneAtThatFrame) {
     if (image.empty()) GTEST_SKIP() << "opencv-doc image " << name << " not installed";
     auto smooth_metric = registered_metric("jerk");
     const Report smooth = run_metric(*smooth_metric, pan(image, 24, 40, -1, 0));
-    const auto& sv = smooth.find_series("jerk")->values;
-    EXPECT_TRUE(find_segments("jerk", sv, smooth.frame_times_s, jerk_rule()).empty()) << name;
+    const auto& sv = smooth.find_series("jolt")->values;
+    EXPECT_TRUE(find_segments("jolt", sv, smooth.frame_times_s, jolt_rule()).empty()) << name;
 
     // Frame 20 displaced by 8 px on a 256x192 view (diagonal 320 px) at
     // 24 fps: 2 * 8 * 24^2 / 320 = 28.8 diagonals/s^2 at frame 20.
     auto jolt_metric = registered_metric("jerk");
     const Report jolt = run_metric(*jolt_metric, pan(image, 24, 40, 20, 8));
-    const auto& jv = jolt.find_series("jerk")->values;
-    EXPECT_NEAR(jv[20], 28.8, 0.1 * 28.8) << name;
-    const auto segments = find_segments("jerk", jv, jolt.frame_times_s, jerk_rule());
+    EXPECT_NEAR(jolt.find_series("jerk")->values[20], 28.8, 0.1 * 28.8) << name;
+    // Per frame interval squared: 2 * 8 / 320 = 0.05 diagonals/frame^2.
+    const auto& jv = jolt.find_series("jolt")->values;
+    EXPECT_NEAR(jv[20], 0.05, 0.1 * 0.05) << name;
+    const auto segments = find_segments("jolt", jv, jolt.frame_times_s, jolt_rule());
     ASSERT_EQ(segments.size(), 1u) << name;
     EXPECT_EQ(segments[0].peak_frame, 20) << name;
     EXPECT_LE(segments[0].start_frame, 20);
@@ -60,9 +63,26 @@ TEST(JerkReference, SmoothPanHasNoSegmentDisplacedFrameHasOneAtThatFrame) {
   }
 }
 
+// The same 8 px jump at 8 fps: jerk reads 9x less (2 * 8 * 8^2 / 320 = 3.2
+// diagonals/s^2, under the old review level of 5 set at 24 fps), jolt reads
+// the same 0.05 and reviews.
+TEST(JerkReference, JoltReadsAOneFrameJumpAlikeAtAnyFrameRate) {
+  const cv::Mat image = cv::imread(std::string(kData) + "baboon.jpg", cv::IMREAD_COLOR);
+  if (image.empty()) GTEST_SKIP() << "opencv-doc image baboon.jpg not installed";
+  auto metric = registered_metric("jerk");
+  const Report r = run_metric(*metric, pan(image, 8, 40, 20, 8));
+  EXPECT_NEAR(r.find_series("jerk")->values[20], 3.2, 0.1 * 3.2);
+  const auto& jv = r.find_series("jolt")->values;
+  EXPECT_NEAR(jv[20], 0.05, 0.1 * 0.05);
+  const auto segments = find_segments("jolt", jv, r.frame_times_s, jolt_rule());
+  ASSERT_EQ(segments.size(), 1u);
+  EXPECT_EQ(segments[0].peak_frame, 20);
+  EXPECT_EQ(segments[0].severity, Severity::review);
+}
+
 // End to end through analyze_source (no decoder: frames made in memory from
 // the opencv-doc image), with the default policy: the displaced frame is a
-// jerk segment at frame 20, and the clean pan has neither a jerk nor a
+// jolt segment at frame 20, and the clean pan has neither a jolt nor a
 // flicker_local segment.
 TEST(DetectorsEndToEnd, JoltAndLocalPulseOnARealImagePan) {
   const cv::Mat image = cv::imread(std::string(kData) + "baboon.jpg", cv::IMREAD_COLOR);
@@ -85,13 +105,13 @@ TEST(DetectorsEndToEnd, JoltAndLocalPulseOnARealImagePan) {
     return out;
   };
   const Report clean = run(false);
-  EXPECT_TRUE(of(clean, "jerk").empty());
+  EXPECT_TRUE(of(clean, "jolt").empty());
   EXPECT_TRUE(of(clean, "flicker_local").empty());
   EXPECT_TRUE(of(clean, "flash").empty()) << clean.summary.details.at("flash").dump();
   const Report bad = run(true);
-  const auto jerk = of(bad, "jerk");
-  ASSERT_EQ(jerk.size(), 1u);
-  EXPECT_EQ(jerk[0].peak_frame, 20);
+  const auto jolt = of(bad, "jolt");
+  ASSERT_EQ(jolt.size(), 1u);
+  EXPECT_EQ(jolt[0].peak_frame, 20);
   // The lit region on frames 30-31 is no longer found since flicker_local
   // counts only changes shaped like light (blocks with motion of their own
   // are left out, and a light pulse breaks the flow's brightness constancy

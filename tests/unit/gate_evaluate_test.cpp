@@ -63,27 +63,26 @@ TEST(GateEvaluate, ReviewLevelNamesTheReviewThreshold) {
 
 TEST(GateEvaluate, SegmentSeverityDecides) {
   Report review = gate_report(48, 24);
-  add_series(review, "warp_error", 0.002);
-  add_segment(review, "warp_error", 6, 8, 0.03, Severity::review);
+  add_series(review, "warp_error_ratio", 0.3);
+  add_segment(review, "warp_error_ratio", 6, 8, 3.5, Severity::review);
   VerdictResult v = evaluate_policy(review, default_policy());
   EXPECT_EQ(v.status, Verdict::review);
-  EXPECT_TRUE(
-      has_reason(v, "warp_error segment peak 0.03 >= review 0.02 (frames 6-8, 0.25-0.33 s)"))
+  EXPECT_TRUE(has_reason(v, "warp_error_ratio segment peak 3.5 >= review 3 (frames 6-8, 0.25-0.33 s): the "
+                            "picture changes more than its motion explains, for 0.1 s"))
       << all_reasons(v);
 
   Report reject = review;
-  add_segment(reject, "warp_error", 20, 20, 0.09, Severity::reject);
-  add_segment(reject, "warp_error", 30, 31, 0.07, Severity::reject);
+  add_segment(reject, "warp_error_ratio", 20, 20, 9, Severity::reject);
+  add_segment(reject, "warp_error_ratio", 30, 31, 8.5, Severity::reject);
   v = evaluate_policy(reject, default_policy());
   EXPECT_EQ(v.status, Verdict::reject);
   EXPECT_TRUE(has_reason(
-      v,
-      "warp_error segment peak 0.09 >= reject 0.05 (frame 20, 0.83 s), 2 reject segments in all"))
+      v, "warp_error_ratio segment peak 9 >= reject 8 (frame 20, 0.83 s), 2 reject segments in all"))
       << all_reasons(v);
 
   Report info = gate_report(48, 24);
-  add_series(info, "warp_error", 0.002);
-  add_segment(info, "warp_error", 6, 8, 0.015, Severity::info);
+  add_series(info, "warp_error_ratio", 0.3);
+  add_segment(info, "warp_error_ratio", 6, 8, 2.5, Severity::info);
   EXPECT_EQ(evaluate_policy(info, default_policy()).status, Verdict::pass);
 }
 

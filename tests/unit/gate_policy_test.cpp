@@ -114,8 +114,8 @@ TEST(GatePolicy, DefaultCoversTheInitialMetricsWithPossibleThresholds) {
   const Policy& p = default_policy();
   // flash has no segment rule: its metric writes the WCAG hazard segments
   // itself, and the hard rule flash_hazard_rejects judges them.
-  for (const char* metric : {"warp_error", "warp_error_long", "occluded_pct", "flicker", "freeze",
-                             "cut", "drift", "jerk", "flicker_local", "boiling"})
+  for (const char* metric : {"warp_error_ratio", "warp_error_long_ratio", "occluded_pct", "flicker", "freeze",
+                             "cut", "drift", "jolt", "flicker_local", "boiling"})
     EXPECT_TRUE(p.segments.count(metric)) << metric;
   EXPECT_TRUE(p.flash_hazard_rejects);
   for (const auto& [metric, r] : p.segments) {
@@ -140,8 +140,8 @@ TEST(GatePolicy, KeysGivenOverrideTheDefaultAndTheRestIsKept) {
   EXPECT_EQ(p95->review, find_rule(default_policy(), "flicker", "p95")->review);
   EXPECT_EQ(p->segments.at("flicker").enter, 0.02);
   EXPECT_EQ(p->segments.at("flicker").leave, default_policy().segments.at("flicker").leave);
-  EXPECT_EQ(policy_to_json(*p)["metrics"]["warp_error"],
-            policy_to_json(default_policy())["metrics"]["warp_error"]);
+  EXPECT_EQ(policy_to_json(*p)["metrics"]["warp_error_ratio"],
+            policy_to_json(default_policy())["metrics"]["warp_error_ratio"]);
 }
 
 TEST(GatePolicy, NullTurnsRulesOffAndSurvivesARoundTrip) {

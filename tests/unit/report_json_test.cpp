@@ -69,6 +69,10 @@ Report full_report() {
   r.summary.coherence = 42.5;
   r.summary.stream = {1.0, 1.25, 0.25, true, 1, 2};
   r.summary.details = {{"flicker", {{"pulses", 2}}}, {"flash", {{"hazard", true}}}};
+  // A file storing each of its 3 pictures twice (summary.cadence).
+  r.summary.details["cadence"] = {{"stored_frames", 6},   {"pictures", 3},       {"analysed_frames", 3},
+                                  {"usual_repeats", 1},   {"repeated_share", 1}, {"content_fps", 3.0},
+                                  {"source_frames", {0, 2, 4}}};
   TrackedObject o;
   o.id = 7;
   o.first_frame = 1;
@@ -108,6 +112,8 @@ const char* kFullReportJson = R"json({
   "summary": {"warp_error": {"mean": 0.1875, "p50": 0.1875, "p95": 0.246875, "max": 0.25},
               "flicker": {"mean": null, "p50": null, "p95": null, "max": null, "details": {"pulses": 2}},
               "flash": {"details": {"hazard": true}},
+              "cadence": {"details": {"stored_frames": 6, "pictures": 3, "analysed_frames": 3, "usual_repeats": 1,
+                                      "repeated_share": 1, "content_fps": 3.0, "source_frames": [0, 2, 4]}},
               "coherence": 42.5,
               "stream": {"video_duration_s": 1.0, "audio_duration_s": 1.25, "mismatch_s": 0.25, "vfr": true,
                          "dropped_frames": 1, "duplicate_timestamps": 2}},

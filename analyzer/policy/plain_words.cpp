@@ -1,0 +1,88 @@
+#include "analyzer/policy/plain_words.h"
+
+#include <algorithm>
+#include <cstdio>
+
+namespace clipwarden {
+namespace {
+
+std::string seconds(double s) {
+  char buf[32];
+  std::snprintf(buf, sizeof buf, s < 10 ? "%.1f s" : "%.0f s", s);
+  return buf;
+}
+
+// From the first frame to the end of the last frame's interval.
+double span_s(const Report& r, int64_t first, int64_t last) {
+  const auto& t = r.frame_times_s;
+  if (t.empty() || first < 0 || last < first || static_cast<size_t>(last) >= t.size()) return 0;
+  double end = t[last];
+  if (static_cast<size_t>(last + 1) < t.size())
+    end = t[last + 1];
+  else if (t.size() > 1)
+    end += (t.back() - t.front()) / static_cast<double>(t.size() - 1);
+  return std::max(0.0, end - t[first]);
+}
+
+std::string times(int n) {
+  return n == 1 ? "once" : n == 2 ? "twice" : std::to_string(n) + " times";
+}
+
+// The block of flicker_local that pulsed most, as "a region at the lower
+// left brightens and darkens 4 times".
+std::string local_pulse_words(const Report& r) {
+  if (!r.summary.details.contains("flicker_local")) return "a region brightens and darkens";
+  const auto& d = r.summary.details["flicker_local"];
+  if (!d.contains("blocks") || !d["blocks"].is_array() || d["blocks"].empty() ||
+      !d.contains("grid"))
+    return "a region brightens and darkens";
+  const auto& b = d["blocks"][0];
+  const int cols = d["grid"][0].get<int>(), rows = d["grid"][1].get<int>();
+  return "a region at " + grid_place(b.value("row", 0), b.value("col", 0), rows, cols) +
+         " brightens and darkens " + times(b.value("pulses", 1));
+}
+
+}  // namespace
+
+std::string grid_place(int row, int col, int rows, int cols) {
+  const char* vertical = rows <= 1             ? ""
+                         : 3 * row < rows      ? "upper"
+                         : 3 * row >= 2 * rows ? "lower"
+                                               : "";
+  const char* horizontal = cols <= 1             ? ""
+                           : 3 * col < cols      ? "left"
+                           : 3 * col >= 2 * cols ? "right"
+                                                 : "";
+  const std::string v = vertical, h = horizontal;
+  if (v.empty() && h.empty()) return "the centre";
+  if (v.empty()) return "the middle " + h;
+  if (h.empty()) return "the " + v + " middle";
+  return "the " + v + " " + h;
+}
+
+std::string plain_words(const Report& r, const std::string& metric, int64_t first, int64_t last,
+                        int count) {
+  const std::string over = seconds(span_s(r, first, last));
+  const std::string again = count > 1 ? ", " + times(count) + " in the clip" : "";
+  if (metric == "freeze") return "the picture stands still for " + over + again;
+  if (metric == "cut")
+    return "the picture jumps to a different view" +
+           std::string(count > 1 ? " " + times(count) : "");
+  if (metric == "jerk" || metric == "jolt")
+    return "the camera jolts" + std::string(count > 1 ? " " + times(count) : "");
+  if (metric == "warp_error" || metric == "warp_error_ratio")
+    return "the picture changes more than its motion explains, for " + over + again;
+  if (metric == "warp_error_long" || metric == "warp_error_long_ratio")
+    return "the picture slowly turns into something else over " + over + again;
+  if (metric == "occluded_pct")
+    return "much of the picture cannot be followed from frame to frame for " + over;
+  if (metric == "flicker") return "the whole picture brightens and darkens over " + over + again;
+  if (metric == "flicker_local") return local_pulse_words(r) + " in " + over;
+  if (metric == "boiling") return "a texture is re-drawn every frame for " + over + again;
+  if (metric == "drift")
+    return "an object's colour, markings or shape change as it moves, over " + over;
+  if (metric == "flash") return "the picture flashes";
+  return "";
+}
+
+}  // namespace clipwarden
