@@ -154,8 +154,9 @@ std::string file_name(const std::string& path) {
 
 }  // namespace
 
-std::string render_clip_page(const Report& report, const HtmlAssets& assets,
+std::string render_clip_page(const Report& unordered, const HtmlAssets& assets,
                              const HtmlOptions& options) {
+  const Report report = page::in_registry_order(unordered);
   page::CssRules css;
   add_legend_rules(assets.legends, css);
   std::string body;

@@ -41,6 +41,21 @@ std::string metric_description(const std::string& metric) {
   return column->description + " Unit: " + column->unit + ".";
 }
 
+Report in_registry_order(const Report& report) {
+  std::vector<std::string> order;
+  for (const MetricDescriptor* m : metric_descriptors())
+    for (const auto& c : m->columns) order.push_back(c.name);
+  auto rank = [&](const std::string& name) {
+    return std::find(order.begin(), order.end(), name) - order.begin();
+  };
+  Report out = report;
+  std::stable_sort(out.series.begin(), out.series.end(),
+                   [&](const auto& a, const auto& b) { return rank(a.metric) < rank(b.metric); });
+  std::stable_sort(out.summary.metrics.begin(), out.summary.metrics.end(),
+                   [&](const auto& a, const auto& b) { return rank(a.metric) < rank(b.metric); });
+  return out;
+}
+
 const char* severity_name(Severity s) { return to_string(s); }
 
 TimeAxis time_axis(const Report& report) {

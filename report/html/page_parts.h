@@ -35,6 +35,11 @@ std::string pct(double fraction);
 // What a report column measures and its unit, from its metric's descriptor
 // (analyzer/metrics/metric_descriptor.h); "" for a column no metric writes.
 std::string metric_description(const std::string& metric);
+// The report with its per-frame series and metric summaries in registry
+// column order (unregistered names after, as listed): a report read back
+// from JSON (a gate's store hit) lists them by name, and its page must be
+// the one written when the clip was analysed.
+Report in_registry_order(const Report& report);
 const char* severity_name(Severity s);
 
 // The clip's time base: frame i spans [t_i, t_i + frame_interval_s).

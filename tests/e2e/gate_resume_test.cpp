@@ -104,3 +104,26 @@ TEST(GateResume, KilledBatchFinishesOnRerunWithoutLosingOrRepeatingClips) {
       << third.out;
   EXPECT_EQ(stored_rows(db), static_cast<size_t>(kClips));
 }
+
+// A clip taken from the store gets the same report and page bytes as when it
+// was analysed: the stored JSON lists its series by name, the page orders
+// them as the analysis does (a cluster's requeued shard relies on this).
+TEST(GateResume, StoreHitWritesTheSameReportAndPage) {
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
+  TempDir dir;
+  ASSERT_EQ(make_varied_clips(dir.path() / "clips", 2), "");
+  auto gate = [&] {
+    const auto r = run_command({CLIPWARDEN_BINARY, "gate", dir.file("clips"), "--out",
+                                dir.file("out"), "--width", "160", "--jobs", "2", "--quiet"});
+    EXPECT_TRUE(r.exit_code == 0 || r.exit_code == 1) << r.err;
+  };
+  gate();
+  std::vector<std::pair<fs::path, std::string>> analysed;
+  for (const char* name : {"clip_0.json", "clip_0.html", "clip_1.json", "clip_1.html"})
+    analysed.emplace_back(dir.path() / "out" / name, read_text(dir.path() / "out" / name));
+  gate();
+  for (const auto& line : read_lines(dir.path() / "out" / "queue.jsonl"))
+    EXPECT_NE(line.find("\"from_store\":true"), std::string::npos) << line;
+  for (const auto& [path, text] : analysed)
+    EXPECT_TRUE(read_text(path) == text) << path << " changed when taken from the store";
+}
