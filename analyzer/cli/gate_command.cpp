@@ -116,6 +116,7 @@ int run_gate(const std::vector<std::string>& args) {
   gate.out_dir = *parsed->get("out");
   gate.db_path = parsed->get("db").value_or("");
   gate.jobs = jobs->value_or(0);
+  if (shard) gate.shard = shard_record(collected->inputs, *shard);
   const bool html = !parsed->has("no-html");
   gate.collect_thumbnails = html;
   gate.write_report = [html](const Report& r, const std::string& base,

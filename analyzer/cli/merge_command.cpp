@@ -20,8 +20,9 @@ int run_merge(const std::vector<std::string>& args) {
       {"merge", "DIR... --out DIR [options]",
        "Joins the output folders of `clipwarden gate --shard` runs: one queue.jsonl in\n"
        "input order without duplicates, the reports, one clipwarden.db and index.html.\n"
-       "Exit status as for gate: 0, 1 (a clip reached --fail-on), 2 bad usage,\n"
-       "3 a clip could not be read."},
+       "Shard folders must be every shard 0..N-1 of one input list, each finished.\n"
+       "Exit status as for gate: 0, 1 (a clip reached --fail-on), 2 bad usage or a\n"
+       "shard missing or unfinished (named), 3 a clip could not be read."},
       stop_status);
   if (!parsed) return stop_status;
   if (parsed->positionals.empty() || !parsed->get("out"))

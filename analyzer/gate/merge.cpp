@@ -117,13 +117,15 @@ struct Merger {
 
 Expected<GateRun> merge_gate_outputs(const std::vector<std::string>& shard_dirs,
                                      const std::string& out_dir) {
-  std::error_code ec;
-  fs::create_directories(out_dir, ec);
-  if (ec) return output_error(out_dir, "cannot create output folder: " + ec.message());
   const std::string out_canonical = canonical_text(out_dir);
   for (const auto& dir : shard_dirs)
     if (canonical_text(dir) == out_canonical)
       return usage_error(dir, "merge output folder must not be one of its inputs");
+  // Before anything is written: a refused merge leaves no partial queue.
+  if (auto st = check_shard_set(shard_dirs); !st) return st.error();
+  std::error_code ec;
+  fs::create_directories(out_dir, ec);
+  if (ec) return output_error(out_dir, "cannot create output folder: " + ec.message());
 
   auto store = ResultStore::open((fs::path(out_dir) / "clipwarden.db").string());
   if (!store) return store.error();

@@ -247,6 +247,11 @@ Expected<GateRun> run_gate(const std::vector<GateInput>& inputs, const GateOptio
   auto opened = ResultStore::open(db_path);
   if (!opened) return opened.error();
   remove_stale_temporaries(options.out_dir);
+  if (options.shard) {
+    ShardRecord started = *options.shard;
+    started.finished = false;  // a rerun into a finished shard's folder is unfinished until done
+    if (auto st = write_shard_record(options.out_dir, started); !st) return st.error();
+  }
 
   const int cores = std::max(1u, std::thread::hardware_concurrency());
   int jobs = options.jobs > 0 ? options.jobs : cores;
@@ -287,6 +292,11 @@ Expected<GateRun> run_gate(const std::vector<GateInput>& inputs, const GateOptio
   lock.unlock();
   for (auto& t : pool) all_joined ? t.join() : t.detach();
   if (!written) return written.error();
+  if (options.shard && !run.stopped && run.counts.total == static_cast<int>(inputs.size())) {
+    ShardRecord done = *options.shard;
+    done.finished = true;
+    if (auto st = write_shard_record(options.out_dir, done); !st) return st.error();
+  }
   return run;
 }
 

@@ -19,18 +19,12 @@ Expected<int> parse_int(const std::string& text, const std::string& subject) {
 Expected<int> index_from_environment(const std::function<const char*(const char*)>& getenv) {
   if (const char* k8s = getenv("JOB_COMPLETION_INDEX"))
     return parse_int(k8s, "JOB_COMPLETION_INDEX");
-  if (const char* slurm = getenv("SLURM_ARRAY_TASK_ID")) {
-    auto id = parse_int(slurm, "SLURM_ARRAY_TASK_ID");
-    if (!id) return id;
-    // Arrays may start anywhere (--array=1-8); count from the first task.
-    int first = 0;
-    if (const char* min = getenv("SLURM_ARRAY_TASK_MIN")) {
-      auto m = parse_int(min, "SLURM_ARRAY_TASK_MIN");
-      if (!m) return m;
-      first = *m;
-    }
-    return *id - first;
-  }
+  // The task id itself, not its offset from SLURM_ARRAY_TASK_MIN: rerunning
+  // one failed task alone (sbatch --array=2) starts a new array whose
+  // minimum is that task, and the offset would then name shard 0. Arrays
+  // must therefore count from 0 (--array=0-N-1); others get a clear error.
+  if (const char* slurm = getenv("SLURM_ARRAY_TASK_ID"))
+    return parse_int(slurm, "SLURM_ARRAY_TASK_ID");
   return usage_error("--shard auto/N",
                      "needs JOB_COMPLETION_INDEX or SLURM_ARRAY_TASK_ID in the environment");
 }
@@ -52,10 +46,14 @@ Expected<ShardSpec> parse_shard(const std::string& text,
   auto index =
       index_text == "auto" ? index_from_environment(getenv) : parse_int(index_text, "--shard");
   if (!index) return index.error();
-  if (*index < 0 || *index >= spec.count)
-    return usage_error("--shard", "index " + std::to_string(*index) + " is outside 0.." +
-                                      std::to_string(spec.count - 1) +
-                                      " (shards are numbered from 0)");
+  if (*index < 0 || *index >= spec.count) {
+    const std::string last = std::to_string(spec.count - 1);
+    return usage_error(
+        "--shard",
+        "index " + std::to_string(*index) + " is outside 0.." + last +
+            " (shards are numbered from 0" +
+            (index_text == "auto" ? "; a Slurm array: --array=0-" + last : std::string()) + ")");
+  }
   spec.index = *index;
   return spec;
 }

@@ -59,8 +59,8 @@ struct ShardSpec {
   int count = 1;
 };
 // "I/N" with 0 <= I < N, or "auto/N": I from JOB_COMPLETION_INDEX
-// (Kubernetes indexed Job) or SLURM_ARRAY_TASK_ID minus SLURM_ARRAY_TASK_MIN
-// (Slurm job array), read through `getenv`.
+// (Kubernetes indexed Job) or SLURM_ARRAY_TASK_ID (Slurm job array, which
+// must count from 0: --array=0-N-1), read through `getenv`.
 Expected<ShardSpec> parse_shard(const std::string& text,
                                 const std::function<const char*(const char*)>& getenv);
 // FNV-1a 64 of the id, mixed by the splitmix64 finalizer (so every bit of
@@ -69,6 +69,27 @@ uint64_t shard_hash(const std::string& id);
 uint64_t fnv1a_64(std::string_view bytes);
 int shard_of(const std::string& id, int count);
 std::vector<GateInput> select_shard(const std::vector<GateInput>& inputs, const ShardSpec& shard);
+
+// What a shard run leaves in its output folder (DIR/shard.json, fields in
+// docs/gate.md) so that merge can tell a missing or unfinished shard from a
+// complete one: a cancelled array task leaves no folder at all, a killed
+// one leaves a queue of only the clips it finished.
+struct ShardRecord {
+  ShardSpec shard;
+  int64_t inputs = 0;         // clips in the whole input list
+  std::string inputs_sha256;  // of the whole list's ids, one per line: one batch's shards agree
+  int64_t clips = 0;          // clips in this shard's share
+  bool finished = false;      // every clip of the share is in the queue
+};
+// The record of `shard` of `all_inputs` (the list before sharding), unfinished.
+ShardRecord shard_record(const std::vector<GateInput>& all_inputs, const ShardSpec& shard);
+Status write_shard_record(const std::string& out_dir, const ShardRecord& record);
+// nullopt when DIR holds no shard.json (a run without --shard).
+Expected<std::optional<ShardRecord>> read_shard_record(const std::string& dir);
+// Merge's check: either no folder is a shard, or together they hold every
+// shard 0..N-1 of one input list exactly once, each finished with its whole
+// share in its queue. The error names the missing or unfinished shard.
+Status check_shard_set(const std::vector<std::string>& dirs);
 
 // The outcome for one clip: a queue line.
 struct ClipResult {
@@ -134,6 +155,9 @@ struct GateOptions {
   // abandoned clip is left as after kill -9: rerunning finishes it.
   const std::atomic<bool>* stop = nullptr;
   double stop_grace_s = 5;
+  // A shard's record: written to out_dir/shard.json unfinished when the
+  // batch starts and finished once every clip is in the queue.
+  std::optional<ShardRecord> shard;
 };
 
 struct GateObserver {

@@ -89,3 +89,38 @@ TEST(GateShards, UnionOfShardRunsEqualsOneRun) {
   EXPECT_EQ(stored_rows(dir.path() / "merged" / "clipwarden.db"), 7u);
   EXPECT_TRUE(fs::exists(dir.path() / "merged" / "index.html"));
 }
+
+TEST(GateShards, MergeRefusesAMissingShardUntilItHasRun) {
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
+  TempDir dir;
+  ASSERT_EQ(make_varied_clips(dir.path() / "clips", 6), "");
+  auto shard = [&](int i) {
+    const std::string out = "shard" + std::to_string(i);
+    const auto r = run_command({CLIPWARDEN_BINARY, "gate", dir.file("clips"), "--out",
+                                dir.file(out), "--width", "160", "--jobs", "2", "--no-html",
+                                "--shard", std::to_string(i) + "/3"});
+    EXPECT_TRUE(r.exit_code == 0 || r.exit_code == 1) << r.err;
+    return dir.file(out);
+  };
+  auto merge = [&](std::vector<std::string> dirs) {
+    std::vector<std::string> args = {CLIPWARDEN_BINARY, "merge"};
+    args.insert(args.end(), dirs.begin(), dirs.end());
+    args.insert(args.end(), {"--out", dir.file("merged")});
+    return run_command(args);
+  };
+  const std::vector<std::string> first_two = {shard(0), shard(1)};
+  // Each finished shard says so, with its share's size (docs/gate.md).
+  const auto record = nlohmann::json::parse(read_text(dir.path() / "shard0" / "shard.json"));
+  EXPECT_EQ(record["finished"], true);
+  EXPECT_EQ(record["inputs"], 6);
+  EXPECT_EQ(record["clips"].get<size_t>(), queue_of(dir.path() / "shard0").size());
+
+  const auto refused = merge(first_two);
+  EXPECT_EQ(refused.exit_code, 2);
+  EXPECT_NE(refused.err.find("shard 2 of 3 is missing"), std::string::npos) << refused.err;
+  EXPECT_FALSE(fs::exists(dir.path() / "merged" / "queue.jsonl"));
+
+  const auto merged = merge({first_two[0], first_two[1], shard(2)});
+  EXPECT_TRUE(merged.exit_code == 0 || merged.exit_code == 1) << merged.err;
+  EXPECT_EQ(queue_of(dir.path() / "merged").size(), 6u);
+}

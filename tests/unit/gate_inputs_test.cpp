@@ -142,8 +142,16 @@ TEST(GateShards, ParseIndexCountAndSchedulerEnvironment) {
   }
   EXPECT_FALSE(parse_shard("auto/4", getenv).ok());  // no scheduler index
   env["SLURM_ARRAY_TASK_ID"] = "5";
-  env["SLURM_ARRAY_TASK_MIN"] = "1";  // --array=1-8
-  EXPECT_EQ(parse_shard("auto/8", getenv)->index, 4);
+  // One task rerun alone (sbatch --array=5) has its own id as the array's
+  // minimum: the shard is still the task id, not the offset from it.
+  env["SLURM_ARRAY_TASK_MIN"] = "5";
+  EXPECT_EQ(parse_shard("auto/8", getenv)->index, 5);
+  env["SLURM_ARRAY_TASK_ID"] = "8";  // --array=1-8 counts from 1: refused, naming the fix
+  env["SLURM_ARRAY_TASK_MIN"] = "1";
+  auto from_one = parse_shard("auto/8", getenv);
+  ASSERT_FALSE(from_one.ok());
+  EXPECT_NE(from_one.error().message().find("--array=0-7"), std::string::npos)
+      << from_one.error().message();
   env["JOB_COMPLETION_INDEX"] = "3";  // Kubernetes indexed Job wins when both are set
   EXPECT_EQ(parse_shard("auto/8", getenv)->index, 3);
   env["JOB_COMPLETION_INDEX"] = "8";

@@ -1,8 +1,9 @@
 // Stopping a batch (docs/cli.md, exit statuses): GateOptions::stop, set by the CLI's SIGINT and
 // SIGTERM handlers, starts no new clip; clips in flight get stop_grace_s and
 // are then abandoned. Either way the queue holds exactly the finished clips,
-// the store one row per finished clip, and a rerun finishes the batch. A
-// stand-in analysis (as in gate_run_test.cpp) keeps the timing under control.
+// the store one row per finished clip, a shard's record stays unfinished
+// until a rerun finishes the batch. A stand-in analysis (as in
+// gate_run_test.cpp) keeps the timing under control.
 #include <gtest/gtest.h>
 
 #include <atomic>
@@ -76,10 +77,19 @@ TEST(GateStop, NoClipStartsAfterTheStopAndARerunFinishes) {
   o.jobs = 1;
   o.analyze = scripted(script);
   o.stop = &script->stop;
+  o.shard = shard_record(inputs, {0, 1});  // as with --shard 0/1: a stopped shard says so
   auto run = run_gate(inputs, o);
   ASSERT_TRUE(run.ok()) << run.error().message();
   EXPECT_TRUE(run->stopped);
   EXPECT_EQ(run->counts.total, 2);  // the clip in flight finished within the grace time
+  auto record = read_shard_record(o.out_dir);
+  ASSERT_TRUE(record && *record);
+  EXPECT_FALSE((*record)->finished);
+  const auto refused = check_shard_set({o.out_dir});
+  ASSERT_FALSE(refused.ok());
+  EXPECT_NE(refused.error().message().find("shard 0 of 1 did not finish (2 of its 6 clips"),
+            std::string::npos)
+      << refused.error().message();
   EXPECT_EQ(run->abandoned, 0);
   EXPECT_EQ(run->not_started, 4);
   EXPECT_EQ(read_lines(dir.path() / "out" / "queue.jsonl").size(), 2u);
@@ -94,6 +104,10 @@ TEST(GateStop, NoClipStartsAfterTheStopAndARerunFinishes) {
   EXPECT_EQ(rerun->counts.from_store, 2);
   EXPECT_EQ(read_lines(dir.path() / "out" / "queue.jsonl").size(), 6u);
   EXPECT_EQ(rows_in(dir.path() / "out" / "clipwarden.db"), 6u);
+  record = read_shard_record(o.out_dir);
+  ASSERT_TRUE(record && *record);
+  EXPECT_TRUE((*record)->finished);
+  EXPECT_TRUE(check_shard_set({o.out_dir}).ok());
 }
 
 TEST(GateStop, ClipStillInFlightAfterTheGraceTimeIsAbandoned) {

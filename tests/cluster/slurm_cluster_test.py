@@ -1,0 +1,418 @@
+#!/usr/bin/env python3
+"""The gate's scale-out run on a real Slurm cluster of one node.
+
+Starts munged, slurmctld and slurmd from the Debian packages with every file
+(key, socket, config, state, spool, logs) in a temporary folder, submits the
+scripts that docs/gate.md shows (tests/cluster/*.sh, checked against the
+page by docs_test.py) over a folder of 12 small clips as a 4-task job array
+and a merge that waits for it (afterok), and checks:
+
+  - the merged queue equals a single-machine run of the same clips (same
+    clips, verdicts and report bytes: reports hold no timings), no clip was analysed
+    twice, the store rows are complete;
+  - a task cancelled with scancel makes the merge refuse, naming the missing
+    shard; rerunning that index alone completes it and the merge succeeds;
+  - a task requeued by Slurm takes its clips from its store and adds no rows.
+
+Exit status 77 (ctest: skipped) with the reason when the daemons cannot run
+here (not root, packages missing, a daemon that does not come up). Every
+daemon started is stopped by its process id, also when a check fails.
+
+usage: slurm_cluster_test.py --clipwarden PATH --source DIR
+"""
+import argparse
+import json
+import os
+import shutil
+import socket
+import sqlite3
+import subprocess
+import sys
+import tempfile
+import time
+
+SKIP = 77
+SHARDS = 4
+CLIPS = 12
+TERMINAL_STATES = {"COMPLETED", "FAILED", "CANCELLED", "TIMEOUT", "NODE_FAIL",
+                   "OUT_OF_MEMORY", "BOOT_FAIL", "DEADLINE", "PREEMPTED"}
+
+
+class Skip(Exception):
+    pass
+
+
+class Failed(AssertionError):
+    pass
+
+
+def check(condition, message):
+    if not condition:
+        raise Failed(message)
+
+
+def free_port():
+    with socket.socket() as s:
+        s.bind(("127.0.0.1", 0))
+        return s.getsockname()[1]
+
+
+class Cluster:
+    """munged + slurmctld + slurmd in the foreground, children of this
+    process, configured entirely under `root`."""
+
+    def __init__(self, root):
+        self.root = root
+        self.procs = []  # (name, Popen), in start order
+        self.env = {k: v for k, v in os.environ.items()
+                    if not k.startswith(("SLURM_", "SBATCH_", "SQUEUE_", "SALLOC_"))}
+        self.env["SLURM_CONF"] = os.path.join(root, "slurm.conf")
+
+    def path(self, *parts):
+        return os.path.join(self.root, *parts)
+
+    def start(self):
+        for d in ("munge", "state", "spool", "log"):
+            os.makedirs(self.path(d), mode=0o700)
+        sock = self.path("munge", "socket")
+        run(["mungekey", "--create", "--keyfile=" + self.path("munge", "key")])
+        self.spawn("munged", ["munged", "--foreground", "--force", "--socket=" + sock,
+                              "--key-file=" + self.path("munge", "key"),
+                              "--log-file=" + self.path("log", "munged.log"),
+                              "--pid-file=" + self.path("munge", "pid"),
+                              "--seed-file=" + self.path("munge", "seed")])
+        self.wait_for(lambda: os.path.exists(sock), "munged's socket", 15)
+        host = socket.gethostname().split(".")[0]
+        # The node claims 32 CPUs and 64 GB (config_overrides: slurmd does
+        # not check them against the machine), so the documented script's
+        # --cpus-per-task=8 --mem=8G runs as written, 4 tasks at once.
+        # proctrack/linuxproc and task/none need no cgroups; memory is not a
+        # consumable resource with CR_CPU. Requeued jobs wait cred_expire s.
+        conf = f"""ClusterName=clipwarden-test
+SlurmctldHost={host}(127.0.0.1)
+SlurmctldPort={free_port()}
+SlurmdPort={free_port()}
+AuthType=auth/munge
+AuthInfo=socket={sock}
+CredType=cred/munge
+SlurmUser=root
+SlurmdUser=root
+StateSaveLocation={self.path('state')}
+SlurmdSpoolDir={self.path('spool')}
+SlurmctldPidFile={self.path('slurmctld.pid')}
+SlurmdPidFile={self.path('slurmd.pid')}
+SlurmctldLogFile={self.path('log', 'slurmctld.log')}
+SlurmdLogFile={self.path('log', 'slurmd.log')}
+ProctrackType=proctrack/linuxproc
+TaskPlugin=task/none
+SelectType=select/cons_tres
+SelectTypeParameters=CR_CPU
+SlurmdParameters=config_overrides
+SchedulerType=sched/backfill
+MpiDefault=none
+JobRequeue=1
+ReturnToService=2
+MinJobAge=3600
+AccountingStorageType=accounting_storage/none
+JobAcctGatherType=jobacct_gather/none
+JobCompType=jobcomp/none
+NodeName={host} NodeAddr=127.0.0.1 CPUs=32 RealMemory=65536 State=UNKNOWN
+PartitionName=gate Nodes={host} Default=YES MaxTime=INFINITE State=UP
+"""
+        with open(self.env["SLURM_CONF"], "w") as f:
+            f.write(conf)
+        self.spawn("slurmctld", ["slurmctld", "-D", "-i"])
+        self.spawn("slurmd", ["slurmd", "-D"])
+        self.wait_for(lambda: self.node_state() == "idle", "the node to come up idle", 45)
+
+    def spawn(self, name, argv):
+        log = open(self.path("log", name + ".out"), "w")
+        self.procs.append((name, subprocess.Popen(argv, env=self.env, stdout=log,
+                                                  stderr=subprocess.STDOUT, cwd=self.root)))
+
+    def wait_for(self, ready, what, seconds):
+        deadline = time.monotonic() + seconds
+        while time.monotonic() < deadline:
+            for name, p in self.procs:
+                if p.poll() is not None:
+                    raise Skip(f"{name} exited with status {p.returncode} at start-up:\n" +
+                               self.log_tail())
+            if ready():
+                return
+            time.sleep(0.3)
+        raise Skip(f"waited {seconds} s for {what}:\n" + self.log_tail())
+
+    def node_state(self):
+        r = subprocess.run(["sinfo", "-h", "-o", "%t"], env=self.env, capture_output=True,
+                           text=True)
+        return r.stdout.strip() if r.returncode == 0 else ""
+
+    def log_tail(self, lines=15):
+        out = []
+        for name in sorted(os.listdir(self.path("log"))):
+            with open(self.path("log", name), errors="replace") as f:
+                tail = f.read().splitlines()[-lines:]
+            out.append(f"--- {name}\n" + "\n".join(tail))
+        return "\n".join(out)
+
+    def stop(self):
+        # Jobs first (their slurmstepd outlives slurmd), then the daemons in
+        # reverse order, each by its own pid: SIGTERM, then SIGKILL.
+        if any(name == "slurmctld" and p.poll() is None for name, p in self.procs):
+            subprocess.run(["scancel", "--user=" + str(os.getuid())], env=self.env,
+                           capture_output=True)
+            deadline = time.monotonic() + 20
+            while time.monotonic() < deadline and self.squeue():
+                time.sleep(0.3)
+        for name, p in reversed(self.procs):
+            if p.poll() is None:
+                p.terminate()
+                try:
+                    p.wait(timeout=15)
+                except subprocess.TimeoutExpired:
+                    p.kill()
+                    p.wait()
+        self.procs.clear()
+
+    def squeue(self):
+        r = subprocess.run(["squeue", "-h", "-o", "%i"], env=self.env, capture_output=True,
+                           text=True)
+        return r.stdout.split() if r.returncode == 0 else []
+
+    # --- jobs
+
+    def sbatch(self, args, cwd, extra_env=None):
+        env = dict(self.env, **(extra_env or {}))
+        r = run(["sbatch", "--parsable"] + args, env=env, cwd=cwd)
+        return r.stdout.strip().split(";")[0]
+
+    def job_states(self, job):
+        """{array task id or job id: (state, exit code text, restarts)} of a job."""
+        r = run(["scontrol", "-o", "show", "job", job], env=self.env)
+        states = {}
+        for line in r.stdout.splitlines():
+            fields = dict(f.split("=", 1) for f in line.split() if "=" in f)
+            key = fields.get("ArrayTaskId", fields.get("JobId"))
+            states[key] = (fields.get("JobState"), fields.get("ExitCode"),
+                           int(fields.get("Restarts", "0")))
+        return states
+
+    def wait_done(self, job, seconds=120):
+        deadline = time.monotonic() + seconds
+        while True:
+            states = self.job_states(job)
+            if states and all(s[0] in TERMINAL_STATES for s in states.values()):
+                return states
+            check(time.monotonic() < deadline,
+                  f"job {job} not done after {seconds} s: {states}\n" + self.log_tail())
+            time.sleep(0.5)
+
+
+def run(argv, **kw):
+    r = subprocess.run(argv, capture_output=True, text=True, **kw)
+    if r.returncode != 0:
+        raise Failed(f"{' '.join(argv)} exited {r.returncode}:\n{r.stdout}{r.stderr}")
+    return r
+
+
+def make_clips(folder):
+    """12 one-second 160x120 clips of moving test patterns, each a different hue."""
+    os.makedirs(folder)
+    for i in range(CLIPS):
+        run(["ffmpeg", "-nostdin", "-loglevel", "error", "-f", "lavfi", "-i",
+             "testsrc2=size=160x120:rate=12:duration=1", "-vf", f"hue=h={i * 29 % 360}",
+             "-pix_fmt", "yuv420p", os.path.join(folder, f"clip_{i:02d}.mp4")])
+
+
+def queue(folder):
+    with open(os.path.join(folder, "queue.jsonl")) as f:
+        return [json.loads(line) for line in f if line.strip()]
+
+
+def store_rows(db):
+    con = sqlite3.connect(db)
+    con.row_factory = sqlite3.Row
+    try:
+        return [dict(r) for r in con.execute("SELECT * FROM analyses")]
+    finally:
+        con.close()
+
+
+def same_bytes(a, b):
+    with open(a, "rb") as fa, open(b, "rb") as fb:
+        return fa.read() == fb.read()
+
+
+def check_merged_equals_single(merged, single, what):
+    a, b = queue(single), queue(merged)
+    check(len(b) == CLIPS and len(a) == CLIPS, f"{what}: {len(b)} merged, {len(a)} single clips")
+    for one, joined in zip(a, b):
+        one, joined = dict(one), dict(joined)
+        one.pop("from_store")
+        joined.pop("from_store")
+        check(one == joined, f"{what}: queue lines differ:\n{one}\n{joined}")
+        # Reports hold no wall-clock time (docs/report.md), so the JSON
+        # report and its page must be the same bytes as the single run's.
+        for name in (joined["report"], joined["report"][:-5] + ".html"):
+            check(same_bytes(os.path.join(single, name), os.path.join(merged, name)),
+                  f"{what}: {name} differs from the single-machine run's")
+    rows = store_rows(os.path.join(merged, "clipwarden.db"))
+    check(len(rows) == CLIPS and len({r["content_sha256"] for r in rows}) == CLIPS,
+          f"{what}: merged store has {len(rows)} rows for {CLIPS} clips")
+    by_sha = {line["sha256"]: line for line in b}
+    for row in rows:
+        line = by_sha.get(row["content_sha256"])
+        check(line is not None, f"{what}: store row of a clip not in the queue: {row['clip_path']}")
+        for key in ("settings_hash", "tool_version", "clip_id", "clip_path", "verdict",
+                    "reasons_json", "summary_json", "report_path", "created_at"):
+            check(row[key] not in (None, ""), f"{what}: store row of {line['id']} has no {key}")
+        check(row["clip_id"] == line["id"] and row["verdict"] == line["verdict"],
+              f"{what}: store row {row['clip_id']} {row['verdict']} vs queue {line['verdict']}")
+        check(os.path.realpath(row["report_path"]) ==
+              os.path.realpath(os.path.join(merged, line["report"])),
+              f"{what}: store row of {line['id']} points at {row['report_path']}")
+
+
+def shard_rows(run_dir):
+    rows = []
+    for i in range(SHARDS):
+        rows += store_rows(os.path.join(run_dir, f"shard-{i}", "clipwarden.db"))
+    return rows
+
+
+def job_output(folder, job, task=None):
+    name = f"slurm-{job}_{task}.out" if task is not None else f"slurm-{job}.out"
+    with open(os.path.join(folder, name), errors="replace") as f:
+        return f.read()
+
+
+def scenario(cluster, work, scripts):
+    clips = os.path.join(work, "clips")
+    make_clips(clips)
+    single = os.path.join(work, "single")
+    r = subprocess.run(["clipwarden", "gate", clips, "--out", single, "--jobs", "2", "--quiet"],
+                       env=cluster.env, capture_output=True, text=True)
+    check(r.returncode in (0, 1), f"single-machine gate exited {r.returncode}: {r.stderr}")
+    gate_array = os.path.join(scripts, "gate-array.sh")
+    merge = os.path.join(scripts, "merge.sh")
+    batch = {"INPUT": clips, "SHARDS": str(SHARDS)}
+
+    # 1. The documented submission: array, then the merge after it.
+    run_a = os.path.join(work, "run-a")
+    env = dict(cluster.env, RUN=run_a, **batch)
+    out = run([os.path.join(scripts, "submit.sh")], env=env, cwd=work).stdout.split()
+    check(len(out) == 2, f"submit.sh printed {out}, not two job ids")
+    array, merge_job = out
+    tasks = cluster.wait_done(array)
+    check(sorted(tasks) == [str(i) for i in range(SHARDS)] and
+          all(s[0] == "COMPLETED" for s in tasks.values()), f"array tasks: {tasks}")
+    merged = cluster.wait_done(merge_job)
+    check(all(s[0] == "COMPLETED" for s in merged.values()),
+          f"merge job: {merged}\n{job_output(work, merge_job)}")
+    check_merged_equals_single(os.path.join(run_a, "queue"), single, "array + afterok merge")
+    rows = shard_rows(run_a)
+    check(len(rows) == CLIPS and len({r["content_sha256"] for r in rows}) == CLIPS,
+          f"{len(rows)} analyses in the shards' stores for {CLIPS} clips")
+    for i in range(SHARDS):
+        for line in queue(os.path.join(run_a, f"shard-{i}")):
+            check(not line["from_store"], f"shard {i}: {line['id']} taken from a store")
+    print(f"array {array} and merge {merge_job}: {CLIPS} clips in {SHARDS} shards, merged "
+          "queue equals the single-machine run")
+
+    # 2. One task cancelled (held first so that the cancel lands before it
+    # starts, whatever the machine's load): the merge refuses, naming it.
+    run_b = os.path.join(work, "run-b")
+    env_b = {"RUN": run_b, **batch}
+    held = cluster.sbatch(["--hold", f"--array=0-{SHARDS - 1}", gate_array], work, env_b)
+    run(["scancel", f"{held}_2"], env=cluster.env)
+    run(["scontrol", "release", held], env=cluster.env)
+    tasks = cluster.wait_done(held)
+    check(tasks.get("2", ("CANCELLED",))[0] == "CANCELLED" and
+          all(tasks[str(i)][0] == "COMPLETED" for i in (0, 1, 3)), f"array tasks: {tasks}")
+    refused = cluster.sbatch([merge], work, env_b)
+    state = cluster.wait_done(refused)[refused]
+    text = job_output(work, refused)
+    check(state[0] == "FAILED" and state[1] == "2:0", f"merge with shard 2 missing: {state} {text}")
+    check("shard 2 of 4 is missing" in text, f"the merge's message does not name shard 2: {text}")
+    check(not os.path.exists(os.path.join(run_b, "queue", "queue.jsonl")),
+          "the refused merge wrote a queue")
+    rerun = cluster.sbatch(["--array=2", gate_array], work, env_b)
+    check(cluster.wait_done(rerun)["2"][0] == "COMPLETED", "rerun of index 2 failed")
+    again = cluster.sbatch([merge], work, env_b)
+    check(cluster.wait_done(again)[again][0] == "COMPLETED",
+          f"merge after the rerun: {job_output(work, again)}")
+    check_merged_equals_single(os.path.join(run_b, "queue"), single, "after the rerun")
+    print(f"scancel {held}_2: merge refused ({text.strip()}); sbatch --array=2 completed it")
+
+    # 3. A task requeued by Slurm runs again from its start: its clips come
+    # from its store, which gains no row.
+    shard1 = os.path.join(run_b, "shard-1")
+    before = store_rows(os.path.join(shard1, "clipwarden.db"))
+    run(["scontrol", "requeue", f"{held}_1"], env=cluster.env)
+    # A requeued job is held back for cred_expire (120 s); start it now.
+    run(["scontrol", "update", f"JobId={held}_1", "StartTime=now"], env=cluster.env)
+    deadline = time.monotonic() + 120
+    while cluster.job_states(f"{held}_1")["1"][2] < 1 or \
+            cluster.job_states(f"{held}_1")["1"][0] not in TERMINAL_STATES:
+        check(time.monotonic() < deadline, f"requeued task: {cluster.job_states(held + '_1')}")
+        time.sleep(0.5)
+    check(cluster.job_states(f"{held}_1")["1"][0] == "COMPLETED", "requeued task failed")
+    lines = queue(shard1)
+    check(lines and all(line["from_store"] for line in lines),
+          f"requeued shard 1 recomputed clips: {lines}")
+    after = store_rows(os.path.join(shard1, "clipwarden.db"))
+    check(after == before, f"requeued shard 1's store changed: {len(before)} -> {len(after)} rows")
+    final = cluster.sbatch([merge], work, env_b)
+    check(cluster.wait_done(final)[final][0] == "COMPLETED", job_output(work, final))
+    check_merged_equals_single(os.path.join(run_b, "queue"), single, "after the requeue")
+    print(f"scontrol requeue {held}_1: {len(lines)} clips from its store, {len(after)} rows kept")
+
+
+def main():
+    p = argparse.ArgumentParser()
+    p.add_argument("--clipwarden", required=True)
+    p.add_argument("--source", required=True)
+    a = p.parse_args()
+    start = time.monotonic()
+    try:
+        if os.geteuid() != 0:
+            raise Skip("slurmd and munged run as root here; this user is not root")
+        missing = [t for t in ("munged", "mungekey", "slurmctld", "slurmd", "sbatch", "scontrol",
+                               "scancel", "sinfo", "squeue", "ffmpeg") if not shutil.which(t)]
+        if missing:
+            raise Skip("not installed: " + " ".join(missing) +
+                       " (bash .ci/setup --tests installs slurm-wlm and munge)")
+    except Skip as e:
+        print(f"SKIPPED: {e}")
+        return SKIP
+    work = tempfile.mkdtemp(prefix="clipwarden-slurm-")
+    os.chmod(work, 0o755)
+    bin_dir = os.path.join(work, "bin")
+    os.makedirs(bin_dir)
+    os.symlink(os.path.abspath(a.clipwarden), os.path.join(bin_dir, "clipwarden"))
+    cluster = Cluster(os.path.join(work, "cluster"))
+    cluster.env["PATH"] = bin_dir + os.pathsep + cluster.env.get("PATH", "")
+    status = 0
+    try:
+        os.makedirs(cluster.root)
+        cluster.start()
+        print(f"cluster up in {time.monotonic() - start:.1f} s")
+        scenario(cluster, work, os.path.join(a.source, "tests", "cluster"))
+    except Skip as e:
+        print(f"SKIPPED: the cluster could not start: {e}")
+        status = SKIP
+    except Failed as e:
+        print(f"FAILED: {e}")
+        status = 1
+    finally:
+        cluster.stop()
+        if status == 1 and os.environ.get("CLIPWARDEN_KEEP_CLUSTER_TEST"):
+            print(f"kept {work}")
+        else:
+            shutil.rmtree(work, ignore_errors=True)
+    print(f"took {time.monotonic() - start:.1f} s")
+    return status
+
+
+if __name__ == "__main__":
+    sys.exit(main())
