@@ -10,9 +10,11 @@ and a merge that waits for it (afterok), and checks:
   - the merged queue equals a single-machine run of the same clips (same
     clips, verdicts and report bytes: reports hold no timings), no clip was analysed
     twice, the store rows are complete;
-  - a task cancelled with scancel makes the merge refuse, naming the missing
-    shard; rerunning that index alone completes it and the merge succeeds;
-  - a task requeued by Slurm takes its clips from its store and adds no rows.
+  - a task cancelled with scancel cancels the dependent merge, and a merge
+    run anyway refuses, naming the missing shard; rerunning that index alone
+    completes it and the merge succeeds;
+  - a finished task requeued by Slurm takes its clips from its store and
+    adds no rows; a running one requeued ends with each clip once.
 
 Exit status 77 (ctest: skipped) with the reason when the daemons cannot run
 here (not root, packages missing, a daemon that does not come up). Every
@@ -86,8 +88,11 @@ class Cluster:
         # The node claims 32 CPUs and 64 GB (config_overrides: slurmd does
         # not check them against the machine), so the documented script's
         # --cpus-per-task=8 --mem=8G runs as written, 4 tasks at once.
-        # proctrack/linuxproc and task/none need no cgroups; memory is not a
-        # consumable resource with CR_CPU. Requeued jobs wait cred_expire s.
+        # proctrack/pgid and task/none need no cgroups; memory is not a
+        # consumable resource with CR_CPU. pgid, not linuxproc: a gate whose
+        # batch script died of the SIGTERM of a requeue must still count as
+        # the job (as in a cgroup), or Slurm starts the rerun while the
+        # old gate finishes its clips in flight, and both store them.
         conf = f"""ClusterName=clipwarden-test
 SlurmctldHost={host}(127.0.0.1)
 SlurmctldPort={free_port()}
@@ -103,7 +108,7 @@ SlurmctldPidFile={self.path('slurmctld.pid')}
 SlurmdPidFile={self.path('slurmd.pid')}
 SlurmctldLogFile={self.path('log', 'slurmctld.log')}
 SlurmdLogFile={self.path('log', 'slurmd.log')}
-ProctrackType=proctrack/linuxproc
+ProctrackType=proctrack/pgid
 TaskPlugin=task/none
 SelectType=select/cons_tres
 SelectTypeParameters=CR_CPU
@@ -216,12 +221,18 @@ def run(argv, **kw):
 
 
 def make_clips(folder):
-    """12 one-second 160x120 clips of moving test patterns, each a different hue."""
+    """12 one-second 160x120 clips of moving test patterns, each a different
+    hue, and a manifest naming them clip_00 ... clip_11. The ids, not the
+    temporary paths, decide the shares: 3, 3, 2 and 4 clips in shards 0-3."""
     os.makedirs(folder)
-    for i in range(CLIPS):
-        run(["ffmpeg", "-nostdin", "-loglevel", "error", "-f", "lavfi", "-i",
-             "testsrc2=size=160x120:rate=12:duration=1", "-vf", f"hue=h={i * 29 % 360}",
-             "-pix_fmt", "yuv420p", os.path.join(folder, f"clip_{i:02d}.mp4")])
+    with open(os.path.join(folder, "manifest.jsonl"), "w") as manifest:
+        for i in range(CLIPS):
+            name = f"clip_{i:02d}"
+            run(["ffmpeg", "-nostdin", "-loglevel", "error", "-f", "lavfi", "-i",
+                 "testsrc2=size=160x120:rate=12:duration=1", "-vf", f"hue=h={i * 29 % 360}",
+                 "-pix_fmt", "yuv420p", os.path.join(folder, name + ".mp4")])
+            manifest.write(json.dumps({"path": name + ".mp4", "id": name}) + "\n")
+    return os.path.join(folder, "manifest.jsonl")
 
 
 def queue(folder):
@@ -286,86 +297,155 @@ def job_output(folder, job, task=None):
         return f.read()
 
 
-def scenario(cluster, work, scripts):
-    clips = os.path.join(work, "clips")
-    make_clips(clips)
-    single = os.path.join(work, "single")
-    r = subprocess.run(["clipwarden", "gate", clips, "--out", single, "--jobs", "2", "--quiet"],
-                       env=cluster.env, capture_output=True, text=True)
-    check(r.returncode in (0, 1), f"single-machine gate exited {r.returncode}: {r.stderr}")
-    gate_array = os.path.join(scripts, "gate-array.sh")
-    merge = os.path.join(scripts, "merge.sh")
-    batch = {"INPUT": clips, "SHARDS": str(SHARDS)}
+class Batch:
+    """The scripts of docs/gate.md, the clips and the single-machine run
+    every merged queue is held against."""
 
-    # 1. The documented submission: array, then the merge after it.
-    run_a = os.path.join(work, "run-a")
-    env = dict(cluster.env, RUN=run_a, **batch)
-    out = run([os.path.join(scripts, "submit.sh")], env=env, cwd=work).stdout.split()
-    check(len(out) == 2, f"submit.sh printed {out}, not two job ids")
-    array, merge_job = out
-    tasks = cluster.wait_done(array)
+    def __init__(self, cluster, work, scripts):
+        self.cluster, self.work, self.scripts = cluster, work, scripts
+        self.single = os.path.join(work, "single")
+        self.manifest = make_clips(os.path.join(work, "clips"))
+        r = subprocess.run(["clipwarden", "gate", self.manifest, "--out", self.single, "--jobs", "2",
+                            "--quiet"], env=cluster.env, capture_output=True, text=True)
+        check(r.returncode in (0, 1), f"single-machine gate exited {r.returncode}: {r.stderr}")
+
+    def env(self, run_dir):
+        return {"INPUT": self.manifest, "SHARDS": str(SHARDS), "RUN": run_dir}
+
+    def submit(self, run_dir):
+        """submit.sh: (array job id, merge job id)."""
+        out = run([os.path.join(self.scripts, "submit.sh")],
+                  env=dict(self.cluster.env, **self.env(run_dir)), cwd=self.work).stdout.split()
+        check(len(out) == 2, f"submit.sh printed {out}, not two job ids")
+        return out
+
+    def sbatch(self, script, run_dir, options=()):
+        return self.cluster.sbatch(list(options) + [os.path.join(self.scripts, script)],
+                                   self.work, self.env(run_dir))
+
+    def merge(self, run_dir):
+        """merge.sh submitted alone: (job state, exit code, its output)."""
+        job = self.sbatch("merge.sh", run_dir)
+        state = self.cluster.wait_done(job)[job]
+        return state[0], state[1], job_output(self.work, job)
+
+
+def documented_run(b):
+    """submit.sh as documented: the array, then the merge after it."""
+    run_a = os.path.join(b.work, "run-a")
+    array, merge_job = b.submit(run_a)
+    tasks = b.cluster.wait_done(array)
     check(sorted(tasks) == [str(i) for i in range(SHARDS)] and
           all(s[0] == "COMPLETED" for s in tasks.values()), f"array tasks: {tasks}")
-    merged = cluster.wait_done(merge_job)
+    merged = b.cluster.wait_done(merge_job)
     check(all(s[0] == "COMPLETED" for s in merged.values()),
-          f"merge job: {merged}\n{job_output(work, merge_job)}")
-    check_merged_equals_single(os.path.join(run_a, "queue"), single, "array + afterok merge")
+          f"merge job: {merged}\n{job_output(b.work, merge_job)}")
+    check_merged_equals_single(os.path.join(run_a, "queue"), b.single, "array + afterok merge")
     rows = shard_rows(run_a)
     check(len(rows) == CLIPS and len({r["content_sha256"] for r in rows}) == CLIPS,
           f"{len(rows)} analyses in the shards' stores for {CLIPS} clips")
     for i in range(SHARDS):
         for line in queue(os.path.join(run_a, f"shard-{i}")):
             check(not line["from_store"], f"shard {i}: {line['id']} taken from a store")
-    print(f"array {array} and merge {merge_job}: {CLIPS} clips in {SHARDS} shards, merged "
-          "queue equals the single-machine run")
+    print(f"submit.sh: array {array} and merge {merge_job}: {CLIPS} clips in {SHARDS} shards, "
+          "merged queue, reports and store equal the single-machine run")
 
-    # 2. One task cancelled (held first so that the cancel lands before it
-    # starts, whatever the machine's load): the merge refuses, naming it.
-    run_b = os.path.join(work, "run-b")
-    env_b = {"RUN": run_b, **batch}
-    held = cluster.sbatch(["--hold", f"--array=0-{SHARDS - 1}", gate_array], work, env_b)
-    run(["scancel", f"{held}_2"], env=cluster.env)
-    run(["scontrol", "release", held], env=cluster.env)
-    tasks = cluster.wait_done(held)
+
+def cancelled_task(b):
+    """scancel of one index: Slurm cancels the dependent merge, a merge run
+    anyway refuses naming the shard, rerunning that index completes it.
+    The partition is down while the batch is submitted, so that the cancel
+    lands before the task starts whatever the machine's load."""
+    run_b = os.path.join(b.work, "run-b")
+    run(["scontrol", "update", "PartitionName=gate", "State=DOWN"], env=b.cluster.env)
+    array, merge_job = b.submit(run_b)
+    run(["scancel", f"{array}_2"], env=b.cluster.env)
+    run(["scontrol", "update", "PartitionName=gate", "State=UP"], env=b.cluster.env)
+    tasks = b.cluster.wait_done(array)
     check(tasks.get("2", ("CANCELLED",))[0] == "CANCELLED" and
           all(tasks[str(i)][0] == "COMPLETED" for i in (0, 1, 3)), f"array tasks: {tasks}")
-    refused = cluster.sbatch([merge], work, env_b)
-    state = cluster.wait_done(refused)[refused]
-    text = job_output(work, refused)
-    check(state[0] == "FAILED" and state[1] == "2:0", f"merge with shard 2 missing: {state} {text}")
-    check("shard 2 of 4 is missing" in text, f"the merge's message does not name shard 2: {text}")
+    dependent = b.cluster.wait_done(merge_job)[merge_job]
+    check(dependent[0] == "CANCELLED", f"merge after a cancelled task: {dependent}")
+    state, code, refusal = b.merge(run_b)
+    check(state == "FAILED" and code == "2:0", f"merge with shard 2 missing: {state} {refusal}")
+    check("shard 2 of 4 is missing" in refusal,
+          f"the merge's message does not name shard 2: {refusal}")
     check(not os.path.exists(os.path.join(run_b, "queue", "queue.jsonl")),
           "the refused merge wrote a queue")
-    rerun = cluster.sbatch(["--array=2", gate_array], work, env_b)
-    check(cluster.wait_done(rerun)["2"][0] == "COMPLETED", "rerun of index 2 failed")
-    again = cluster.sbatch([merge], work, env_b)
-    check(cluster.wait_done(again)[again][0] == "COMPLETED",
-          f"merge after the rerun: {job_output(work, again)}")
-    check_merged_equals_single(os.path.join(run_b, "queue"), single, "after the rerun")
-    print(f"scancel {held}_2: merge refused ({text.strip()}); sbatch --array=2 completed it")
+    rerun = b.sbatch("gate-array.sh", run_b, ["--array=2"])
+    check(b.cluster.wait_done(rerun)["2"][0] == "COMPLETED", "rerun of index 2 failed")
+    state, code, text = b.merge(run_b)
+    check(state == "COMPLETED", f"merge after the rerun: {state} {code} {text}")
+    check_merged_equals_single(os.path.join(run_b, "queue"), b.single, "after the rerun")
+    print(f"scancel {array}_2: merge {merge_job} cancelled by Slurm, merge.sh refused "
+          f"({refusal.strip()}); sbatch --array=2 completed it")
+    return run_b, array
 
-    # 3. A task requeued by Slurm runs again from its start: its clips come
-    # from its store, which gains no row.
+
+def requeue(cluster, task):
+    """scontrol requeue, then start it at once: Slurm holds a requeued job
+    back for cred_expire (120 s). Waits for the rerun to end; its state."""
+    job, index = task.split("_")
+    run(["scontrol", "requeue", task], env=cluster.env)
+    deadline = time.monotonic() + 120
+    started = False
+    while True:
+        state, _, restarts = cluster.job_states(task)[index]
+        if restarts >= 1 and state == "PENDING" and not started:
+            run(["scontrol", "update", f"JobId={task}", "StartTime=now"], env=cluster.env)
+            started = True
+        if started and state in TERMINAL_STATES:
+            return state
+        check(time.monotonic() < deadline, f"requeued {task}: {state}, {restarts} restarts")
+        time.sleep(0.3)
+
+
+def requeued_tasks(b, run_b, array):
+    """A finished task requeued runs again from its start: its clips come
+    from its store, which gains no row. A running one requeued (SIGTERM,
+    then a rerun) ends with every clip once in its queue and store."""
     shard1 = os.path.join(run_b, "shard-1")
     before = store_rows(os.path.join(shard1, "clipwarden.db"))
-    run(["scontrol", "requeue", f"{held}_1"], env=cluster.env)
-    # A requeued job is held back for cred_expire (120 s); start it now.
-    run(["scontrol", "update", f"JobId={held}_1", "StartTime=now"], env=cluster.env)
-    deadline = time.monotonic() + 120
-    while cluster.job_states(f"{held}_1")["1"][2] < 1 or \
-            cluster.job_states(f"{held}_1")["1"][0] not in TERMINAL_STATES:
-        check(time.monotonic() < deadline, f"requeued task: {cluster.job_states(held + '_1')}")
-        time.sleep(0.5)
-    check(cluster.job_states(f"{held}_1")["1"][0] == "COMPLETED", "requeued task failed")
+    check(requeue(b.cluster, f"{array}_1") == "COMPLETED", "requeued task failed")
     lines = queue(shard1)
     check(lines and all(line["from_store"] for line in lines),
           f"requeued shard 1 recomputed clips: {lines}")
     after = store_rows(os.path.join(shard1, "clipwarden.db"))
     check(after == before, f"requeued shard 1's store changed: {len(before)} -> {len(after)} rows")
-    final = cluster.sbatch([merge], work, env_b)
-    check(cluster.wait_done(final)[final][0] == "COMPLETED", job_output(work, final))
-    check_merged_equals_single(os.path.join(run_b, "queue"), single, "after the requeue")
-    print(f"scontrol requeue {held}_1: {len(lines)} clips from its store, {len(after)} rows kept")
+    state, code, text = b.merge(run_b)
+    check(state == "COMPLETED", f"merge after the requeue: {state} {code} {text}")
+    check_merged_equals_single(os.path.join(run_b, "queue"), b.single, "after the requeue")
+    print(f"scontrol requeue {array}_1 (finished): {len(lines)} clips from its store, "
+          f"{len(after)} rows as before")
+
+    # Requeued as soon as its gate has started: how far it got first depends
+    # on the machine, what it must end with does not.
+    run_c = os.path.join(b.work, "run-c")
+    shard3 = os.path.join(run_c, "shard-3")
+    job = b.sbatch("gate-array.sh", run_c, ["--array=3"])
+    deadline = time.monotonic() + 60
+    while not os.path.exists(os.path.join(shard3, "shard.json")):
+        check(time.monotonic() < deadline, f"task {job}_3 did not start its gate")
+        time.sleep(0.1)
+    check(requeue(b.cluster, f"{job}_3") == "COMPLETED", "requeued running task failed")
+    lines = queue(shard3)
+    rows = store_rows(os.path.join(shard3, "clipwarden.db"))
+    with open(os.path.join(shard3, "shard.json")) as f:
+        record = json.load(f)
+    check(record["finished"] and len(lines) == record["clips"] and
+          len({line["id"] for line in lines}) == len(lines), f"shard 3 after the requeue: {lines}")
+    check(len(rows) == len(lines) and len({r["content_sha256"] for r in rows}) == len(rows),
+          f"shard 3's store after the requeue: {len(rows)} rows for {len(lines)} clips")
+    reused = sum(line["from_store"] for line in lines)
+    print(f"scontrol requeue {job}_3 (running): {len(lines)} clips once each, {reused} of them "
+          "from the store the interrupted run left")
+
+
+def scenario(cluster, work, scripts):
+    b = Batch(cluster, work, scripts)
+    documented_run(b)
+    run_b, array = cancelled_task(b)
+    requeued_tasks(b, run_b, array)
 
 
 def main():
@@ -397,7 +477,7 @@ def main():
         os.makedirs(cluster.root)
         cluster.start()
         print(f"cluster up in {time.monotonic() - start:.1f} s")
-        scenario(cluster, work, os.path.join(a.source, "tests", "cluster"))
+        scenario(cluster, work, os.path.join(os.path.abspath(a.source), "tests", "cluster"))
     except Skip as e:
         print(f"SKIPPED: the cluster could not start: {e}")
         status = SKIP
