@@ -14,7 +14,8 @@ and a merge that waits for it (afterok), and checks:
     run anyway refuses, naming the missing shard; rerunning that index alone
     completes it and the merge succeeds;
   - a finished task requeued by Slurm takes its clips from its store and
-    adds no rows; a running one requeued ends with each clip once.
+    adds no rows; one requeued while running takes the clips it had stored
+    from its store and ends with each clip once.
 
 Exit status 77 (ctest: skipped) with the reason when the daemons cannot run
 here (not root, packages missing, a daemon that does not come up). Every
@@ -34,6 +35,7 @@ import tempfile
 import time
 
 SKIP = 77
+STARTED = time.monotonic()
 SHARDS = 4
 CLIPS = 12
 TERMINAL_STATES = {"COMPLETED", "FAILED", "CANCELLED", "TIMEOUT", "NODE_FAIL",
@@ -46,6 +48,10 @@ class Skip(Exception):
 
 class Failed(AssertionError):
     pass
+
+
+def say(text):
+    print(f"[{time.monotonic() - STARTED:5.1f} s] {text}", flush=True)
 
 
 def check(condition, message):
@@ -284,6 +290,21 @@ def check_merged_equals_single(merged, single, what):
               f"{what}: store row of {line['id']} points at {row['report_path']}")
 
 
+def stored_so_far(db):
+    """Content hashes in a store a running gate writes to (read-only: WAL
+    lets a reader in; a store not created yet holds nothing)."""
+    if not os.path.exists(db):
+        return set()
+    try:
+        con = sqlite3.connect(f"file:{db}?mode=ro", uri=True)
+        try:
+            return {r[0] for r in con.execute("SELECT content_sha256 FROM analyses")}
+        finally:
+            con.close()
+    except sqlite3.Error:  # the schema is being created
+        return set()
+
+
 def shard_rows(run_dir):
     rows = []
     for i in range(SHARDS):
@@ -347,7 +368,7 @@ def documented_run(b):
     for i in range(SHARDS):
         for line in queue(os.path.join(run_a, f"shard-{i}")):
             check(not line["from_store"], f"shard {i}: {line['id']} taken from a store")
-    print(f"submit.sh: array {array} and merge {merge_job}: {CLIPS} clips in {SHARDS} shards, "
+    say(f"submit.sh: array {array} and merge {merge_job}: {CLIPS} clips in {SHARDS} shards, "
           "merged queue, reports and store equal the single-machine run")
 
 
@@ -377,7 +398,7 @@ def cancelled_task(b):
     state, code, text = b.merge(run_b)
     check(state == "COMPLETED", f"merge after the rerun: {state} {code} {text}")
     check_merged_equals_single(os.path.join(run_b, "queue"), b.single, "after the rerun")
-    print(f"scancel {array}_2: merge {merge_job} cancelled by Slurm, merge.sh refused "
+    say(f"scancel {array}_2: merge {merge_job} cancelled by Slurm, merge.sh refused "
           f"({refusal.strip()}); sbatch --array=2 completed it")
     return run_b, array
 
@@ -403,7 +424,7 @@ def requeue(cluster, task):
 def requeued_tasks(b, run_b, array):
     """A finished task requeued runs again from its start: its clips come
     from its store, which gains no row. A running one requeued (SIGTERM,
-    then a rerun) ends with every clip once in its queue and store."""
+    then a rerun) resumes from its store and ends with every clip once."""
     shard1 = os.path.join(run_b, "shard-1")
     before = store_rows(os.path.join(shard1, "clipwarden.db"))
     check(requeue(b.cluster, f"{array}_1") == "COMPLETED", "requeued task failed")
@@ -415,34 +436,38 @@ def requeued_tasks(b, run_b, array):
     state, code, text = b.merge(run_b)
     check(state == "COMPLETED", f"merge after the requeue: {state} {code} {text}")
     check_merged_equals_single(os.path.join(run_b, "queue"), b.single, "after the requeue")
-    print(f"scontrol requeue {array}_1 (finished): {len(lines)} clips from its store, "
+    say(f"scontrol requeue {array}_1 (finished): {len(lines)} clips from its store, "
           f"{len(after)} rows as before")
 
-    # Requeued as soon as its gate has started: how far it got first depends
-    # on the machine, what it must end with does not.
+    # Requeued once its store holds a clip, while the others are still in
+    # flight or just done (how far it got depends on the machine's load):
+    # the clips stored before come from the store, none is stored twice.
     run_c = os.path.join(b.work, "run-c")
     shard3 = os.path.join(run_c, "shard-3")
     job = b.sbatch("gate-array.sh", run_c, ["--array=3"])
-    deadline = time.monotonic() + 60
-    while not os.path.exists(os.path.join(shard3, "shard.json")):
-        check(time.monotonic() < deadline, f"task {job}_3 did not start its gate")
-        time.sleep(0.1)
+    deadline = time.monotonic() + 90
+    while not (stored := stored_so_far(os.path.join(shard3, "clipwarden.db"))):
+        check(time.monotonic() < deadline, f"task {job}_3 stored no clip")
+        time.sleep(0.05)
     check(requeue(b.cluster, f"{job}_3") == "COMPLETED", "requeued running task failed")
     lines = queue(shard3)
     rows = store_rows(os.path.join(shard3, "clipwarden.db"))
     with open(os.path.join(shard3, "shard.json")) as f:
         record = json.load(f)
-    check(record["finished"] and len(lines) == record["clips"] and
-          len({line["id"] for line in lines}) == len(lines), f"shard 3 after the requeue: {lines}")
-    check(len(rows) == len(lines) and len({r["content_sha256"] for r in rows}) == len(rows),
-          f"shard 3's store after the requeue: {len(rows)} rows for {len(lines)} clips")
-    reused = sum(line["from_store"] for line in lines)
-    print(f"scontrol requeue {job}_3 (running): {len(lines)} clips once each, {reused} of them "
-          "from the store the interrupted run left")
+    check(record["finished"] and len(lines) == record["clips"] == 4 and
+          len({line["id"] for line in lines}) == 4, f"shard 3 after the requeue: {lines}")
+    check(len(rows) == 4 and len({r["content_sha256"] for r in rows}) == 4,
+          f"shard 3's store after the requeue: {len(rows)} rows for 4 clips")
+    for line in lines:
+        if line["sha256"] in stored:
+            check(line["from_store"], f"{line['id']} was stored before the requeue, yet redone")
+    say(f"scontrol requeue {job}_3 with {len(stored)} of 4 clips stored: 4 clips once each, "
+          f"{sum(line['from_store'] for line in lines)} from the store")
 
 
 def scenario(cluster, work, scripts):
     b = Batch(cluster, work, scripts)
+    say(f"{CLIPS} clips made and gated on this machine")
     documented_run(b)
     run_b, array = cancelled_task(b)
     requeued_tasks(b, run_b, array)
@@ -476,7 +501,7 @@ def main():
     try:
         os.makedirs(cluster.root)
         cluster.start()
-        print(f"cluster up in {time.monotonic() - start:.1f} s")
+        say("cluster up")
         scenario(cluster, work, os.path.join(os.path.abspath(a.source), "tests", "cluster"))
     except Skip as e:
         print(f"SKIPPED: the cluster could not start: {e}")
