@@ -20,14 +20,8 @@
 namespace clipwarden::test {
 namespace {
 
-Report analyse(const std::string& path) {
-  auto report = analyze_clip(path, AnalysisSettings{}, default_policy());
-  if (!report) ADD_FAILURE() << path << ": " << report.error().message();
-  return report ? std::move(*report) : Report{};
-}
-
 void expect_no_flagged_local_flicker(const std::string& path) {
-  const Report r = analyse(path);
+  const Report r = analyse_with_defaults(path);
   for (const Segment& s : r.segments)
     if (s.metric == "flicker_local")
       EXPECT_EQ(s.severity, Severity::info)
@@ -70,7 +64,7 @@ TEST(FlickerLocalFootage, AnInjectedPulseInAStreetSceneIsFoundAtItsFrames) {
   auto truth = inject_defects(trimmed, options);
   ASSERT_TRUE(truth.ok()) << truth.error().message();
   const std::string injected = (*truth)["output"]["path"].get<std::string>();
-  const Report r = analyse(injected);
+  const Report r = analyse_with_defaults(injected);
   bool found = false;
   for (const Segment& s : r.segments) {
     if (s.metric != "flicker_local") continue;

@@ -3,6 +3,11 @@
 #include <cstdlib>
 #include <filesystem>
 
+#include <gtest/gtest.h>
+
+#include "clipwarden/analysis.h"
+#include "clipwarden/policy.h"
+
 namespace clipwarden::test {
 
 std::string corpus_clip(const std::string& file) {
@@ -11,6 +16,12 @@ std::string corpus_clip(const std::string& file) {
   const std::filesystem::path path = std::filesystem::path(root) / "clips" / file;
   std::error_code ec;
   return std::filesystem::is_regular_file(path, ec) ? path.string() : std::string();
+}
+
+Report analyse_with_defaults(const std::string& path) {
+  auto report = analyze_clip(path, AnalysisSettings{}, default_policy());
+  if (!report) ADD_FAILURE() << path << ": " << report.error().message();
+  return report ? std::move(*report) : Report{};
 }
 
 }  // namespace clipwarden::test

@@ -6,9 +6,15 @@
 
 #include <string>
 
+#include "clipwarden/report.h"
+
 namespace clipwarden::test {
 
 // Path of clips/<file> in the corpus, or "" when there is none.
 std::string corpus_clip(const std::string& file);
+
+// The clip analysed with the default settings and policy; a failed analysis
+// fails the test and gives an empty report.
+Report analyse_with_defaults(const std::string& path);
 
 }  // namespace clipwarden::test
