@@ -288,7 +288,7 @@ std::string Scoreboard::markdown() const {
   for (const auto& r : rows) {
     std::string metrics;
     for (const auto& m : metrics_for(r.cls)) metrics += (metrics.empty() ? "" : ", ") + m;
-    if (r.cls == DefectClass::drop) metrics = "stream.dropped_frames, jerk";
+    if (r.cls == DefectClass::drop) metrics = "stream.dropped_frames, jolt";
     md += "| " + std::string(inject::to_string(r.cls)) + " | " + metrics + " | " + inject::to_string(r.level) +
           " | " + std::to_string(r.scored) + " | ";
     if (!r.available) {
