@@ -6,6 +6,7 @@
 #include <atomic>
 #include <cstdio>
 #include <cstdlib>
+#include <thread>
 
 #include "analyzer/cli/args.h"
 #include "analyzer/cli/command.h"
@@ -26,6 +27,8 @@ std::vector<OptionSpec> gate_specs() {
       {"shard", true, "I/N: this job's share, I from 0; auto/N reads the scheduler's index"});
   specs.push_back({"fail-on", true, "review or reject (default): exit 1 when a clip gets it"});
   specs.push_back({"no-html", false, "write only the JSON reports"});
+  specs.push_back(
+      {"allow-empty", false, "an input list with no clips is not an error (exit 0, empty queue)"});
   specs.push_back({"print-default-policy", false, "print the built-in policy as JSON and exit"});
   specs.push_back({"quiet", false, "no progress and no summary line"});
   return specs;
@@ -106,6 +109,11 @@ int run_gate(const std::vector<std::string>& args) {
   auto collected = collect_inputs(parsed->positionals);
   if (!collected) return print_error(collected.error().message()), kExitUsage;
   for (const auto& w : collected->warnings) print_error(w);
+  // A CI job must not pass having checked nothing (an empty folder, a
+  // manifest with no lines, a glob that matched nothing).
+  if (collected->inputs.empty() && !parsed->has("allow-empty"))
+    return print_error("gate: the inputs hold no clips (--allow-empty accepts an empty batch)"),
+           kExitUsage;
   assign_output_names(collected->inputs);
   const std::vector<GateInput> inputs =
       shard ? select_shard(collected->inputs, *shard) : collected->inputs;
@@ -116,6 +124,14 @@ int run_gate(const std::vector<std::string>& args) {
   gate.out_dir = *parsed->get("out");
   gate.db_path = parsed->get("db").value_or("");
   gate.jobs = jobs->value_or(0);
+  // More clips at once than the machine has cores only adds memory and
+  // contention (each analysis already keeps a core busy).
+  const int max_jobs = 2 * static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
+  if (gate.jobs > max_jobs) {
+    print_error("gate: --jobs " + std::to_string(gate.jobs) + " is more than twice the " +
+                std::to_string(max_jobs / 2) + " cores; using " + std::to_string(max_jobs));
+    gate.jobs = max_jobs;
+  }
   if (shard) gate.shard = shard_record(collected->inputs, *shard);
   const bool html = !parsed->has("no-html");
   gate.collect_thumbnails = html;

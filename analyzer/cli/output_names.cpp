@@ -2,6 +2,8 @@
 
 #include <filesystem>
 
+#include "analyzer/core/byte_text.h"
+
 namespace clipwarden::cli {
 namespace {
 
@@ -23,21 +25,32 @@ std::string safe_stem(const std::string& clip_path) {
   std::filesystem::path p(clip_path);
   std::string stem = p.has_stem() ? p.stem().string() : p.filename().string();
   if (stem.empty() || stem == "." || stem == "..") stem = p.parent_path().filename().string();
+  // Output names are always UTF-8 (they go into JSON and pages as they
+  // are): non-ASCII characters are kept whole, a byte that is not part of a
+  // well-formed UTF-8 sequence becomes '_', and the length limit cuts
+  // between characters, never inside one.
+  constexpr size_t kMaxBytes = 120;
   std::string out;
-  for (size_t i = 0; i < stem.size(); ++i) {
+  for (size_t i = 0; i < stem.size();) {
     const unsigned char c = static_cast<unsigned char>(stem[i]);
+    size_t n = utf8_sequence_length(stem, i);
+    std::string piece;
     if (is_bidi_control(stem, i)) {  // a name that reads backwards in a file list
-      out.push_back('_');
-      i += 2;
-      continue;
+      piece = "_";
+    } else if (n > 1) {
+      piece = stem.substr(i, n);
+    } else {
+      const bool keep = (c >= 'a' && c <= 'z') || (c >= 'A' && c <= 'Z') ||
+                        (c >= '0' && c <= '9') || c == '-' || c == '_' || c == '.';
+      piece = keep ? std::string(1, static_cast<char>(c)) : "_";
+      n = 1;
     }
-    const bool keep = (c >= 'a' && c <= 'z') || (c >= 'A' && c <= 'Z') || (c >= '0' && c <= '9') ||
-                      c == '-' || c == '_' || c == '.' || c >= 0x80;  // keep UTF-8 bytes
-    out.push_back(keep ? static_cast<char>(c) : '_');
+    if (out.size() + piece.size() > kMaxBytes) break;
+    out += piece;
+    i += n;
   }
   while (!out.empty() && out.front() == '.') out.erase(out.begin());
   if (out.empty()) out = "clip";
-  if (out.size() > 120) out.resize(120);
   return out;
 }
 

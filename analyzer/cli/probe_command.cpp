@@ -3,6 +3,7 @@
 
 #include "analyzer/cli/args.h"
 #include "analyzer/cli/command.h"
+#include "analyzer/core/byte_text.h"
 #include "clipwarden/clip_source.h"
 
 namespace clipwarden::cli {
@@ -32,7 +33,7 @@ int run_probe(const std::vector<std::string>& args) {
     print_error(facts.error().message());
     return kExitInputError;
   }
-  std::printf("%s\n", facts->dump(2).c_str());
+  std::printf("%s\n", dump_json(*facts, 2).c_str());
   return kExitOk;
 }
 

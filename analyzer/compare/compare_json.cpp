@@ -2,6 +2,7 @@
 #include <cmath>
 #include <filesystem>
 
+#include "analyzer/core/byte_text.h"
 #include "clipwarden/compare.h"
 #include "clipwarden/report_io.h"
 #include "clipwarden/version.h"
@@ -174,7 +175,7 @@ Status write_comparison(const Comparison& c, const std::string& out_dir) {
   std::filesystem::create_directories(out_dir, ec);
   if (ec) return output_error(out_dir, "cannot create output folder: " + ec.message());
   const std::string base = (std::filesystem::path(out_dir) / "compare").string();
-  if (auto s = write_file_atomic(base + ".json", comparison_to_json(c).dump(1) + "\n"); !s)
+  if (auto s = write_file_atomic(base + ".json", dump_json(comparison_to_json(c), 1) + "\n"); !s)
     return s;
   return write_file_atomic(base + ".html", comparison_to_html(c, out_dir));
 }

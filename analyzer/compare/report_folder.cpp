@@ -1,3 +1,4 @@
+#include "analyzer/core/json_text.h"
 #include "analyzer/compare/report_folder.h"
 
 #include <algorithm>
@@ -82,8 +83,13 @@ void load_queue(const fs::path& dir, const std::string& side, LoadedFolder& out)
   for (int number = 1; std::getline(in, text); ++number) {
     if (text.find_first_not_of(" \t\r") == std::string::npos) continue;
     const std::string where = queue.string() + " line " + std::to_string(number);
-    const json line = json::parse(text, nullptr, false);
-    if (line.is_discarded() || !line.is_object()) {
+    const auto parsed = parse_json_text(text, where, ErrorKind::input);
+    if (!parsed) {
+      out.failed.push_back({side, where, parsed.error().cause, true});
+      continue;
+    }
+    const json& line = *parsed;
+    if (!line.is_object()) {
       out.failed.push_back({side, where, "is not a JSON object", true});
       continue;
     }

@@ -11,6 +11,7 @@ namespace clipwarden {
 
 Expected<std::unique_ptr<ClipSource>> ClipSource::open(const std::string& path,
                                                        const SourceOptions& options) {
+  if (auto st = check_clip_path(path); !st) return st.error();
   std::error_code ec;
   if (std::filesystem::is_directory(path, ec)) return decode::open_folder_source(path, options);
   if (decode::looks_like_webp(path)) return decode::open_webp_source(path, options);
@@ -18,6 +19,7 @@ Expected<std::unique_ptr<ClipSource>> ClipSource::open(const std::string& path,
 }
 
 Expected<nlohmann::json> probe_clip(const std::string& path, const SourceOptions& options) {
+  if (auto st = check_clip_path(path); !st) return st.error();
   std::error_code ec;
   auto facts = std::filesystem::is_directory(path, ec) ? decode::probe_folder(path, options)
                : decode::looks_like_webp(path)         ? decode::probe_webp(path)

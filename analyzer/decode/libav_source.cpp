@@ -23,6 +23,18 @@ constexpr int kMaxFailuresInARow = 300;
 
 bool valid_rate(AVRational r) { return r.num > 0 && r.den > 0; }
 
+// The sample count of an MP4/MOV index (stsz), else 0. Other containers'
+// counts are not a promise of decodable frames: an AVI index lists
+// zero-size "drop" chunks (opencv-doc tree.avi lists 444, decodes 68).
+int64_t index_frame_count(const AVFormatContext* format, int video_index) {
+  const char* name = format->iformat ? format->iformat->name : "";
+  return std::string(name).find("mp4") != std::string::npos ? format->streams[video_index]->nb_frames
+                                                            : 0;
+}
+
+// Every frame an index lists was read (0 listed: no index to judge by).
+bool frames_whole(int64_t listed, int64_t got) { return listed > 0 && got >= listed; }
+
 std::optional<int64_t> known(int64_t ts) {
   return ts == AV_NOPTS_VALUE ? std::nullopt : std::optional<int64_t>(ts);
 }
@@ -83,25 +95,20 @@ class LibavSource final : public ClipSource {
     const int audio_index = find_audio_stream(format_.get(), video_index_);
     if (audio_index >= 0) audio_.emplace(format_->streams[audio_index]);
     discard_other_streams(format_.get(), video_index_, audio_index);
-    truncation_ = find_truncation(path_);
+    ContainerCheck sizes = check_container(path_);
+    truncation_ = std::move(sizes.truncation);
+    if (sizes.trailing) notes_.push_back(*sizes.trailing);
   }
 
   bool allocated() const { return packet_ && frame_; }
   const ClipInfo& info() const override { return info_; }
   StreamFacts stream_facts() const override { return facts_; }
+  std::vector<std::string> notes() const override { return notes_; }
   Expected<bool> read(DecodedFrame& out) override;
 
  private:
   Expected<bool> finish();
-  // The sample count of an MP4/MOV index (stsz), else 0. Other containers'
-  // counts are not a promise of decodable frames: an AVI index lists
-  // zero-size "drop" chunks (opencv-doc tree.avi lists 444, decodes 68).
-  int64_t listed_sample_count() const {
-    const char* name = format_->iformat ? format_->iformat->name : "";
-    return std::string(name).find("mp4") != std::string::npos
-               ? format_->streams[video_index_]->nb_frames
-               : 0;
-  }
+  int64_t listed_sample_count() const { return index_frame_count(format_.get(), video_index_); }
   Status feed_decoder();
   Status note_failure(int code);
 
@@ -123,7 +130,11 @@ class LibavSource final : public ClipSource {
   int read_error_ = 0;
   std::string read_error_reason_;
   std::optional<std::string> truncation_;  // the container's sizes say the file is cut short
+  std::vector<std::string> notes_;
   int failures_in_a_row_ = 0;
+  int decode_errors_ = 0;      // send/receive failures over the whole clip
+  int concealed_frames_ = 0;   // frames output with damage concealed
+  int64_t frame_packets_ = 0;  // video packets that should each give a frame
 };
 
 Expected<bool> LibavSource::read(DecodedFrame& out) {
@@ -140,6 +151,10 @@ Expected<bool> LibavSource::read(DecodedFrame& out) {
     if (auto fed = feed_decoder(); !fed) return fed.error();
   }
   failures_in_a_row_ = 0;
+  // The decoder hid damage in this frame (error concealment) or marks it
+  // as corrupt: it still comes out, and looks plausible, so it is counted.
+  if (frame_->decode_error_flags != 0 || (frame_->flags & AV_FRAME_FLAG_CORRUPT))
+    ++concealed_frames_;
   out.index = frames_++;
   out.t_s = timing_.add(known(frame_->best_effort_timestamp), frame_duration(*frame_));
   auto converted = scaler_.convert(*frame_, out.bgr, path_);
@@ -165,6 +180,9 @@ Status LibavSource::feed_decoder() {
     }
     const bool video = packet_->stream_index == video_index_;
     if (video) {
+      // Packets that must come out as a frame: not empty (an AVI "drop"
+      // chunk holds nothing) and not before an edit list's start.
+      if (packet_->size > 0 && !(packet_->flags & AV_PKT_FLAG_DISCARD)) ++frame_packets_;
       const int sent = avcodec_send_packet(decoder_.get(), packet_.get());
       av_packet_unref(packet_.get());
       if (sent < 0 && sent != AVERROR(EAGAIN)) return note_failure(sent);
@@ -178,6 +196,7 @@ Status LibavSource::feed_decoder() {
 // A packet or frame that did not decode: skipped, unless the stream has
 // stopped decoding altogether.
 Status LibavSource::note_failure(int code) {
+  ++decode_errors_;
   if (++failures_in_a_row_ < kMaxFailuresInARow) return Ok{};
   finished_ = true;
   end_error_ =
@@ -188,8 +207,18 @@ Status LibavSource::note_failure(int code) {
 Expected<bool> LibavSource::finish() {
   finished_ = true;
   facts_ = timing_.facts();
+  facts_.decode_errors = decode_errors_;
+  facts_.concealed_frames = concealed_frames_;
+  facts_.lost_frames = static_cast<int>(std::max<int64_t>(0, frame_packets_ - frames_));
   settle(info_, facts_, frames_,
          audio_ ? std::optional<AudioInfo>(audio_->finish()) : std::nullopt);
+  // The sizes are a hint; the frames are the evidence: when every frame the
+  // MP4 index lists came out, the file is whole whatever follows its boxes.
+  if (truncation_ && frames_whole(listed_sample_count(), frames_)) {
+    notes_.push_back("the container's sizes look cut short (" + *truncation_ + "), but all " +
+                     std::to_string(frames_) + " frames its index lists decoded");
+    truncation_.reset();
+  }
   if (truncation_) {
     end_error_ = input_error(
         path_, "truncated after frame " + std::to_string(frames_) + " (" + *truncation_ + ")");
@@ -318,7 +347,8 @@ Expected<std::pair<ClipInfo, StreamFacts>> probe_libav(const std::string& path) 
     return input_error(
         path,
         with_reason("truncated or unreadable after packet " + std::to_string(stamps.size()), rc));
-  if (auto cut = find_truncation(path))
+  if (auto cut = find_truncation(path);
+      cut && !frames_whole(index_frame_count(fmt, *video_index), static_cast<int64_t>(stamps.size())))
     return input_error(
         path, "truncated after frame " + std::to_string(stamps.size()) + " (" + *cut + ")");
   if (stamps.empty()) return input_error(path, "the video stream holds no frames");

@@ -1,6 +1,7 @@
 #include "analyzer/decode/libav_util.h"
 
 #include "analyzer/decode/truncation.h"
+#include "clipwarden/clip_source.h"
 
 #include <algorithm>
 #include <cerrno>
@@ -112,11 +113,9 @@ Expected<size_t> read_file_bytes(const std::string& path, std::vector<uint8_t>& 
 
 Expected<FormatPtr> open_input(const std::string& path) {
   install_quiet_av_log();
+  if (auto st = check_clip_path(path); !st) return st.error();
   std::error_code ec;
-  const auto status = std::filesystem::status(path, ec);
-  if (!std::filesystem::exists(status)) return input_error(path, "no such file");
-  if (!std::filesystem::is_regular_file(status))
-    return input_error(path, "not a regular file or a folder of frames");
+  if (std::filesystem::is_directory(path, ec)) return input_error(path, "is a folder, not a video file");
   if (std::filesystem::file_size(path, ec) == 0 && !ec) return input_error(path, "file is empty");
 
   clear_av_log_message();

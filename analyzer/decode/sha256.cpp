@@ -117,9 +117,9 @@ std::string Sha256::hex_digest() {
 namespace clipwarden {
 
 Expected<std::string> sha256_file(const std::string& path) {
+  if (auto st = check_clip_path(path); !st) return st.error();
   std::error_code ec;
-  if (!std::filesystem::is_regular_file(path, ec))  // a pipe or device could block or never end
-    return input_error(path, "not a regular file, cannot hash it");
+  if (std::filesystem::is_directory(path, ec)) return input_error(path, "is a folder, not a file");
   std::FILE* file = std::fopen(path.c_str(), "rb");
   if (!file) return input_error(path, "cannot read the file to hash it");
   decode::Sha256 hash;

@@ -43,25 +43,52 @@ std::string ends_early(uint64_t file_size, const std::string& what, uint64_t dec
          " runs to byte " + std::to_string(declared_end);
 }
 
+// A top-level box type is a four-character code of printable ASCII
+// (ISO/IEC 14496-12 section 4.2 and the registered types); anything else
+// where a box should start is not a box.
+bool printable_type(const uint8_t* p) {
+  for (int i = 0; i < 4; ++i)
+    if (p[i] < 0x20 || p[i] > 0x7e) return false;
+  return true;
+}
+
+std::string stray_bytes(uint64_t file_size, uint64_t from) {
+  return std::to_string(file_size - from) + " bytes after the last box (from byte " +
+         std::to_string(from) + ") are not a box; ignored";
+}
+
 // ISO/IEC 14496-12 section 4.2: size (32-bit; 1 = a 64-bit size follows,
-// 0 = to the end of the file), then the four-character type.
-std::optional<std::string> check_boxes(const FileBytes& file) {
+// 0 = to the end of the file), then the four-character type. Bytes after
+// the last box that do not start a box (too few for a header, or a type
+// that is not a four-character code) are stray data some writers leave:
+// FFmpeg plays such files whole, so they are a note, not a truncation.
+ContainerCheck check_boxes(const FileBytes& file) {
+  ContainerCheck out;
   uint64_t offset = 0;
-  while (offset + 8 <= file.size) {
+  while (offset < file.size) {
     const auto header = file.read_at(offset, 16);
-    if (header.size() < 8) break;
+    if (header.size() < 8 || !printable_type(header.data() + 4)) {
+      if (offset > 0) out.trailing = stray_bytes(file.size, offset);
+      return out;
+    }
     uint64_t size = big_endian(header.data(), 4);
     const std::string type(header.begin() + 4, header.begin() + 8);
     if (size == 1) {
-      if (header.size() < 16) return ends_early(file.size, type + " box header", offset + 16);
+      if (header.size() < 16) {
+        out.truncation = ends_early(file.size, type + " box header", offset + 16);
+        return out;
+      }
       size = big_endian(header.data() + 8, 8);
     }
-    if (size == 0) return std::nullopt;  // runs to the end of the file by definition
-    if (size < 8) return std::nullopt;   // not a box structure we understand: no verdict
-    if (offset + size > file.size) return ends_early(file.size, type + " box", offset + size);
+    if (size == 0) return out;  // runs to the end of the file by definition
+    if (size < 8) return out;   // not a box structure we understand: no verdict
+    if (offset + size > file.size) {
+      out.truncation = ends_early(file.size, type + " box", offset + size);
+      return out;
+    }
     offset += size;
   }
-  return std::nullopt;
+  return out;
 }
 
 // RIFF: "RIFF", 32-bit little-endian size, form type; large AVI files
@@ -130,20 +157,28 @@ bool is_box_type(const uint8_t* p) {
 
 }  // namespace
 
-std::optional<std::string> find_truncation(const FileBytes& file) {
+ContainerCheck check_container(const FileBytes& file) {
   const auto head = file.read_at(0, 12);
-  if (head.size() < 12) return std::nullopt;
-  if (std::memcmp(head.data(), "RIFF", 4) == 0) return check_riff(file);
-  if (big_endian(head.data(), 4) == 0x1A45DFA3) return check_matroska(file);
-  if (std::memcmp(head.data(), "GIF8", 4) == 0) return check_gif(file);
+  if (head.size() < 12) return {};
+  if (std::memcmp(head.data(), "RIFF", 4) == 0) return {check_riff(file), std::nullopt};
+  if (big_endian(head.data(), 4) == 0x1A45DFA3) return {check_matroska(file), std::nullopt};
+  if (std::memcmp(head.data(), "GIF8", 4) == 0) return {check_gif(file), std::nullopt};
   if (is_box_type(head.data() + 4)) return check_boxes(file);
-  return std::nullopt;
+  return {};
+}
+
+ContainerCheck check_container(const std::string& path) {
+  DiskFile file(path);
+  if (!file.ok()) return {};
+  return check_container(file);
+}
+
+std::optional<std::string> find_truncation(const FileBytes& file) {
+  return check_container(file).truncation;
 }
 
 std::optional<std::string> find_truncation(const std::string& path) {
-  DiskFile file(path);
-  if (!file.ok()) return std::nullopt;
-  return find_truncation(file);
+  return check_container(path).truncation;
 }
 
 }  // namespace clipwarden::decode

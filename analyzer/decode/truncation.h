@@ -13,6 +13,18 @@
 
 namespace clipwarden::decode {
 
+struct FileBytes;
+
+// What the container's own sizes say: `truncation` why the file looks cut
+// short; `trailing` a note when bytes after an MP4/MOV's last box are not a
+// box (stray data, not a reason to refuse the file).
+struct ContainerCheck {
+  std::optional<std::string> truncation;
+  std::optional<std::string> trailing;
+};
+ContainerCheck check_container(const std::string& path);
+ContainerCheck check_container(const FileBytes& file);
+
 // Why the file looks truncated ("the file ends at byte 1000 but its mdat
 // box runs to byte 5000"), or nothing when it looks whole or the container
 // is not one of the above.

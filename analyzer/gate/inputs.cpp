@@ -6,6 +6,8 @@
 #include <map>
 #include <set>
 
+#include "analyzer/core/byte_text.h"
+#include "analyzer/core/json_text.h"
 #include "clipwarden/gate.h"
 
 namespace clipwarden {
@@ -64,8 +66,12 @@ bool is_frame_folder(const fs::path& dir) {
 }
 
 // Frame folders are clips (not searched further); other folders are searched.
-// Symbolic links to folders are not followed, so a link loop cannot hang us.
-void scan_folder(const fs::path& dir, std::vector<std::string>& clips) {
+// Symbolic links to folders are not followed, so a link loop cannot hang us;
+// links to files are. What is passed over is said (a warning each), never
+// dropped silently: a link to a folder, a dangling link, and an entry named
+// like a video that is not a regular file (a pipe, a device).
+void scan_folder(const fs::path& dir, std::vector<std::string>& clips,
+                 std::vector<std::string>& warnings) {
   if (is_frame_folder(dir)) {
     clips.push_back(dir.string());
     return;
@@ -73,10 +79,23 @@ void scan_folder(const fs::path& dir, std::vector<std::string>& clips) {
   const size_t before = clips.size();
   for (const auto& e : sorted_entries(dir)) {
     std::error_code ec;
-    if (e.is_directory(ec) && !e.is_symlink(ec))
-      scan_folder(e.path(), clips);
-    else if (e.is_regular_file(ec) && is_video_file(e.path()))
-      clips.push_back(e.path().string());
+    const bool link = e.is_symlink(ec);
+    const std::string shown = printable(e.path().string());
+    if (link && !fs::exists(e.path(), ec)) {
+      warnings.push_back(shown + ": dangling symbolic link, skipped");
+    } else if (e.is_directory(ec)) {
+      if (link)
+        warnings.push_back(shown +
+                           ": symbolic link to a folder, not followed (name it as an INPUT "
+                           "to include it)");
+      else
+        scan_folder(e.path(), clips, warnings);
+    } else if (is_video_file(e.path())) {
+      if (e.is_regular_file(ec))
+        clips.push_back(e.path().string());
+      else
+        warnings.push_back(shown + ": not a regular file (a pipe or a device), skipped");
+    }
   }
   // A folder named like a clip ("take.mp4/") that holds no clips was meant
   // as one: it gets a queue row (an input error) instead of vanishing.
@@ -98,8 +117,9 @@ struct ManifestLine {
 
 Expected<ManifestLine> parse_manifest_line(const std::string& text, const fs::path& base,
                                            const std::string& where) {
-  json j = json::parse(text, nullptr, /*allow_exceptions=*/false);
-  if (j.is_discarded()) return usage_error(where, "not valid JSON");
+  auto parsed = parse_json_text(text, where, ErrorKind::usage);
+  if (!parsed) return parsed.error();
+  json& j = *parsed;
   if (!j.is_object()) return usage_error(where, "each line must be a JSON object");
   if (!j.contains("path")) return usage_error(where, "missing \"path\"");
   if (!j["path"].is_string() || j["path"].get<std::string>().empty())
@@ -143,24 +163,26 @@ Status read_manifest(const std::string& manifest, std::vector<ManifestLine>& out
 
 Expected<CollectedInputs> collect_inputs(const std::vector<std::string>& args) {
   std::vector<ManifestLine> lines;
-  std::vector<std::string> empty_folders;
+  std::vector<std::string> warnings;
   for (const auto& arg : args) {
     std::error_code ec;
-    const fs::path p(arg);
+    // "A/x.mp4" and "./A/x.mp4" are one clip with one id.
+    const fs::path p = fs::path(arg).lexically_normal();
+    const std::string given = p.string();
     if (lower_extension(p) == ".jsonl" && !fs::is_directory(p, ec)) {
       auto st = read_manifest(arg, lines);
       if (!st) return st.error();
     } else if (fs::is_directory(p, ec)) {
       std::vector<std::string> clips;
-      scan_folder(p, clips);
-      if (clips.empty()) empty_folders.push_back(arg + ": folder holds no clips");
+      scan_folder(p, clips, warnings);
+      if (clips.empty()) warnings.push_back(printable(arg) + ": folder holds no clips");
       for (auto& c : clips) lines.push_back({GateInput{.path = c, .id = c}, false});
     } else {
-      lines.push_back({GateInput{.path = arg, .id = arg}, false});
+      lines.push_back({GateInput{.path = given, .id = given}, false});
     }
   }
   CollectedInputs out;
-  out.warnings = std::move(empty_folders);
+  out.warnings = std::move(warnings);
   std::map<std::string, std::string> seen;  // id -> where it was first given
   for (auto& line : lines) {
     GateInput& in = line.input;
@@ -168,7 +190,7 @@ Expected<CollectedInputs> collect_inputs(const std::vector<std::string>& args) {
     auto [it, fresh] = seen.emplace(in.id, where);
     if (!fresh) {
       if (line.explicit_id) return usage_error(where, "id '" + in.id + "' repeats " + it->second);
-      out.warnings.push_back(where + ": named twice; judged once");
+      out.warnings.push_back(printable(where) + ": named twice; judged once");
       continue;
     }
     in.index = static_cast<int64_t>(out.inputs.size());

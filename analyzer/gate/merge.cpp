@@ -1,6 +1,12 @@
 // clipwarden merge: the outputs of shard runs joined into one folder. Report
 // names are unique across shards (the gate names clips over the whole input
 // list before taking its share), so a merge normally copies them unchanged.
+//
+// A shard folder is input like any other: its queue may name any file. So
+// every report a queue line names is checked before anything is copied: a
+// plain file name inside the shard folder (no folder part, no link leading
+// out), a report that reads as one, and whose clip hash is the queue line's.
+// Anything else refuses the whole merge with the line and the reason.
 #include <algorithm>
 #include <filesystem>
 #include <fstream>
@@ -8,6 +14,8 @@
 #include <set>
 #include <sstream>
 
+#include "analyzer/core/json_text.h"
+#include "analyzer/gate/folder_lock.h"
 #include "clipwarden/gate.h"
 #include "clipwarden/report_io.h"
 #include "clipwarden/store.h"
@@ -37,6 +45,32 @@ Status copy_atomic(const fs::path& from, const fs::path& to) {
   return write_file_atomic(to.string(), *text);
 }
 
+// The report a queue line names, as a file in the shard folder, or why not.
+Expected<fs::path> checked_report(const fs::path& dir, const ClipResult& r,
+                                  const std::string& where) {
+  const fs::path name(r.report);
+  const auto refuse = [&](const std::string& why) {
+    return input_error(where, "report '" + r.report + "' " + why + "; not merged");
+  };
+  if (name.has_parent_path() || name.is_absolute() || name.filename() != name ||
+      name == "." || name == ".." || name.extension() != ".json")
+    return refuse("is not a report file name in the shard folder");
+  const fs::path path = dir / name;
+  std::error_code ec;
+  const auto inside = fs::weakly_canonical(dir, ec);
+  const auto target = fs::weakly_canonical(path, ec);
+  if (ec || target.parent_path() != inside) return refuse("leads outside the shard folder");
+  if (!fs::exists(path, ec)) return path;  // missing: a warning later, as before
+  if (!fs::is_regular_file(target, ec)) return refuse("is not a regular file");
+  auto report = read_report_file(path.string());
+  if (!report) return refuse("is not a report (" + report.error().cause + ")");
+  if (r.sha256.empty() || report->clip.sha256 != r.sha256)
+    return refuse("is of another clip (sha256 " + report->clip.sha256.substr(0, 12) +
+                  ", the queue line says " + (r.sha256.empty() ? "none" : r.sha256.substr(0, 12)) +
+                  ")");
+  return path;
+}
+
 Status read_queue(const fs::path& dir, std::vector<ClipResult>& out) {
   const fs::path queue = dir / "queue.jsonl";
   std::ifstream in(queue, std::ios::binary);
@@ -45,10 +79,12 @@ Status read_queue(const fs::path& dir, std::vector<ClipResult>& out) {
   for (int number = 1; std::getline(in, line); ++number) {
     if (line.find_first_not_of(" \t\r") == std::string::npos) continue;
     const std::string where = queue.string() + ":" + std::to_string(number);
-    auto j = nlohmann::json::parse(line, nullptr, /*allow_exceptions=*/false);
-    if (j.is_discarded()) return input_error(where, "not valid JSON");
-    auto r = clip_result_from_queue_line(j, where);
+    auto j = parse_json_text(line, where, ErrorKind::input);
+    if (!j) return j.error();
+    auto r = clip_result_from_queue_line(*j, where);
     if (!r) return r.error();
+    if (!r->report.empty())
+      if (auto checked = checked_report(dir, *r, where); !checked) return checked.error();
     out.push_back(std::move(r.value()));
   }
   return Ok{};
@@ -102,8 +138,11 @@ struct Merger {
     auto rows = (*from)->all();
     if (!rows) return rows.error();
     for (auto& row : *rows) {
+      // Only rows of reports this merge copied: a row may name any file,
+      // and a later gate would copy what the store names into its output.
       auto it = moved.find(canonical_text(row.report_path));
-      if (it != moved.end()) row.report_path = it->second;
+      if (it == moved.end()) continue;
+      row.report_path = it->second;
       auto present = into.contains(row);
       if (!present) return present.error();
       if (*present) continue;
@@ -121,21 +160,27 @@ Expected<GateRun> merge_gate_outputs(const std::vector<std::string>& shard_dirs,
   for (const auto& dir : shard_dirs)
     if (canonical_text(dir) == out_canonical)
       return usage_error(dir, "merge output folder must not be one of its inputs");
-  // Before anything is written: a refused merge leaves no partial queue.
+  // Before anything is written: a refused merge (a missing or foreign
+  // shard, a queue line naming a report outside its shard) leaves no
+  // partial queue.
   if (auto st = check_shard_set(shard_dirs); !st) return st.error();
+  std::vector<std::vector<ClipResult>> queues(shard_dirs.size());
+  for (size_t i = 0; i < shard_dirs.size(); ++i)
+    if (auto st = read_queue(shard_dirs[i], queues[i]); !st) return st.error();
   std::error_code ec;
   fs::create_directories(out_dir, ec);
   if (ec) return output_error(out_dir, "cannot create output folder: " + ec.message());
+  auto lock = FolderLock::take(out_dir);
+  if (!lock) return lock.error();
 
   auto store = ResultStore::open((fs::path(out_dir) / "clipwarden.db").string());
   if (!store) return store.error();
   Merger merger{fs::path(out_dir)};
   std::map<std::string, std::string> seen;  // id -> the folder it came from
   GateRun run;
-  for (const auto& dir : shard_dirs) {
-    std::vector<ClipResult> lines;
-    if (auto st = read_queue(dir, lines); !st) return st.error();
-    for (auto& r : lines) {
+  for (size_t i = 0; i < shard_dirs.size(); ++i) {
+    const std::string& dir = shard_dirs[i];
+    for (auto& r : queues[i]) {
       auto [it, fresh] = seen.emplace(r.input.id, dir);
       if (!fresh) {
         merger.warnings.push_back(dir + ": clip '" + r.input.id + "' is also in " + it->second +

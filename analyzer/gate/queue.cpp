@@ -1,6 +1,7 @@
 // Queue lines (DIR/queue.jsonl) and the files written from the queue.
 #include <filesystem>
 
+#include "analyzer/core/byte_text.h"
 #include "clipwarden/gate.h"
 #include "clipwarden/report_io.h"
 #include "analyzer/gate/queue_page.h"
@@ -36,20 +37,22 @@ void GateCounts::add(const ClipResult& r) {
 }
 
 json queue_line(const ClipResult& r) {
-  return {{"index", r.input.index},
-          {"id", r.input.id},
-          {"path", r.input.path},
+  json line = {{"index", r.input.index},
           {"verdict", queue_status(r)},
           {"coherence", is_defined(r.coherence) ? json(r.coherence) : json(nullptr)},
           {"reasons", r.reasons},
           {"report", text_or_null(r.report)},
-          {"error", r.error ? json(r.error->message()) : json(nullptr)},
+          {"error", r.error ? json(printable(r.error->message())) : json(nullptr)},
           {"from_store", r.from_store},
           {"sha256", text_or_null(r.sha256)},
           {"prompt_id", text_or_null(r.input.prompt_id)},
           {"model", text_or_null(r.input.model)},
           {"seed", r.input.seed},
           {"metadata", r.input.metadata}};
+  // Paths (and ids, which default to the path) are bytes: kept losslessly.
+  put_bytes_field(line, "id", r.input.id);
+  put_bytes_field(line, "path", r.input.path);
+  return line;
 }
 
 Expected<ClipResult> clip_result_from_queue_line(const json& j, const std::string& subject) {
@@ -57,12 +60,14 @@ Expected<ClipResult> clip_result_from_queue_line(const json& j, const std::strin
   for (const char* key : {"id", "path", "verdict"})
     if (!j.contains(key) || !j[key].is_string())
       return input_error(subject, std::string("queue line has no \"") + key + "\"");
+  const auto id = get_bytes_field(j, "id"), path = get_bytes_field(j, "path");
+  if (!id || !path) return input_error(subject, "queue line has a badly escaped \"id\" or \"path\"");
   if (!j.contains("index") || !j["index"].is_number_integer())
     return input_error(subject, "queue line has no \"index\"");
   ClipResult r;
   r.input.index = j["index"].get<int64_t>();
-  r.input.id = j["id"].get<std::string>();
-  r.input.path = j["path"].get<std::string>();
+  r.input.id = *id;
+  r.input.path = *path;
   r.input.prompt_id = text_field(j, "prompt_id");
   r.input.model = text_field(j, "model");
   if (j.contains("seed")) r.input.seed = j["seed"];
@@ -94,7 +99,7 @@ Expected<ClipResult> clip_result_from_queue_line(const json& j, const std::strin
 Status write_queue_outputs(const std::string& out_dir, const std::vector<ClipResult>& results) {
   namespace fs = std::filesystem;
   std::string queue;
-  for (const auto& r : results) queue += queue_line(r).dump() + "\n";
+  for (const auto& r : results) queue += dump_json(queue_line(r)) + "\n";
   auto st = write_file_atomic((fs::path(out_dir) / "queue.jsonl").string(), queue);
   if (!st) return st;
   // Link the HTML report where one was written, else the JSON.

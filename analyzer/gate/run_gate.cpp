@@ -1,6 +1,10 @@
 // Running a batch: a pool of `jobs` workers takes clips in input order;
 // each clip is hashed, looked up in the store, analysed if needed, written,
 // recorded in the store (one transaction) and reported to the observer.
+// Before analysing, a worker claims the clip in the store; a clip another
+// gate (or another worker) is analysing right now is put aside and taken up
+// again after the rest, waiting then for that analysis's row, so two gates
+// sharing one store never both analyse a clip.
 // queue.jsonl and index.html are refreshed as clips finish, so a run killed
 // at any moment leaves a consistent queue of the clips finished so far, and
 // rerunning the same command takes those from the store.
@@ -21,11 +25,13 @@
 #include <chrono>
 #include <condition_variable>
 #include <cstdlib>
+#include <deque>
 #include <filesystem>
 #include <memory>
 #include <mutex>
 #include <thread>
 
+#include "analyzer/gate/folder_lock.h"
 #include "clipwarden/gate.h"
 #include "clipwarden/html_report.h"
 #include "clipwarden/report_io.h"
@@ -56,6 +62,7 @@ struct Batch {
   std::mutex mutex;  // guards everything below
   std::condition_variable worker_done;
   int workers_running = 0;
+  std::deque<size_t> deferred;  // clips claimed elsewhere, taken up after the rest
   int in_flight = 0;
   bool abandoned = false;  // the caller has gone: record nothing more
   std::vector<std::optional<ClipResult>> results;
@@ -78,6 +85,7 @@ bool take_from_store(Batch& b, const StoredAnalysis& row, const std::string& bas
   auto report = read_report_file(row.report_path);
   if (!report) return false;  // moved or deleted: recompute
   report->clip.path = r.input.path;
+  if (report->clip.sha256.empty()) report->clip.sha256 = r.sha256;  // see analyse_and_store
   auto written = b.write_report(*report, base, nullptr);
   if (!written) {
     r.error = written.error();
@@ -103,6 +111,9 @@ void analyse_and_store(Batch& b, const std::string& base, ClipResult& r) {
     r.error = report.error();
     return;
   }
+  // A frame folder has no file hash of its own: its report carries the
+  // content hash the queue and store use, so merge can match the two.
+  if (report->clip.sha256.empty()) report->clip.sha256 = r.sha256;
   auto written = b.write_report(*report, base, thumbnails ? &*thumbnails : nullptr);
   if (!written) {
     r.error = written.error();
@@ -128,7 +139,47 @@ void analyse_and_store(Batch& b, const std::string& base, ClipResult& r) {
   }
 }
 
-ClipResult judge(Batch& b, const GateInput& in) {
+constexpr auto kClaimPoll = std::chrono::milliseconds(200);
+
+// The stored analysis of r's clip, or the claim to make it. Returns false
+// when another process (or worker) holds the claim and `wait` is false; with
+// `wait`, polls until that analysis is stored or its claim is released
+// (e.g. its process ended), or the batch is stopping (false).
+bool find_or_claim(Batch& b, ClipResult& r, std::optional<StoredAnalysis>& found, bool& claimed,
+                   bool wait) {
+  for (;;) {
+    auto hit = b.store->find(r.sha256, b.settings_hash);
+    if (!hit) {
+      r.error = hit.error();
+      return true;
+    }
+    if (*hit) {
+      found = std::move(*hit);
+      return true;
+    }
+    auto mine = b.store->claim(r.sha256, b.settings_hash);
+    if (!mine) {
+      r.error = mine.error();
+      return true;
+    }
+    if (*mine) {
+      claimed = true;
+      return true;
+    }
+    // Not claimed: held by another, or stored meanwhile (look again first).
+    auto stored = b.store->find(r.sha256, b.settings_hash);
+    if (stored && *stored) {
+      found = std::move(*stored);
+      return true;
+    }
+    if (!wait || b.stop_requested()) return false;
+    std::this_thread::sleep_for(kClaimPoll);
+  }
+}
+
+// The clip's result, or nothing when it is deferred (claimed elsewhere and
+// `wait` false) or the batch stopped while waiting.
+std::optional<ClipResult> judge(Batch& b, const GateInput& in, bool wait) {
   ClipResult r;
   r.input = in;
   auto sha = content_sha256(in.path);
@@ -138,12 +189,22 @@ ClipResult judge(Batch& b, const GateInput& in) {
   }
   r.sha256 = *sha;
   const std::string base = (fs::path(b.options.out_dir) / in.output_name).string();
-  auto hit = b.store->find(r.sha256, b.settings_hash);
-  if (!hit) {
-    r.error = hit.error();
-    return r;
+  std::optional<StoredAnalysis> found;
+  bool claimed = false;
+  if (!find_or_claim(b, r, found, claimed, wait)) return std::nullopt;
+  if (r.error) return r;
+  if (!found || !take_from_store(b, *found, base, r)) {
+    if (!claimed) {  // the stored report is gone: analysed again, claimed if free
+      auto mine = b.store->claim(r.sha256, b.settings_hash);
+      claimed = mine && *mine;
+    }
+    analyse_and_store(b, base, r);
   }
-  if (!*hit || !take_from_store(b, **hit, base, r)) analyse_and_store(b, base, r);
+  if (claimed)
+    if (auto st = b.store->release(r.sha256, b.settings_hash); !st) {
+      std::lock_guard lock(b.mutex);
+      b.warnings.push_back(st.error().message());
+    }
   if (!r.error) r.report = in.output_name + ".json";
   return r;
 }
@@ -170,29 +231,52 @@ void record(Batch& b, size_t i, ClipResult r) {
   }
 }
 
-// Takes the next clip unless the batch is done or stopping.
-std::optional<size_t> take_next(Batch& b) {
+struct Next {
+  size_t index;
+  bool deferred;  // taken up again after the rest: wait for its claim
+};
+
+// Takes the next clip (input order, then the deferred ones) unless the
+// batch is done or stopping.
+std::optional<Next> take_next(Batch& b) {
   std::lock_guard lock(b.mutex);
   if (b.stop_requested() || b.abandoned) return std::nullopt;
-  const size_t i = b.next++;
-  if (i >= b.inputs.size()) return std::nullopt;
+  std::optional<Next> next;
+  if (b.next < b.inputs.size()) {
+    next = Next{b.next++, false};
+  } else if (!b.deferred.empty()) {
+    next = Next{b.deferred.front(), true};
+    b.deferred.pop_front();
+  } else {
+    return std::nullopt;
+  }
   ++b.in_flight;
-  return i;
+  return next;
+}
+
+void put_aside(Batch& b, size_t i) {
+  std::lock_guard lock(b.mutex);
+  --b.in_flight;
+  if (!b.abandoned && !b.stop_requested()) b.deferred.push_back(i);
 }
 
 void worker(std::shared_ptr<Batch> batch) {
   Batch& b = *batch;
-  while (auto i = take_next(b)) {
-    ClipResult r;
+  while (auto next = take_next(b)) {
+    const size_t i = next->index;
+    std::optional<ClipResult> r;
     try {
-      r = judge(b, b.inputs[*i]);
+      r = judge(b, b.inputs[i], /*wait=*/next->deferred);
     } catch (const std::exception& e) {  // a library below threw: record it, keep going
       r = ClipResult{};
-      r.input = b.inputs[*i];
-      r.error = Error{ErrorKind::internal, b.inputs[*i].path,
-                      std::string("unexpected failure: ") + e.what()};
+      r->input = b.inputs[i];
+      r->error = Error{ErrorKind::internal, b.inputs[i].path,
+                       std::string("unexpected failure: ") + e.what()};
     }
-    record(b, *i, std::move(r));
+    if (r)
+      record(b, i, std::move(*r));
+    else
+      put_aside(b, i);  // claimed elsewhere (or stopping while waiting for it)
   }
   std::lock_guard lock(b.mutex);
   --b.workers_running;
@@ -239,13 +323,30 @@ void remove_stale_temporaries(const std::string& out_dir) {
 Expected<GateRun> run_gate(const std::vector<GateInput>& inputs, const GateOptions& options,
                            const GateObserver& observer) {
   std::error_code ec;
+  const bool made_out_dir = !fs::exists(options.out_dir, ec);
   fs::create_directories(options.out_dir, ec);
   if (ec) return output_error(options.out_dir, "cannot create output folder: " + ec.message());
+  // Held until run_gate returns (after a stop with abandoned workers the
+  // caller exits right away).
+  auto folder_lock = FolderLock::take(options.out_dir);
+  if (!folder_lock) return folder_lock.error();
   const std::string db_path = options.db_path.empty()
                                   ? (fs::path(options.out_dir) / "clipwarden.db").string()
                                   : options.db_path;
+  // SQLite writes journal files beside the store ("/dev/null-wal"): a
+  // device or pipe as --db would leave them wherever that is.
+  if (fs::exists(db_path, ec) && !fs::is_regular_file(db_path, ec))
+    return usage_error(db_path, "the results store must be a regular file");
   auto opened = ResultStore::open(db_path);
-  if (!opened) return opened.error();
+  if (!opened) {
+    // Nothing was judged: a folder this run made is not left behind empty
+    // (the lock file goes too; the lock itself holds until we return).
+    if (made_out_dir) {
+      fs::remove(FolderLock::file_in(options.out_dir), ec);
+      fs::remove(options.out_dir, ec);  // only if empty
+    }
+    return opened.error();
+  }
   remove_stale_temporaries(options.out_dir);
   if (options.shard) {
     ShardRecord started = *options.shard;

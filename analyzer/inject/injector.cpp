@@ -10,6 +10,7 @@
 
 #include <opencv2/imgproc.hpp>
 
+#include "analyzer/core/byte_text.h"
 #include "analyzer/inject/active_defect.h"
 #include "clipwarden/clip_source.h"
 #include "clipwarden/inject.h"
@@ -227,7 +228,7 @@ class Injector {
     for (const auto& d : defects_) truth["defects"].push_back(d.truth());
     const std::string truth_path =
         options_.truth_path.empty() ? default_truth_path(writer_->path()) : options_.truth_path;
-    if (Status s = write_file_atomic(truth_path, truth.dump(1) + "\n"); !s) return s.error();
+    if (Status s = write_file_atomic(truth_path, dump_json(truth, 1) + "\n"); !s) return s.error();
     truth["truth_path"] = truth_path;
     return truth;
   }

@@ -84,7 +84,11 @@ class FlashMetric final : public Metric {
       series->values[i] = frames_[i].flashes();
     add_hazard_segments(report);
     report.summary.details["flash"] = details(report);
-    report.notes.push_back(kFlashCaution);
+    // The caution is for clips that flash: on every report it would be read
+    // as boilerplate and skipped where it matters.
+    const bool counted = std::any_of(series->values.begin(), series->values.end(),
+                                     [](double flashes) { return flashes > 0; });
+    if (counted) report.notes.push_back(kFlashCaution);
   }
 
  private:

@@ -25,6 +25,7 @@ Report assemble_report(const ReportInputs& in, MetricTable& table,
   // A cadence is a fact of the stream, beside summary.stream: written
   // as summary.cadence.details (README, "Frame cadences").
   if (in.cadence) report.summary.details["cadence"] = in.cadence->to_json();
+  for (auto& note : in.source.notes()) report.notes.push_back(note);
 
   for (auto& m : metrics) m->finish(report);  // may add details, objects, segments
 

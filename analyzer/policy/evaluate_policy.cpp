@@ -275,17 +275,15 @@ void check_stream(const Report& r, const Policy& p, std::vector<Finding>& out) {
     out.push_back({Severity::review, "stream dropped_frames " + std::to_string(st.dropped_frames) +
                                          " >= review " + std::to_string(*p.dropped_frames_review) +
                                          " " + dropped_place(r)});
-  if (p.decode_warnings_review && r.summary.details.contains("decode")) {
-    const auto& w = r.summary.details["decode"].value("warnings", nlohmann::json());
-    const size_t n = w.is_array()    ? w.size()
-                     : w.is_number() ? static_cast<size_t>(w.get<double>())
-                                     : 0;
-    if (n > 0) {
-      std::string text = "decode " + std::to_string(n) + " decoder warning" + (n > 1 ? "s" : "");
-      if (w.is_array() && w[0].is_string()) text += " (first: " + w[0].get<std::string>() + ")";
-      out.push_back({Severity::review, text + " " + whole_clip(r)});
-    }
-  }
+  // Pixels the decoder had to conceal or drop are not what the author made,
+  // however coherent they look (damage often shows as a smear that stays
+  // still, which no motion metric flags).
+  if (p.decode_warnings_review &&
+      st.decode_errors + st.concealed_frames + st.lost_frames > 0)
+    out.push_back({Severity::review, "stream decoder reported damage: decode_errors " +
+                                         std::to_string(st.decode_errors) + ", concealed_frames " +
+                                         std::to_string(st.concealed_frames) + ", lost_frames " +
+                                         std::to_string(st.lost_frames) + " " + whole_clip(r)});
 }
 
 void check_coherence(const Report& r, const Policy& p, std::vector<Finding>& out) {

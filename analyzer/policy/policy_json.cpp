@@ -12,6 +12,7 @@
 #include <set>
 #include <sstream>
 
+#include "analyzer/core/json_text.h"
 #include "clipwarden/policy.h"
 
 namespace clipwarden {
@@ -283,16 +284,9 @@ ordered_json policy_to_json(const Policy& policy) {
 }
 
 Expected<Policy> parse_policy(const std::string& json_text, const std::string& subject) {
-  json patch;
-  try {
-    patch = json::parse(json_text);
-  } catch (const json::parse_error& e) {
-    return usage_error(subject, "is not valid JSON (error at byte " + std::to_string(e.byte) + ")");
-  } catch (const json::exception&) {
-    // A number beyond double's range (1e400) throws out_of_range 406, not
-    // parse_error; uncaught it ended the program (found by fuzzing).
-    return usage_error(subject, "is not valid JSON (a number is too large)");
-  }
+  auto parsed = parse_json_text(json_text, subject, ErrorKind::usage);
+  if (!parsed) return parsed.error();
+  const json& patch = *parsed;
   if (!patch.is_object()) return usage_error(subject, "a policy must be a JSON object");
   std::set<std::string> known_metrics;
   for (const auto& [metric, entry] : default_policy_json()["metrics"].items())

@@ -12,6 +12,7 @@ extern "C" {
 #include <libavutil/sha.h>
 }
 
+#include "clipwarden/clip_source.h"
 #include "clipwarden/store.h"
 #include "clipwarden/version.h"
 
@@ -66,10 +67,11 @@ std::string sha256_hex(std::string_view bytes) {
 
 Expected<std::string> content_sha256(const std::string& clip_path) {
   namespace fs = std::filesystem;
+  // The same check as every other entry point: a device or a pipe named as
+  // a clip must be refused, not read until it ends (it may never end).
+  if (auto st = check_clip_path(clip_path); !st) return st.error();
   std::error_code ec;
-  const auto status = fs::status(clip_path, ec);
-  if (ec || !fs::exists(status)) return input_error(clip_path, "no such file or folder");
-  if (!fs::is_directory(status)) return file_sha256(clip_path);
+  if (!fs::is_directory(clip_path, ec)) return file_sha256(clip_path);
   std::vector<fs::path> files;
   for (const auto& entry : fs::directory_iterator(clip_path, ec))
     if (entry.is_regular_file()) files.push_back(entry.path());

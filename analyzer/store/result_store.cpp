@@ -2,8 +2,15 @@
 // once (other processes too); the busy timeout makes a writer wait for
 // another process's transaction instead of failing; BEGIN IMMEDIATE takes the
 // write lock up front so two writers never deadlock upgrading a read lock.
+#include <signal.h>
 #include <sqlite3.h>
+#include <unistd.h>
 
+#include <cerrno>
+#include <chrono>
+#include <thread>
+
+#include "analyzer/core/byte_text.h"
 #include "clipwarden/store.h"
 
 namespace clipwarden {
@@ -30,6 +37,13 @@ CREATE TABLE IF NOT EXISTS analyses (
   created_at     TEXT NOT NULL
 );
 CREATE INDEX IF NOT EXISTS analyses_by_key ON analyses (content_sha256, settings_hash);
+CREATE TABLE IF NOT EXISTS claims (
+  content_sha256 TEXT NOT NULL,
+  settings_hash  TEXT NOT NULL,
+  owner          TEXT NOT NULL,
+  claimed_at     TEXT NOT NULL,
+  PRIMARY KEY (content_sha256, settings_hash)
+);
 )sql";
 
 const char* kColumns =
@@ -58,6 +72,25 @@ class Statement {
 std::string column_text(sqlite3_stmt* s, int i) {
   const unsigned char* t = sqlite3_column_text(s, i);
   return t ? reinterpret_cast<const char*>(t) : "";
+}
+
+// "HOST PID": who holds a claim.
+std::string this_process() {
+  char host[256] = "";
+  ::gethostname(host, sizeof host - 1);
+  return std::string(host) + " " + std::to_string(::getpid());
+}
+
+// A claim by a process that has ended (killed mid-analysis) is void. A
+// claim from another machine cannot be checked and is taken as live (a
+// store is not to be shared across machines: docs/gate.md).
+bool owner_alive(const std::string& owner) {
+  const std::string me = this_process();
+  const size_t space = owner.rfind(' ');
+  if (space == std::string::npos || owner.substr(0, space) != me.substr(0, me.rfind(' ')))
+    return space != std::string::npos;
+  const long pid = std::strtol(owner.c_str() + space + 1, nullptr, 10);
+  return pid > 0 && (::kill(static_cast<pid_t>(pid), 0) == 0 || errno == EPERM);
 }
 
 Verdict verdict_from(const std::string& s) {
@@ -103,7 +136,22 @@ Expected<std::unique_ptr<ResultStore>> ResultStore::open(const std::string& path
   // in WAL mode: a power cut may lose the last commits, never corrupt.
   for (const char* sql : {"PRAGMA journal_mode=WAL", "PRAGMA synchronous=NORMAL", kSchema}) {
     auto st = store->exec(sql);
-    if (!st) return st.error();
+    // Two processes opening a new store at the same moment: switching to
+    // WAL takes an exclusive lock SQLite does not wait for (no busy
+    // handler), so the loser retries, for at most 5 s.
+    for (int attempt = 0; !st && attempt < 50; ++attempt) {
+      const int busy = sqlite3_errcode(db);
+      if (busy != SQLITE_BUSY && busy != SQLITE_LOCKED) break;
+      std::this_thread::sleep_for(std::chrono::milliseconds(100));
+      st = store->exec(sql);
+    }
+    if (st) continue;
+    const int code = sqlite3_errcode(db);
+    if (code == SQLITE_NOTADB || code == SQLITE_CORRUPT)
+      return output_error(path, "results store is damaged (" + std::string(sqlite3_errmsg(db)) +
+                                    "); move it aside (mv " + path + " " + path +
+                                    ".damaged) or point --db at another file");
+    return st.error();
   }
   Statement version(db, "PRAGMA user_version");
   int found = version.ok() && sqlite3_step(version.get()) == SQLITE_ROW
@@ -146,10 +194,81 @@ Expected<std::optional<StoredAnalysis>> ResultStore::find(const std::string& con
   return output_error(path_, std::string("results store: ") + sqlite3_errmsg(db_));
 }
 
+Expected<bool> ResultStore::claim(const std::string& content_sha256,
+                                  const std::string& settings_hash) {
+  std::lock_guard lock(mutex_);
+  auto begun = exec("BEGIN IMMEDIATE");
+  if (!begun) return begun.error();
+  const auto fail = [&]() -> Error {
+    std::string cause = sqlite3_errmsg(db_);
+    (void)exec("ROLLBACK");
+    return output_error(path_, "results store: cannot claim a clip: " + cause);
+  };
+  Statement held(db_, "SELECT owner FROM claims WHERE content_sha256 = ?1 AND settings_hash = ?2");
+  if (!held.ok()) return fail();
+  held.text(1, content_sha256);
+  held.text(2, settings_hash);
+  const int rc = sqlite3_step(held.get());
+  if (rc != SQLITE_ROW && rc != SQLITE_DONE) return fail();
+  if (rc == SQLITE_ROW && owner_alive(column_text(held.get(), 0))) {
+    if (auto st = exec("COMMIT"); !st) return st.error();
+    return false;
+  }
+  // Stored since the caller looked (its writer inserted, then released the
+  // claim): nothing to claim, the caller takes the row.
+  Statement stored(db_,
+                   "SELECT 1 FROM analyses WHERE content_sha256 = ?1 AND settings_hash = ?2 LIMIT 1");
+  if (!stored.ok()) return fail();
+  stored.text(1, content_sha256);
+  stored.text(2, settings_hash);
+  const int found = sqlite3_step(stored.get());
+  if (found != SQLITE_ROW && found != SQLITE_DONE) return fail();
+  if (found == SQLITE_ROW) {
+    if (auto st = exec("COMMIT"); !st) return st.error();
+    return false;
+  }
+  Statement take(db_,
+                 "INSERT OR REPLACE INTO claims (content_sha256, settings_hash, owner, claimed_at) "
+                 "VALUES (?1, ?2, ?3, strftime('%Y-%m-%dT%H:%M:%fZ', 'now'))");
+  if (!take.ok()) return fail();
+  take.text(1, content_sha256);
+  take.text(2, settings_hash);
+  take.text(3, this_process());
+  if (sqlite3_step(take.get()) != SQLITE_DONE) return fail();
+  if (auto st = exec("COMMIT"); !st) return st.error();
+  return true;
+}
+
+Status ResultStore::release(const std::string& content_sha256, const std::string& settings_hash) {
+  std::lock_guard lock(mutex_);
+  Statement s(db_,
+              "DELETE FROM claims WHERE content_sha256 = ?1 AND settings_hash = ?2 AND owner = ?3");
+  if (!s.ok()) return output_error(path_, std::string("results store: ") + sqlite3_errmsg(db_));
+  s.text(1, content_sha256);
+  s.text(2, settings_hash);
+  s.text(3, this_process());
+  if (sqlite3_step(s.get()) != SQLITE_DONE)
+    return output_error(path_, std::string("results store: cannot release a claim: ") +
+                                   sqlite3_errmsg(db_));
+  return Ok{};
+}
+
 Status ResultStore::insert(StoredAnalysis& row) {
   std::lock_guard lock(mutex_);
   auto begun = exec("BEGIN IMMEDIATE");
   if (!begun) return begun;
+  // The same clip (content, settings and id) is stored once: a newer
+  // analysis (e.g. after its stored report was deleted) replaces the row.
+  Statement same(db_,
+                 "DELETE FROM analyses WHERE content_sha256 = ?1 AND settings_hash = ?2 AND "
+                 "clip_id = ?3");
+  bool ok = same.ok();
+  if (ok) {
+    same.text(1, row.content_sha256);
+    same.text(2, row.settings_hash);
+    same.text(3, row.clip_id);
+    ok = sqlite3_step(same.get()) == SQLITE_DONE;
+  }
   Statement s(
       db_,
       "INSERT INTO analyses (content_sha256, settings_hash, tool_version, clip_id, clip_path, "
@@ -157,7 +276,7 @@ Status ResultStore::insert(StoredAnalysis& row) {
       "VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8, ?9, ?10, ?11, ?12, "
       "COALESCE(NULLIF(?13, ''), strftime('%Y-%m-%dT%H:%M:%fZ', 'now'))) "
       "RETURNING row_id, created_at");
-  bool ok = s.ok();
+  ok = ok && s.ok();
   if (ok) {
     s.text(1, row.content_sha256);
     s.text(2, row.settings_hash);
@@ -168,8 +287,8 @@ Status ResultStore::insert(StoredAnalysis& row) {
     s.text(7, row.prompt_id);
     s.text(8, to_string(row.verdict));
     s.real(9, row.coherence);
-    s.text(10, nlohmann::json(row.reasons).dump());
-    s.text(11, row.summary.dump());
+    s.text(10, dump_json(nlohmann::json(row.reasons)));
+    s.text(11, dump_json(row.summary));
     s.text(12, row.report_path);
     s.text(13, row.created_at);
     ok = sqlite3_step(s.get()) == SQLITE_ROW;

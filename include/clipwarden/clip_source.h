@@ -8,6 +8,7 @@
 #include <memory>
 #include <optional>
 #include <string>
+#include <vector>
 
 #include <opencv2/core.hpp>
 
@@ -58,6 +59,10 @@ class ClipSource {
 
   // Timing facts measured while reading (valid after read() returned false).
   virtual StreamFacts stream_facts() const = 0;
+
+  // Cautions about the file that do not stop the analysis (e.g. stray bytes
+  // after an MP4's last box); complete after read() returned false.
+  virtual std::vector<std::string> notes() const { return {}; }
 };
 
 // Container facts without decoding video (`clipwarden probe`): the ClipInfo
@@ -65,6 +70,11 @@ class ClipSource {
 // the report's key names. The frame count and timing facts come from the
 // video packets; the audio facts from decoding the audio.
 Expected<nlohmann::json> probe_clip(const std::string& path, const SourceOptions& options);
+
+// The one input check every entry point makes before touching a clip: it
+// must exist and be a regular file or a folder. A device (/dev/zero), a FIFO
+// or a socket is refused at once: reading one could block or never end.
+Status check_clip_path(const std::string& path);
 
 // Hex SHA-256 of a file's bytes (the store's content key).
 Expected<std::string> sha256_file(const std::string& path);

@@ -59,7 +59,8 @@ struct Policy {
   std::optional<double> coherence_reject_below;
   std::optional<int> dropped_frames_review;  // stream.dropped_frames at or above this reviews
   // Reviews a clip whose decoder reported warnings (corrupt data concealed):
-  // a non-empty array or a positive count at summary.decode.details.warnings.
+  // any decoder complaint in summary.stream (decode_errors, concealed_frames,
+  // lost_frames above 0).
   // (A clip whose decoding stops before its end is an input error instead.)
   bool decode_warnings_review = true;
 };

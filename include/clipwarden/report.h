@@ -53,6 +53,10 @@ struct StreamFacts {
   bool vfr = false;
   int dropped_frames = 0;          // gaps of ~2+ nominal intervals
   int duplicate_timestamps = 0;    // frames whose time repeats the previous
+  // What the decoder said about damage (video files; 0 for frame folders):
+  int decode_errors = 0;     // packets or frames the decoder refused
+  int concealed_frames = 0;  // frames it output with damage hidden (flagged corrupt/concealed)
+  int lost_frames = 0;       // packets that never came out as a frame
 };
 
 // One per-frame series, e.g. "warp_error". values.size() == frame count.

@@ -56,7 +56,16 @@ class ResultStore {
   Expected<std::optional<StoredAnalysis>> find(const std::string& content_sha256,
                                                const std::string& settings_hash);
   // Adds one row in its own transaction; sets row.row_id (and created_at).
+  // A row with the same content, settings and clip id is never kept twice:
+  // the new row replaces it.
   Status insert(StoredAnalysis& row);
+  // Two gates sharing a store must not both analyse a clip: before
+  // analysing, a gate claims the content under its settings. True when this
+  // process now holds the claim; false when a live process holds it (the
+  // caller waits for that one's row). A claim of a process that has ended
+  // is taken over. release() drops this process's claim.
+  Expected<bool> claim(const std::string& content_sha256, const std::string& settings_hash);
+  Status release(const std::string& content_sha256, const std::string& settings_hash);
   // True if a row with the same content, settings, clip id and creation time
   // exists (merge uses it to never copy a row twice).
   Expected<bool> contains(const StoredAnalysis& row);

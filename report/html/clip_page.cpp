@@ -72,6 +72,9 @@ std::string facts_block(const Report& report, const HtmlOptions& options) {
                             seconds(c.duration_s));
   std::string stream = st.vfr ? "variable frame rate" : "constant frame rate";
   if (st.dropped_frames) stream += ", " + std::to_string(st.dropped_frames) + " dropped";
+  if (st.decode_errors) stream += ", " + std::to_string(st.decode_errors) + " decode errors";
+  if (st.concealed_frames) stream += ", " + std::to_string(st.concealed_frames) + " concealed";
+  if (st.lost_frames) stream += ", " + std::to_string(st.lost_frames) + " lost in decoding";
   if (st.duplicate_timestamps)
     stream += ", " + std::to_string(st.duplicate_timestamps) + " repeated timestamps";
   if (report.summary.details.contains("cadence")) {

@@ -2,9 +2,14 @@
 
 #include <cstdint>
 
+#include "analyzer/core/byte_text.h"
+
 namespace clipwarden {
 
-std::string html_escape(std::string_view text) {
+std::string html_escape(std::string_view raw) {
+  // Bytes that are not UTF-8 (a file name is any bytes) are shown as \xHH
+  // rather than left for the browser to turn into U+FFFD.
+  const std::string text = printable(raw);
   std::string out;
   out.reserve(text.size() + text.size() / 8);
   for (char c : text) {

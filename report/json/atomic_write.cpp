@@ -7,6 +7,7 @@
 #include <filesystem>
 #include <random>
 
+#include "analyzer/core/byte_text.h"
 #include "clipwarden/report_io.h"
 
 namespace clipwarden {
@@ -47,7 +48,7 @@ Status write_file_atomic(const std::string& path, const std::string& content) {
 }
 
 Status write_json_report(const Report& report, const std::string& path) {
-  return write_file_atomic(path, report_to_json(report).dump(1) + "\n");
+  return write_file_atomic(path, dump_json(report_to_json(report), 1) + "\n");
 }
 
 }  // namespace clipwarden

@@ -2,6 +2,7 @@
 // column-wise in memory and written row-wise: one object per frame.
 #include <cmath>
 
+#include "analyzer/core/byte_text.h"
 #include "clipwarden/report_io.h"
 #include "clipwarden/version.h"
 
@@ -17,8 +18,7 @@ json optional_or_null(const std::optional<T>& v) {
 }
 
 json clip_to_json(const ClipInfo& c) {
-  return {{"path", c.path},
-          {"sha256", c.sha256},
+  json out = {{"sha256", c.sha256},
           {"container", c.container},
           {"codec", c.codec},
           {"width", c.width},
@@ -34,6 +34,8 @@ json clip_to_json(const ClipInfo& c) {
             {"codec", c.audio.codec},
             {"duration_s", optional_or_null(c.audio.duration_s)},
             {"silent_from_s", optional_or_null(c.audio.silent_from_s)}}}};
+  put_bytes_field(out, "path", c.path);  // a file name need not be UTF-8
+  return out;
 }
 
 json stream_to_json(const StreamFacts& s) {
@@ -42,7 +44,10 @@ json stream_to_json(const StreamFacts& s) {
           {"mismatch_s", optional_or_null(s.mismatch_s)},
           {"vfr", s.vfr},
           {"dropped_frames", s.dropped_frames},
-          {"duplicate_timestamps", s.duplicate_timestamps}};
+          {"duplicate_timestamps", s.duplicate_timestamps},
+          {"decode_errors", s.decode_errors},
+          {"concealed_frames", s.concealed_frames},
+          {"lost_frames", s.lost_frames}};
 }
 
 json frames_to_json(const Report& r) {

@@ -5,6 +5,8 @@
 #include <limits>
 #include <sstream>
 
+#include "analyzer/core/byte_text.h"
+#include "analyzer/core/json_text.h"
 #include "clipwarden/report_io.h"
 
 namespace clipwarden {
@@ -69,7 +71,10 @@ const json& array(const json& j, const std::string& key, const std::string& path
 ClipInfo read_clip(const json& c) {
   const std::string p = "clip.";
   ClipInfo out;
-  out.path = str(c, "path", p);
+  str(c, "path", p);  // present and a string
+  const auto path = get_bytes_field(c, "path");
+  if (!path) throw BadKey{p + "path", "is flagged as escaped but is not a well-formed escape"};
+  out.path = *path;
   out.sha256 = str(c, "sha256", p);
   out.container = str(c, "container", p);
   out.codec = str(c, "codec", p);
@@ -120,6 +125,11 @@ void read_summary(const json& s, Report& r) {
   r.summary.stream.vfr = boolean(st, "vfr", sp);
   r.summary.stream.dropped_frames = whole_int(st, "dropped_frames", sp);
   r.summary.stream.duplicate_timestamps = whole_int(st, "duplicate_timestamps", sp);
+  // Absent from reports written before the decoder's complaints were kept.
+  for (auto [key, field] : {std::pair{"decode_errors", &StreamFacts::decode_errors},
+                            std::pair{"concealed_frames", &StreamFacts::concealed_frames},
+                            std::pair{"lost_frames", &StreamFacts::lost_frames}})
+    if (st.contains(key)) r.summary.stream.*field = whole_int(st, key, sp);
   for (const auto& [name, entry] : s.items()) {
     if (name == "coherence" || name == "stream") continue;
     if (!entry.is_object()) throw BadKey{p + name, "is not an object"};
@@ -205,9 +215,9 @@ Expected<Report> read_report_file(const std::string& path) {
   if (!in) return input_error(path, "cannot open report");
   std::stringstream buffer;
   buffer << in.rdbuf();
-  json j = json::parse(buffer.str(), nullptr, /*allow_exceptions=*/false);
-  if (j.is_discarded()) return input_error(path, "is not valid JSON");
-  return report_from_json(j, path);
+  auto j = parse_json_text(buffer.str(), path, ErrorKind::input);
+  if (!j) return j.error();
+  return report_from_json(*j, path);
 }
 
 }  // namespace clipwarden

@@ -16,6 +16,7 @@
 #include <map>
 #include <set>
 
+#include "analyzer/core/byte_text.h"
 #include "clipwarden/report_io.h"
 #include "support/bad_corpus.h"
 #include "support/clips.h"
@@ -147,7 +148,9 @@ TEST_F(BadInputCorpus, GateOverTheWholeFolderGivesEveryClipARow) {
   for (const auto& line : read_lines(out / "queue.jsonl")) {
     const json j = json::parse(line, nullptr, false);
     ASSERT_FALSE(j.is_discarded()) << line;
-    const std::string path = fs::path(j["path"].get<std::string>()).lexically_normal().string();
+    const auto bytes = get_bytes_field(j, "path");  // a name need not be UTF-8
+    ASSERT_TRUE(bytes) << line;
+    const std::string path = fs::path(*bytes).lexically_normal().string();
     ++rows[path];
     const std::string status = j["verdict"].get<std::string>();
     ++by_status[status];

@@ -35,7 +35,7 @@ clipwarden::Report sample_report(const clipwarden::Policy& policy) {
   };
   for (const auto& [metric, rule] : policy.segments) add_metric(metric);
   for (const auto& rule : policy.rules) add_metric(rule.metric);
-  report.summary.details["decode"] = {{"warnings", {"concealed error"}}};
+  report.summary.stream.decode_errors = 1;  // so the decoder-damage rule has something to judge
   report.summary.coherence = 55;
   return report;
 }

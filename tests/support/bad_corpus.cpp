@@ -3,6 +3,8 @@
 #include <sys/stat.h>
 #include <unistd.h>
 
+#include <random>
+
 #include "support/clips.h"
 #include "support/gate_files.h"
 #include "support/robust_run.h"
@@ -66,6 +68,39 @@ std::string spans_the_gap(const json& r) {
   if (last_t < 10.0) return "the 10 s gap is gone: last frame at " + std::to_string(last_t) + " s";
   if (!r["summary"]["stream"]["vfr"].get<bool>()) return "a 10 s gap is not reported as VFR";
   return "";
+}
+
+// Damage the decoder saw (errors, concealed or lost frames) must reach the
+// report and keep the clip from passing: a smear that stays still looks
+// perfectly coherent to every motion metric.
+std::string damage_is_reported(const json& r) {
+  const auto& st = r["summary"]["stream"];
+  for (const char* key : {"decode_errors", "concealed_frames", "lost_frames"})
+    if (!st.contains(key) || !st[key].is_number_integer()) return std::string("no stream.") + key;
+  if (st["decode_errors"].get<int>() + st["concealed_frames"].get<int>() +
+          st["lost_frames"].get<int>() ==
+      0)
+    return "the decoder's complaints are not in summary.stream";
+  if (r["verdict"]["status"] == "pass") return "a clip the decoder complained about passes";
+  return "";
+}
+
+std::string note_damage(const json& r) {
+  const auto& st = r["summary"]["stream"];
+  return note_frames(r) + ", decode_errors " + st.value("decode_errors", json(-1)).dump() +
+         ", concealed " + st.value("concealed_frames", json(-1)).dump() + ", lost " +
+         st.value("lost_frames", json(-1)).dump();
+}
+
+// Stray bytes after the last box: every frame, no decoder complaint, and a
+// note that says so.
+std::string whole_with_stray_note(const json& r) {
+  if (auto e = frames_exactly(kFrames)(r); !e.empty()) return e;
+  for (const auto& n : r["notes"])
+    if (n.is_string() && (n.get<std::string>().find("not a box") != std::string::npos ||
+                          n.get<std::string>().find("cut short") != std::string::npos))
+      return "";
+  return "no note about the bytes after the last box";
 }
 
 class Maker {
@@ -177,6 +212,44 @@ void add_unreadable(Maker& m) {
   m.add("folder named like a clip", "folder_named_like_a_clip.mp4", Expect::error);
 }
 
+// Second round: a name that is not UTF-8, files that are not regular files,
+// damage in the middle of the stream, and stray bytes after the last box.
+void add_damage_and_odd_files(Maker& m) {
+  const std::string base = read_bytes(m.path("base.mp4"));
+  write_bytes(m.path("take_\xff_latin1_\xe9.mp4"), base);
+  m.add("file name not UTF-8 (bytes 0xFF, 0xE9)", "take_\xff_latin1_\xe9.mp4", Expect::report,
+        frames_exactly(kFrames));
+
+  ::mkfifo(m.path("named_pipe.mp4").c_str(), 0644);
+  auto& fifo = m.add("named pipe (FIFO) named like a clip", "named_pipe.mp4", Expect::error);
+  fifo.found_by_folder_scan = false;  // a folder scan takes regular files only
+  BadCase zero;
+  zero.name = "character device (/dev/zero)";
+  zero.path = "/dev/zero";
+  zero.expect = Expect::error;
+  zero.found_by_folder_scan = false;
+  m.add(std::move(zero));
+
+  // 8 kB of random bytes over the middle of the clip (fixed seed).
+  std::string damaged = base;
+  std::mt19937 random(17);
+  const size_t from = damaged.size() / 2 - 4096;
+  for (size_t i = from; i < from + 8192 && i < damaged.size(); ++i)
+    damaged[i] = static_cast<char>(random() & 0xff);
+  write_bytes(m.path("random_8k_in_middle.mp4"), damaged);
+  auto& mid = m.add("8 kB of random bytes in the middle", "random_8k_in_middle.mp4",
+                    Expect::report_or_error, damage_is_reported);
+  mid.note_report = note_damage;
+
+  write_bytes(m.path("trailing_binary.mp4"),
+              base + std::string("\x00\x00\x00\x10\xff\xfe\x00\x01stray", 13));
+  m.add("stray binary bytes after the last box", "trailing_binary.mp4", Expect::report,
+        whole_with_stray_note);
+  write_bytes(m.path("trailing_text.mp4"), base + "hello, these bytes follow the last box\n");
+  m.add("stray text after the last box", "trailing_text.mp4", Expect::report,
+        whole_with_stray_note);
+}
+
 }  // namespace
 
 BadCorpus make_bad_corpus(const fs::path& folder) {
@@ -264,6 +337,7 @@ BadCorpus make_bad_corpus(const fs::path& folder) {
   }
   add_frame_folders(m);
   add_unreadable(m);
+  add_damage_and_odd_files(m);
   const std::string spaced = "take 01 \xc3\xa9t\xc3\xa9 \xe8\xa1\x97 (final).mp4";
   write_bytes(m.path(spaced), read_bytes(m.path("base.mp4")));
   m.add("path with spaces and unicode", spaced, Expect::report, frames_exactly(kFrames));

@@ -125,6 +125,32 @@ TEST(Truncation, IsoBoxesMustFitInTheFile) {
   EXPECT_NE(cut->find("mdat box runs to byte 124"), std::string::npos) << *cut;
 }
 
+// Bytes after the last box that do not start a box (too few for a header,
+// or a type that is not four printable characters) are stray data: a note,
+// not a truncation. A printable type whose size runs past the end is still
+// reported as a cut (the decoder's frame count then decides, libav_source).
+TEST(Truncation, StrayBytesAfterTheLastBoxAreANoteNotACut) {
+  auto whole = boxes(108, 100);
+  EXPECT_FALSE(check_container(MemoryFile(whole)).trailing);
+  auto few = whole;
+  few.insert(few.end(), {0xff, 0xfe, 0x00});
+  auto check = check_container(MemoryFile(few));
+  EXPECT_FALSE(check.truncation);
+  ASSERT_TRUE(check.trailing);
+  EXPECT_NE(check.trailing->find("3 bytes after the last box (from byte 124)"), std::string::npos)
+      << *check.trailing;
+  auto binary = whole;
+  binary.insert(binary.end(), {0x00, 0x00, 0x00, 0x10, 0xff, 0xfe, 0x00, 0x01, 's', 't'});
+  check = check_container(MemoryFile(binary));
+  EXPECT_FALSE(check.truncation);
+  EXPECT_TRUE(check.trailing);
+  auto text = whole;
+  put_text(text, "hello, these bytes follow the last box");
+  check = check_container(MemoryFile(text));
+  ASSERT_TRUE(check.truncation);  // "hell" as a size, "o, t" as a type
+  EXPECT_NE(check.truncation->find("o, t box"), std::string::npos) << *check.truncation;
+}
+
 TEST(Truncation, RiffChunkMustFitInTheFile) {
   std::vector<uint8_t> b;
   put_text(b, "RIFF");

@@ -118,13 +118,24 @@ TEST(GateEvaluate, StreamMismatchDroppedFramesAndDecodeWarningsReview) {
   v = evaluate_policy(dropped, default_policy());
   EXPECT_TRUE(has_reason(v, "stream dropped_frames 4 >= review 3 (frame 30")) << all_reasons(v);
 
+  // The decoder's complaints, as the video source counts them, review.
+  for (auto field :
+       {&StreamFacts::decode_errors, &StreamFacts::concealed_frames, &StreamFacts::lost_frames}) {
+    Report warned = gate_report(48, 24);
+    warned.summary.stream.*field = 2;
+    v = evaluate_policy(warned, default_policy());
+    EXPECT_EQ(v.status, Verdict::review) << all_reasons(v);
+    EXPECT_TRUE(has_reason(v, "stream decoder reported damage")) << all_reasons(v);
+    EXPECT_EQ(
+        evaluate_policy(warned, policy_from(R"({"rules": {"decode_warnings_review": false}})"))
+            .status,
+        Verdict::pass);
+  }
   Report warned = gate_report(48, 24);
-  warned.summary.details["decode"] = {
-      {"warnings", nlohmann::json::array({"concealed 3 corrupt macroblocks at 0.8 s"})}};
-  v = evaluate_policy(warned, default_policy());
-  EXPECT_EQ(v.status, Verdict::review);
-  EXPECT_TRUE(has_reason(v, "decode 1 decoder warning (first: concealed 3 corrupt macroblocks"))
-      << all_reasons(v);
+  warned.summary.stream.decode_errors = 6;
+  warned.summary.stream.lost_frames = 1;
+  EXPECT_TRUE(has_reason(evaluate_policy(warned, default_policy()),
+                         "decode_errors 6, concealed_frames 0, lost_frames 1 (whole clip"));
 }
 
 TEST(GateEvaluate, CoherenceFloors) {

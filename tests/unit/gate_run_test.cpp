@@ -8,6 +8,7 @@
 #include <atomic>
 #include <filesystem>
 #include <set>
+#include <thread>
 
 #include "analyzer/cli/command.h"
 #include "analyzer/cli/gate_output.h"
@@ -140,7 +141,8 @@ TEST(GateRun, RerunTakesJudgedClipsFromTheStore) {
   for (const auto& line : queue_of(dir.path() / "out"))
     EXPECT_EQ(line["from_store"], line["verdict"] != "error") << line.dump();
 
-  // A stored report that no longer exists is recomputed (and stored again).
+  // A stored report that no longer exists is recomputed and stored again,
+  // replacing the row that named it: the store keeps one row per clip.
   fs::remove(dir.path() / "out" / "clip_1.json");
   fake.calls = 0;
   auto third = run_gate(inputs, options_for(dir.path() / "out", fake));
@@ -148,7 +150,7 @@ TEST(GateRun, RerunTakesJudgedClipsFromTheStore) {
   EXPECT_EQ(fake.calls, 3);
   EXPECT_FALSE(third->results[1].from_store);
   EXPECT_TRUE(fs::exists(dir.path() / "out" / "clip_1.json"));
-  EXPECT_EQ(store_rows(dir.path() / "out" / "clipwarden.db"), 5u);
+  EXPECT_EQ(store_rows(dir.path() / "out" / "clipwarden.db"), 4u);
 
   // Another policy is another settings hash: everything is recomputed.
   fake.calls = 0;
@@ -304,4 +306,84 @@ TEST(GateRun, ExitStatusFollowsFailOn) {
   EXPECT_EQ(cli::gate_exit_status(c, Verdict::reject), cli::kExitGateFailed);
   c.error = 1;
   EXPECT_EQ(cli::gate_exit_status(c, Verdict::reject), cli::kExitInputError);
+}
+
+// A shard folder is input: its queue may name any file as a report. merge
+// takes only report files inside the shard folder whose clip hash is the
+// queue line's, checks every line before writing anything, and refuses the
+// rest naming the line and the reason.
+TEST(GateRun, MergeRefusesReportsOutsideTheShardOrOfAnotherClip) {
+  TempDir dir;
+  FakeAnalysis fake;
+  const auto inputs = make_clips(dir.path() / "clips", 2, {"pass", "review"});
+  const fs::path shard = dir.path() / "shard";
+  ASSERT_TRUE(run_gate(inputs, options_for(shard, fake)).ok());
+  const std::string queue = read_text(shard / "queue.jsonl");
+  write_text(dir.path() / "secret.json", "{\"secret\": true}\n");
+  fs::create_symlink(dir.path() / "secret.json", shard / "link.json");
+
+  const std::vector<std::pair<std::string, std::string>> cases = {
+      {"/etc/passwd", "is not a report file name in the shard folder"},
+      {"../secret.json", "is not a report file name in the shard folder"},
+      {"sub/../clip_0.json", "is not a report file name in the shard folder"},
+      {"link.json", "leads outside the shard folder"},
+      {"clip_1.json", "is of another clip"},
+  };
+  for (const auto& [report, why] : cases) {
+    std::string tampered = queue;
+    const std::string from = "\"report\":\"clip_0.json\"";
+    const size_t at = tampered.find(from);
+    ASSERT_NE(at, std::string::npos) << queue;
+    tampered.replace(at, from.size(), "\"report\":" + nlohmann::json(report).dump());
+    write_text(shard / "queue.jsonl", tampered);
+    const fs::path out = dir.path() / "merged";
+    fs::remove_all(out);
+    auto merged = merge_gate_outputs({shard.string()}, out.string());
+    ASSERT_FALSE(merged.ok()) << report << " was merged";
+    EXPECT_EQ(merged.error().kind, ErrorKind::input);
+    EXPECT_NE(merged.error().message().find("queue.jsonl:1"), std::string::npos)
+        << merged.error().message();
+    EXPECT_NE(merged.error().message().find(why), std::string::npos) << merged.error().message();
+    EXPECT_FALSE(fs::exists(out)) << "nothing is written when a shard is refused";
+  }
+  write_text(shard / "queue.jsonl", queue);
+  auto merged = merge_gate_outputs({shard.string()}, (dir.path() / "merged").string());
+  ASSERT_TRUE(merged.ok()) << merged.error().message();
+  EXPECT_EQ(merged->results.size(), 2u);
+}
+
+// Two gates sharing one store at the same time (threads here; processes
+// claim the same way): each clip is analysed once over both, both queues
+// are complete, and the store holds one row per clip. The fake analysis
+// takes 30 ms so the two batches overlap; the counts hold for any overlap.
+TEST(GateRun, TwoGatesSharingAStoreAnalyseEachClipOnce) {
+  TempDir dir;
+  FakeAnalysis fake;
+  const auto inputs = make_clips(dir.path() / "clips", 8, {"pass", "review", "reject"});
+  const AnalyzeFunction quick = fake.function();
+  auto slow = [&](const std::string& path, const AnalysisSettings& s, const Policy& p,
+                  const AnalysisHooks& h) {
+    std::this_thread::sleep_for(std::chrono::milliseconds(30));
+    return quick(path, s, p, h);
+  };
+  std::vector<GateOptions> options;
+  for (const char* out : {"a", "b"}) {
+    GateOptions o = options_for(dir.path() / out, fake);
+    o.db_path = (dir.path() / "shared.db").string();
+    o.analyze = slow;
+    options.push_back(o);
+  }
+  std::optional<Expected<GateRun>> a, b;
+  std::thread other([&] { b = run_gate(inputs, options[1]); });
+  a = run_gate(inputs, options[0]);
+  other.join();
+  ASSERT_TRUE(a->ok()) << a->error().message();
+  ASSERT_TRUE(b->ok()) << b->error().message();
+  EXPECT_EQ(fake.calls, 8) << "a clip was analysed by both gates";
+  EXPECT_EQ((*a)->counts.total, 8);
+  EXPECT_EQ((*b)->counts.total, 8);
+  EXPECT_EQ((*a)->counts.from_store + (*b)->counts.from_store, 8);
+  EXPECT_EQ(queue_of(dir.path() / "a").size(), 8u);
+  EXPECT_EQ(queue_of(dir.path() / "b").size(), 8u);
+  EXPECT_EQ(store_rows(dir.path() / "shared.db"), 8u);
 }

@@ -47,7 +47,7 @@ namespace {
 Report full_report() {
   Report r;
   r.tool_version = "9.8.7";
-  r.clip = {"takes/lantern.mp4",
+  r.clip = {"takes/lantern\xff.mp4",  // a name that is not UTF-8: written escaped
             std::string(64, 'b'),
             "matroska,webm",
             "hevc",
@@ -67,7 +67,7 @@ Report full_report() {
   r.summary.metrics = {{"warp_error", 0.1875, 0.1875, 0.246875, 0.25},
                        {"flicker", kUndefined, kUndefined, kUndefined, kUndefined}};
   r.summary.coherence = 42.5;
-  r.summary.stream = {1.0, 1.25, 0.25, true, 1, 2};
+  r.summary.stream = {1.0, 1.25, 0.25, true, 1, 2, 3, 4, 5};
   r.summary.details = {{"flicker", {{"pulses", 2}}}, {"flash", {{"hazard", true}}}};
   // A file storing each of its 3 pictures twice (summary.cadence).
   r.summary.details["cadence"] = {{"stored_frames", 6},   {"pictures", 3},       {"analysed_frames", 3},
@@ -99,7 +99,7 @@ Report full_report() {
 const char* kFullReportJson = R"json({
   "schema": "clipwarden.report/1",
   "tool": {"name": "clipwarden", "version": "9.8.7"},
-  "clip": {"path": "takes/lantern.mp4", "sha256": "bbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbb",
+  "clip": {"path": "takes/lantern\\xff.mp4", "path_escaped": true, "sha256": "bbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbbb",
            "container": "matroska,webm", "codec": "hevc", "width": 640, "height": 360, "fps": 3.0,
            "frame_count": 3, "duration_s": 1.0, "pix_fmt": "yuv420p10le", "bit_depth": 10, "rotation": 90,
            "audio": {"present": true, "codec": "opus", "duration_s": 1.25, "silent_from_s": 0.75}},
@@ -116,7 +116,8 @@ const char* kFullReportJson = R"json({
                                       "repeated_share": 1, "content_fps": 3.0, "source_frames": [0, 2, 4]}},
               "coherence": 42.5,
               "stream": {"video_duration_s": 1.0, "audio_duration_s": 1.25, "mismatch_s": 0.25, "vfr": true,
-                         "dropped_frames": 1, "duplicate_timestamps": 2}},
+                         "dropped_frames": 1, "duplicate_timestamps": 2, "decode_errors": 3,
+                         "concealed_frames": 4, "lost_frames": 5}},
   "objects": [{"id": 7, "first_frame": 1, "last_frame": 2, "vanished": true, "end_reason": "vanished",
     "kind": "moving", "reference_frame": 1, "working_size": [320, 180], "frames": [1, 2],
     "boxes": [[10, 20, 30, 40], [12, 20, 30, 40]], "boxes_frac": [[0.5, 0.25, 0.125, 0.0625], [null, null, null, null]],
@@ -168,9 +169,41 @@ TEST(ReportJson, ReaderKeepsEveryFieldOfTheHandWrittenDocument) {
   EXPECT_EQ(back->clip.audio.silent_from_s, 0.75);
   EXPECT_EQ(back->clip.bit_depth, 10);
   EXPECT_EQ(back->summary.stream.duplicate_timestamps, 2);
+  EXPECT_EQ(back->summary.stream.lost_frames, 5);
+  EXPECT_EQ(back->clip.path, "takes/lantern\xff.mp4");
   EXPECT_EQ(back->objects.at(0).detail.at("peak_drift"), 1.5);
   EXPECT_EQ(back->notes, std::vector<std::string>{"a note"});
   EXPECT_EQ(report_to_json(*back), expected);
+}
+
+// A file name is bytes: one that is not UTF-8 is written escaped with a
+// flag (the JSON stays valid) and read back byte for byte; the decoder's
+// complaints survive the round trip too.
+TEST(ReportJson, PathThatIsNotUtf8AndDecoderCountsRoundTrip) {
+  Report r = fixtures::small_report();
+  r.clip.path = std::string("shots/take\xff_\\_caf\xe9.mp4");
+  r.summary.stream.decode_errors = 6;
+  r.summary.stream.concealed_frames = 3;
+  r.summary.stream.lost_frames = 1;
+  const auto j = report_to_json(r);
+  EXPECT_EQ(j["clip"]["path"], "shots/take\\xff_\\\\_caf\\xe9.mp4");
+  EXPECT_EQ(j["clip"]["path_escaped"], true);
+  EXPECT_TRUE(validate_report_json(j, "escaped").ok());
+  const std::string text = j.dump();  // would throw type_error 316 on raw 0xFF
+  auto back = report_from_json(nlohmann::json::parse(text), "mem");
+  ASSERT_TRUE(back.ok()) << back.error().message();
+  EXPECT_EQ(back->clip.path, r.clip.path);
+  EXPECT_EQ(back->summary.stream.decode_errors, 6);
+  EXPECT_EQ(back->summary.stream.concealed_frames, 3);
+  EXPECT_EQ(back->summary.stream.lost_frames, 1);
+
+  Report plain = fixtures::small_report();
+  EXPECT_FALSE(report_to_json(plain)["clip"].contains("path_escaped"));
+  auto old = report_to_json(plain);  // a report written before the counts existed
+  old["summary"]["stream"].erase("lost_frames");
+  auto read_old = report_from_json(old, "old.json");
+  ASSERT_TRUE(read_old.ok()) << read_old.error().message();
+  EXPECT_EQ(read_old->summary.stream.lost_frames, 0);
 }
 
 TEST(ReportJson, ReaderNamesTheBadKey) {
