@@ -100,13 +100,20 @@ TEST(GateStore, InsertFindAndReopen) {
     EXPECT_EQ((*found)->summary, newer.summary);
     EXPECT_FALSE((*store)->find("sha-a", "settings-2")->has_value());
     EXPECT_FALSE((*store)->find("sha-b", "settings-1")->has_value());
-    EXPECT_TRUE(*(*store)->contains(older));
+    // The same clip (content, settings, id) is stored once: the re-analysis
+    // replaced the older row, so a later merge never sees it twice (the
+    // row count after reopening shows it).
+    EXPECT_TRUE(*(*store)->contains(newer));
+    // The same content under another clip id is another queue entry: kept.
+    StoredAnalysis copy = row("sha-a", "a-copy");
+    ASSERT_TRUE((*store)->insert(copy).ok());
   }
   auto reopened = ResultStore::open(db);
   ASSERT_TRUE(reopened.ok());
   auto rows = (*reopened)->all();
   ASSERT_TRUE(rows.ok());
   ASSERT_EQ(rows->size(), 2u);
+  EXPECT_EQ((*rows)[0].verdict, Verdict::reject);
   EXPECT_EQ((*rows)[0].clip_path, "clips/a.mp4");
   EXPECT_EQ((*rows)[0].model, "ckpt-a");
 
