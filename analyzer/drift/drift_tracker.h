@@ -145,7 +145,7 @@ class DriftTracker {
   std::vector<float> templates_;
   std::vector<int> src_index_;
   std::vector<uint8_t> inliers_;
-  std::vector<float> ratios_;
+  std::vector<float> ratios_, ratios_x_, ratios_y_;  // pair distance ratios: all, along x, along y
   AppearanceSums all_, interior_;
   MotionMasks motion_masks_;
   cv::Mat covered_nodes_;

@@ -28,6 +28,14 @@ bool valid_at(const cv::Mat& valid, cv::Point2f p) {
   return valid.at<uint8_t>(y, x) != 0;
 }
 
+// Median of `values` (reordered), or NaN with fewer than `min_count`.
+double median_of(std::vector<float>& values, size_t min_count) {
+  if (values.size() < min_count) return std::numeric_limits<double>::quiet_NaN();
+  auto mid = values.begin() + static_cast<std::ptrdiff_t>(values.size() / 2);
+  std::nth_element(values.begin(), mid, values.end());
+  return *mid;
+}
+
 }  // namespace
 
 void AppearanceSums::add(const TrackPoint& p, const color::Lab& lp, const color::Lab& lc,
@@ -140,22 +148,44 @@ void DriftTracker::fit_object_motion(const FramePair& pair, ObjectTrack& object)
 // Robust scale of the object: the median, over pairs of its tracked points
 // that sit well apart, of current distance / reference distance. Unlike a
 // least-squares fit it ignores a minority of points that slid.
+//
+// Only the part of the change the object shows along both of its axes
+// counts as size: pairs lying mostly along the object's (de-rotated)
+// horizontal and mostly along its vertical give a scale each, and when both
+// are measured the size is the one nearer to no change, or none when they
+// disagree in sign. A magnification (a defect, or an approach) stretches
+// both axes alike; a figure that turns, bends or swings its limbs
+// foreshortens one axis only (the width of a person turning sideways), and
+// that is pose, not size.
 double DriftTracker::object_scale(const ObjectTrack& object) {
-  ratios_.clear();
+  ratios_.clear(), ratios_x_.clear(), ratios_y_.clear();
   const size_t n = src_.size();
   const float min_gap = 0.25f * object.ref_extent_px;
+  const double angle = -object.motion.rotation_rad();
+  const double c = std::cos(angle), s = std::sin(angle);
   uint32_t state = static_cast<uint32_t>(object.id) * 2654435761u + 12345u;
   for (int k = 0; k < 400 && n >= 2; ++k) {
     state ^= state << 13, state ^= state >> 17, state ^= state << 5;
     const size_t i = state % n, j = (state / 7919u) % n;
-    const double ref = cv::norm(src_[i] - src_[j]);
-    if (i == j || ref < min_gap) continue;
-    ratios_.push_back(static_cast<float>(cv::norm(dst_[i] - dst_[j]) / ref));
+    const cv::Point2f ref = src_[i] - src_[j];
+    const double ref_len = cv::norm(ref);
+    if (i == j || ref_len < min_gap) continue;
+    const cv::Point2f now = dst_[i] - dst_[j];
+    ratios_.push_back(static_cast<float>(cv::norm(now) / ref_len));
+    // The current offset turned back by the object's rotation, so that its
+    // components compare with the reference offset's.
+    const double now_x = c * now.x - s * now.y, now_y = s * now.x + c * now.y;
+    if (std::abs(ref.x) > 2 * std::abs(ref.y))
+      ratios_x_.push_back(static_cast<float>(std::abs(now_x / ref.x)));
+    if (std::abs(ref.y) > 2 * std::abs(ref.x))
+      ratios_y_.push_back(static_cast<float>(std::abs(now_y / ref.y)));
   }
-  if (ratios_.size() < 10) return std::numeric_limits<double>::quiet_NaN();
-  auto mid = ratios_.begin() + static_cast<std::ptrdiff_t>(ratios_.size() / 2);
-  std::nth_element(ratios_.begin(), mid, ratios_.end());
-  return *mid;
+  const double overall = median_of(ratios_, 10);
+  const double along_x = median_of(ratios_x_, 10), along_y = median_of(ratios_y_, 10);
+  if (!std::isfinite(overall) || !std::isfinite(along_x) || !std::isfinite(along_y)) return overall;
+  const double log_x = std::log(along_x), log_y = std::log(along_y);
+  if (log_x * log_y <= 0) return 1.0;
+  return std::exp(std::abs(log_x) < std::abs(log_y) ? log_x : log_y);
 }
 
 // The object's gray pattern now against its reference, over its followed
