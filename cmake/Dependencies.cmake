@@ -17,3 +17,6 @@ find_package(Threads REQUIRED)
 # Animated WebP: FFmpeg 5.1 cannot decode it; libwebp's animation decoder
 # (libwebpdemux, Debian package libwebp-dev) does.
 pkg_check_modules(WEBP REQUIRED IMPORTED_TARGET libwebpdemux libwebp)
+# The review station's HTTP server (Debian libcpp-httplib-dev, a compiled
+# library whose header must see the same feature macros: taken from its .pc).
+pkg_check_modules(HTTPLIB REQUIRED IMPORTED_TARGET cpp-httplib)

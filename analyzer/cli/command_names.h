@@ -12,7 +12,7 @@ struct CommandName {
   const char* summary;
 };
 
-inline constexpr std::array<CommandName, 8> kCommandNames = {{
+inline constexpr std::array<CommandName, 10> kCommandNames = {{
     {"analyze", "analyze clips; write a JSON and an HTML report per clip"},
     {"probe", "print what a clip's container holds, as JSON"},
     {"gate", "judge a batch of clips into a review queue (queue.jsonl, index.html)"},
@@ -21,6 +21,8 @@ inline constexpr std::array<CommandName, 8> kCommandNames = {{
     {"compare", "compare two model versions on the same prompts, with paired statistics"},
     {"inject", "write a copy of a clip with known defects, and where they are"},
     {"metrics", "list the metrics: columns, units, better direction, default rules"},
+    {"review", "serve a gate queue to a browser: watch flagged clips, decide by keyboard"},
+    {"calibrate", "compare the gate's verdicts with people's decisions; propose a policy"},
 }};
 
 }  // namespace clipwarden::cli

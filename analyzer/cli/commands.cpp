@@ -19,13 +19,15 @@ int run_merge(const std::vector<std::string>& args);
 int run_inspect(const std::vector<std::string>& args);
 int run_inject(const std::vector<std::string>& args);
 int run_metrics(const std::vector<std::string>& args);
+int run_review(const std::vector<std::string>& args);
+int run_calibrate(const std::vector<std::string>& args);
 
 const std::vector<Command>& commands() {
   static const std::vector<Command> table = [] {
     const std::map<std::string_view, std::function<int(const std::vector<std::string>&)>> runs = {
         {"analyze", run_analyze}, {"probe", run_probe},     {"gate", run_gate},
         {"merge", run_merge},     {"inspect", run_inspect}, {"compare", run_compare},
-        {"inject", run_inject},   {"metrics", run_metrics},
+        {"inject", run_inject},   {"metrics", run_metrics}, {"review", run_review}, {"calibrate", run_calibrate},
     };
     std::vector<Command> commands;
     for (const CommandName& c : kCommandNames)

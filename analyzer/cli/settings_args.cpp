@@ -39,19 +39,7 @@ Expected<AnalysisOptions> analysis_options_from_args(const ParsedArgs& args) {
   return out;
 }
 
-AnalysisSettings settings_from_report(const Report& report) {
-  AnalysisSettings s;
-  const auto& j = report.settings;
-  if (!j.is_object()) return s;
-  if (auto it = j.find("preset"); it != j.end() && it->is_string())
-    s.preset = preset_from_string(it->get<std::string>()).value_or(s.preset);
-  if (auto it = j.find("working_long_side_px"); it != j.end() && it->is_number_integer())
-    s.working_long_side = it->get<int>();
-  if (auto it = j.find("folder_fps"); it != j.end() && it->is_number()) s.folder_fps = it->get<double>();
-  if (auto it = j.find("long_range_k"); it != j.end() && it->is_number_integer()) s.long_range_k = it->get<int>();
-  if (auto it = j.find("max_objects"); it != j.end() && it->is_number_integer()) s.max_objects = it->get<int>();
-  return s;
-}
+AnalysisSettings settings_from_report(const Report& report) { return settings_from_json(report.settings); }
 
 Status write_reports(const Report& report, const std::string& base, bool html, const ReportExtras& extras) {
   auto json = write_json_report(report, base + ".json");

@@ -1,7 +1,9 @@
 // Queue lines (DIR/queue.jsonl) and the files written from the queue.
 #include <filesystem>
+#include <fstream>
 
 #include "analyzer/core/byte_text.h"
+#include "analyzer/core/json_text.h"
 #include "clipwarden/gate.h"
 #include "clipwarden/report_io.h"
 #include "analyzer/gate/queue_page.h"
@@ -115,6 +117,24 @@ Status write_queue_outputs(const std::string& out_dir, const std::vector<ClipRes
   }
   return write_file_atomic((fs::path(out_dir) / "index.html").string(),
                            render_queue_page(results, links));
+}
+
+Expected<std::vector<ClipResult>> read_queue(const std::string& dir) {
+  const std::filesystem::path queue = std::filesystem::path(dir) / "queue.jsonl";
+  std::ifstream in(queue, std::ios::binary);
+  if (!in) return usage_error(dir, "has no queue.jsonl (not a gate output folder)");
+  std::vector<ClipResult> out;
+  std::string line;
+  for (int number = 1; std::getline(in, line); ++number) {
+    if (line.find_first_not_of(" \t\r") == std::string::npos) continue;
+    const std::string where = queue.string() + ":" + std::to_string(number);
+    auto j = parse_json_text(line, where, ErrorKind::input);
+    if (!j) return j.error();
+    auto r = clip_result_from_queue_line(*j, where);
+    if (!r) return r.error();
+    out.push_back(std::move(r.value()));
+  }
+  return out;
 }
 
 }  // namespace clipwarden

@@ -32,4 +32,17 @@ nlohmann::json settings_to_json(const AnalysisSettings& s) {
   return j;
 }
 
+AnalysisSettings settings_from_json(const nlohmann::json& j) {
+  AnalysisSettings s;
+  if (!j.is_object()) return s;
+  if (auto it = j.find("preset"); it != j.end() && it->is_string())
+    s.preset = preset_from_string(it->get<std::string>()).value_or(s.preset);
+  if (auto it = j.find("working_long_side_px"); it != j.end() && it->is_number_integer())
+    s.working_long_side = it->get<int>();
+  if (auto it = j.find("folder_fps"); it != j.end() && it->is_number()) s.folder_fps = it->get<double>();
+  if (auto it = j.find("long_range_k"); it != j.end() && it->is_number_integer()) s.long_range_k = it->get<int>();
+  if (auto it = j.find("max_objects"); it != j.end() && it->is_number_integer()) s.max_objects = it->get<int>();
+  return s;
+}
+
 }  // namespace clipwarden

@@ -298,6 +298,11 @@ void check_coherence(const Report& r, const Policy& p, std::vector<Finding>& out
 
 }  // namespace
 
+std::optional<double> rule_statistic(const Report& report, const SummaryRule& rule) {
+  auto m = measure(report, rule, 0);  // the threshold only places the reason's frames
+  return m ? std::optional<double>(m->value) : std::nullopt;
+}
+
 VerdictResult evaluate_policy(const Report& report, const Policy& policy) {
   std::vector<Finding> findings;
   check_flash(report, policy, findings);

@@ -40,6 +40,8 @@ struct AnalysisSettings {
 
 // The settings as written into report.settings (and hashed by the store).
 nlohmann::json settings_to_json(const AnalysisSettings& settings);
+// Back from that record, with defaults for anything missing or malformed.
+AnalysisSettings settings_from_json(const nlohmann::json& settings);
 
 // Where the time went, summed over threads (milliseconds of thread time).
 // Filled when AnalysisHooks::timings is set; used by the benchmark.

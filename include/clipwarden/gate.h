@@ -178,6 +178,10 @@ Expected<GateRun> run_gate(const std::vector<GateInput>& inputs, const GateOptio
 // first), each atomically.
 Status write_queue_outputs(const std::string& out_dir, const std::vector<ClipResult>& results);
 
+// Reads DIR/queue.jsonl (a usage error when there is none; a bad line is an
+// input error naming the file and line).
+Expected<std::vector<ClipResult>> read_queue(const std::string& dir);
+
 // Joins the outputs of shard runs (their queue.jsonl, reports and
 // clipwarden.db) into out_dir: one queue in input order without duplicates,
 // one store, one index page. Reports whose names collide get a new name.

@@ -85,4 +85,8 @@ nlohmann::ordered_json policy_to_json(const Policy& policy);
 // the metric, the value, the threshold and the time range.
 VerdictResult evaluate_policy(const Report& report, const Policy& policy);
 
+// The value of the statistic a summary rule reads from a report, as
+// evaluate_policy reads it; nothing when the report lacks the metric.
+std::optional<double> rule_statistic(const Report& report, const SummaryRule& rule);
+
 }  // namespace clipwarden

@@ -105,7 +105,9 @@ JSON.stringify({
 
 
 class Browser:
-    def __init__(self, chromium, profile, deadline_s):
+    # host_rules: Chromium's --host-resolver-rules; by default no name (and no
+    # address) resolves, so a page cannot reach any server.
+    def __init__(self, chromium, profile, deadline_s, host_rules='MAP * ~NOTFOUND'):
         to_browser_r, self.to_browser = os.pipe()
         self.from_browser, from_browser_w = os.pipe()
 
@@ -120,7 +122,7 @@ class Browser:
         args = [chromium, '--headless', '--no-sandbox', '--disable-gpu', '--disable-quic',
                 '--no-first-run', '--disable-background-networking', '--disable-component-update',
                 '--disable-sync', '--disable-extensions', '--disable-default-apps',
-                '--host-resolver-rules=MAP * ~NOTFOUND', '--remote-debugging-pipe',
+                '--host-resolver-rules=' + host_rules, '--remote-debugging-pipe',
                 '--user-data-dir=' + profile, '--hide-scrollbars', 'about:blank']
         # Python's own fds are not inheritable, so only 0-4 reach the browser.
         self.proc = subprocess.Popen(args, preexec_fn=wire_fds, close_fds=False,
