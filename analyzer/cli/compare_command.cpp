@@ -10,7 +10,7 @@
 namespace clipwarden::cli {
 namespace {
 
-const char* kDescription =
+const char* kCompareDescription =
     "Compares two folders of per-clip reports (clipwarden analyze output, or gate output folders\n"
     "with queue.jsonl) clip by clip and writes DIR/compare.json and DIR/compare.html.\n"
     "Clips are paired by --pair-by (default: prompt_id when every queue line has one, else the\n"
@@ -95,7 +95,7 @@ int run_compare(const std::vector<std::string>& args) {
   const auto specs = compare_specs();
   int stop_status = kExitOk;
   auto parsed = parse_command_line(
-      args, specs, {"compare", "A B --out DIR [options]", kDescription}, stop_status);
+      args, specs, {"compare", "A B --out DIR [options]", kCompareDescription}, stop_status);
   if (!parsed) return stop_status;
   if (parsed->positionals.size() != 2) {
     print_error("compare takes two folders, A and B (see clipwarden compare --help)");

@@ -34,7 +34,7 @@ std::vector<OptionSpec> gate_specs() {
   return specs;
 }
 
-const char* kDescription =
+const char* kGateDescription =
     "Judges every clip: INPUT is a clip, a folder (searched recursively for video files\n"
     "and folders of numbered frames) or a manifest (.jsonl: one {\"path\", \"id\", \"prompt_id\",\n"
     "\"model\", ...} per line). Writes a report per clip, DIR/queue.jsonl (one line per clip,\n"
@@ -84,7 +84,7 @@ int run_gate(const std::vector<std::string>& args) {
   const auto specs = gate_specs();
   int stop_status = kExitOk;
   auto parsed = parse_command_line(
-      args, specs, {"gate", "INPUT... --out DIR [options]", kDescription}, stop_status);
+      args, specs, {"gate", "INPUT... --out DIR [options]", kGateDescription}, stop_status);
   if (!parsed) return stop_status;
   if (parsed->has("print-default-policy")) {
     std::printf("%s\n", policy_to_json(default_policy()).dump(2).c_str());

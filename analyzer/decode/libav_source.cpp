@@ -71,7 +71,7 @@ void settle(ClipInfo& info, StreamFacts& facts, int64_t frames, std::optional<Au
   if (audio->duration_s) facts.mismatch_s = std::abs(*audio->duration_s - facts.video_duration_s);
 }
 
-std::string with_reason(std::string cause, int code) {
+std::string with_av_reason(std::string cause, int code) {
   std::string reason = last_av_log_message();
   if (reason.empty() && code < 0) reason = av_error_text(code);
   if (!reason.empty()) cause += " (" + reason + ")";
@@ -200,7 +200,7 @@ Status LibavSource::note_failure(int code) {
   if (++failures_in_a_row_ < kMaxFailuresInARow) return Ok{};
   finished_ = true;
   end_error_ =
-      input_error(path_, with_reason("cannot decode past frame " + std::to_string(frames_), code));
+      input_error(path_, with_av_reason("cannot decode past frame " + std::to_string(frames_), code));
   return *end_error_;
 }
 
@@ -346,7 +346,7 @@ Expected<std::pair<ClipInfo, StreamFacts>> probe_libav(const std::string& path) 
   if (rc != AVERROR_EOF)
     return input_error(
         path,
-        with_reason("truncated or unreadable after packet " + std::to_string(stamps.size()), rc));
+        with_av_reason("truncated or unreadable after packet " + std::to_string(stamps.size()), rc));
   if (auto cut = find_truncation(path);
       cut && !frames_whole(index_frame_count(fmt, *video_index), static_cast<int64_t>(stamps.size())))
     return input_error(

@@ -8,7 +8,7 @@ namespace {
 
 constexpr float kClipLow = 1.5f / 255.0f;
 constexpr float kClipHigh = 253.5f / 255.0f;
-constexpr int kIterations = 6;
+constexpr int kFitIterations = 6;
 constexpr float kTukeyC = 4.685f;
 constexpr float kMinScale = 0.004f;  // about one 8-bit code value
 
@@ -37,7 +37,7 @@ ChannelAffine fit_channel(std::span<const cv::Vec3f> ref, std::span<const cv::Ve
   for (const cv::Vec2f& s : samples) scratch.push_back(s[1] - s[0]);
   if (static_cast<int>(scratch.size()) < min_samples) return {};
   ChannelAffine fit{1.0f, median_in_place(scratch)};
-  for (int iter = 0; iter < kIterations; ++iter) {
+  for (int iter = 0; iter < kFitIterations; ++iter) {
     scratch.clear();
     for (const cv::Vec2f& s : samples)
       scratch.push_back(std::abs(s[1] - (fit.gain * s[0] + fit.offset)));

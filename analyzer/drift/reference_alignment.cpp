@@ -9,7 +9,7 @@ namespace clipwarden::drift {
 namespace {
 
 constexpr int kParams = 6;  // dx, dy, scale, rotation (about the centroid), gain, offset
-constexpr int kIterations = 3;
+constexpr int kAlignIterations = 3;
 constexpr double kHuberDelta = 0.04;  // gray level in [0,1]
 // Weight of the gain prior per point, in squared gray level per unit gain:
 // a gain off by 0.2 costs as much as a 0.045 residual at every point.
@@ -40,7 +40,7 @@ bool align_to_reference(const cv::Mat& gray, std::span<const cv::Point2f> positi
     return cv::Point2f(static_cast<float>(p.x + dx + sc * qx - r * qy),
                        static_cast<float>(p.y + dy + sc * qy + r * qx));
   };
-  for (int iter = 0; iter < kIterations; ++iter) {
+  for (int iter = 0; iter < kAlignIterations; ++iter) {
     cv::Matx<double, kParams, kParams> h = cv::Matx<double, kParams, kParams>::zeros();
     cv::Vec<double, kParams> g = cv::Vec<double, kParams>::all(0);
     for (size_t i = 0; i < n; ++i) {

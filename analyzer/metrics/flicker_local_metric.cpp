@@ -67,7 +67,7 @@ constexpr int kGridCols = 16, kGridRows = 16;
 // block's size (Weber fractions of a few percent are visible for large
 // fields: common practice). Pulses: out and back within half a second,
 // i.e. pulse rates of 1 Hz and faster.
-constexpr float kDarkLevelFloor = 0.02f;
+constexpr float kRegionDarkFloor = 0.02f;
 constexpr double kMinSwing = 0.06;
 constexpr double kMaxPulse_s = 0.5;
 // Pixels within this many pixels of one that fails the forward-backward
@@ -139,7 +139,7 @@ class FlickerLocalMetric final : public Metric {
                                                                    2 * kOcclusionMargin_px + 1)));
     std::vector<float> changes =
         block_luminance_changes(pair.cur->luminance, pair.warped_prev_luminance, valid, kGridCols,
-                                kGridRows, kDarkLevelFloor);
+                                kGridRows, kRegionDarkFloor);
     const std::vector<float> agreement = block_texture_agreement(
         pair.cur->luminance, pair.warped_prev_luminance, valid, kGridCols, kGridRows, kFlatSpread);
     const float max_motion =

@@ -78,7 +78,7 @@ const MetricDescriptor& flicker_descriptor() {
 namespace {
 
 constexpr double kMedianWindow_s = 1.0;
-constexpr double kDarkLevelFloor = 0.02;
+constexpr double kFrameDarkFloor = 0.02;
 
 class FlickerMetric final : public Metric {
  public:
@@ -123,7 +123,7 @@ class FlickerMetric final : public Metric {
       const std::vector<double> median = running_median(shot, half);
       for (size_t t = begin; t < end; ++t) {
         const double level = median[t - begin];
-        v[t] = std::fabs(track[t] - level) / std::max(level, kDarkLevelFloor);
+        v[t] = std::fabs(track[t] - level) / std::max(level, kFrameDarkFloor);
       }
       begin = end;
     }

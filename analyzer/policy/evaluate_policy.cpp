@@ -40,7 +40,7 @@ double clip_duration_s(const Report& r) {
   return r.frame_times_s.empty() ? 0 : r.frame_times_s.back();
 }
 
-std::string seconds(double s) {
+std::string two_decimals(double s) {
   char buf[32];
   std::snprintf(buf, sizeof buf, "%.2f", s);
   return buf;
@@ -49,13 +49,13 @@ std::string seconds(double s) {
 // "(frames 12-40, 0.50-1.67 s)" or "(frame 12, 0.50 s)".
 std::string frame_range(const Report& r, int64_t first, int64_t last) {
   if (first == last)
-    return "(frame " + std::to_string(first) + ", " + seconds(frame_time_s(r, first)) + " s)";
+    return "(frame " + std::to_string(first) + ", " + two_decimals(frame_time_s(r, first)) + " s)";
   return "(frames " + std::to_string(first) + "-" + std::to_string(last) + ", " +
-         seconds(frame_time_s(r, first)) + "-" + seconds(frame_time_s(r, last)) + " s)";
+         two_decimals(frame_time_s(r, first)) + "-" + two_decimals(frame_time_s(r, last)) + " s)";
 }
 
 std::string whole_clip(const Report& r) {
-  return "(whole clip, 0.00-" + seconds(clip_duration_s(r)) + " s)";
+  return "(whole clip, 0.00-" + two_decimals(clip_duration_s(r)) + " s)";
 }
 
 // The first and last frame where `pred` holds on the series ({-1, -1}: none).
@@ -267,10 +267,10 @@ void check_stream(const Report& r, const Policy& p, std::vector<Finding>& out) {
   const StreamFacts& st = r.summary.stream;
   if (p.stream_mismatch_review_s && st.mismatch_s && *st.mismatch_s >= *p.stream_mismatch_review_s)
     out.push_back({Severity::review, "stream audio/video duration mismatch " +
-                                         seconds(*st.mismatch_s) + " s >= review " +
+                                         two_decimals(*st.mismatch_s) + " s >= review " +
                                          num(*p.stream_mismatch_review_s) + " s (video " +
-                                         seconds(st.video_duration_s) + " s, audio " +
-                                         seconds(st.audio_duration_s.value_or(0)) + " s)"});
+                                         two_decimals(st.video_duration_s) + " s, audio " +
+                                         two_decimals(st.audio_duration_s.value_or(0)) + " s)"});
   if (p.dropped_frames_review && st.dropped_frames >= *p.dropped_frames_review)
     out.push_back({Severity::review, "stream dropped_frames " + std::to_string(st.dropped_frames) +
                                          " >= review " + std::to_string(*p.dropped_frames_review) +

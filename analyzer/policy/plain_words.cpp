@@ -6,7 +6,7 @@
 namespace clipwarden {
 namespace {
 
-std::string seconds(double s) {
+std::string spoken_duration(double s) {
   char buf[32];
   std::snprintf(buf, sizeof buf, s < 10 ? "%.1f s" : "%.0f s", s);
   return buf;
@@ -62,7 +62,7 @@ std::string grid_place(int row, int col, int rows, int cols) {
 
 std::string plain_words(const Report& r, const std::string& metric, int64_t first, int64_t last,
                         int count) {
-  const std::string over = seconds(span_s(r, first, last));
+  const std::string over = spoken_duration(span_s(r, first, last));
   const std::string again = count > 1 ? ", " + times(count) + " in the clip" : "";
   if (metric == "freeze") return "the picture stands still for " + over + again;
   if (metric == "cut")

@@ -8,7 +8,7 @@
 
 #include "analyzer/core/assets.h"
 #include "clipwarden/compare.h"
-#include "report/html/compare_plot.h"
+#include "analyzer/compare/compare_plot.h"
 #include "report/html/html_escape.h"
 
 namespace clipwarden {
@@ -30,7 +30,7 @@ std::string format_p(double p) {
   return buffer;
 }
 
-std::string signed_number(double v) {
+std::string signed_cell_number(double v) {
   return (std::isfinite(v) && v > 0 ? "+" : "") + format_number(v);
 }
 
@@ -119,12 +119,12 @@ std::string verdict_row(const Comparison& c, const MetricComparison& m) {
          esc(m.what.metric) + "</span> " + esc(m.what.statistic) +
          "<br><span class=\"muted small\">" + esc(m.what.direction) +
          "</span></th><td class=\"num\">" + std::to_string(m.n) + "</td><td class=\"num\">" +
-         signed_number(m.mean_diff) + "<br><span class=\"muted small\">" + format_number(m.ci_low) +
+         signed_cell_number(m.mean_diff) + "<br><span class=\"muted small\">" + format_number(m.ci_low) +
          " &hellip; " + format_number(m.ci_high) + "</span></td><td class=\"num\">" +
          format_number(m.seed_noise) + "</td><td class=\"num\">" + std::to_string(m.wins_a) +
          " / " + std::to_string(m.ties) + " / " + std::to_string(m.wins_b) +
          "</td><td class=\"num\">" + share_interval(m) + "</td><td class=\"num\">" +
-         format_p(m.sign_p_value) + "</td><td class=\"num\">" + signed_number(m.effect_size) +
+         format_p(m.sign_p_value) + "</td><td class=\"num\">" + signed_cell_number(m.effect_size) +
          "</td><td class=\"num\">" + format_p(m.p_value) + "<br><span class=\"muted small\">" +
          esc(m.test) + "</span></td><td class=\"num\">" +
          (m.primary ? format_p(m.p_holm) : "<span class=\"muted\">not adjusted</span>") +
@@ -179,7 +179,7 @@ std::string worst_prompts_table(const Comparison& c, size_t column, const std::s
     const auto& ch = changes[i];
     rows += "<tr><th scope=\"row\">" + esc(ch.pair->key) + "</th><td class=\"num\">" +
             format_number(ch.a) + "</td><td class=\"num\">" + format_number(ch.b) +
-            "</td><td class=\"num\">" + signed_number(ch.b - ch.a) + "</td><td>" +
+            "</td><td class=\"num\">" + signed_cell_number(ch.b - ch.a) + "</td><td>" +
             clip_links(ch.pair->a, out_dir) + "</td><td>" + clip_links(ch.pair->b, out_dir) +
             "</td></tr>";
   }

@@ -1,4 +1,4 @@
-#include "report/html/compare_plot.h"
+#include "analyzer/compare/compare_plot.h"
 
 #include <algorithm>
 #include <cmath>
