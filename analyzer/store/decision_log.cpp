@@ -10,9 +10,9 @@
 namespace clipwarden {
 namespace {
 
-constexpr int kBusyTimeoutMs = 60000;
+constexpr int kDecisionBusyTimeoutMs = 60000;
 
-const char* kSchema = R"sql(
+const char* kDecisionSchema = R"sql(
 CREATE TABLE IF NOT EXISTS decisions (
   id                INTEGER PRIMARY KEY AUTOINCREMENT,
   request_id        TEXT NOT NULL UNIQUE,
@@ -33,7 +33,7 @@ CREATE TRIGGER IF NOT EXISTS decisions_no_delete BEFORE DELETE ON decisions
   BEGIN SELECT RAISE(ABORT, 'decisions are append-only'); END;
 )sql";
 
-const char* kColumns =
+const char* kDecisionColumns =
     "id, request_id, clip_id, content_sha256, reviewer, decided_at, decision, tags_json, note, "
     "tool_verdict, tool_reasons_json";
 
@@ -102,10 +102,10 @@ Expected<std::unique_ptr<DecisionLog>> DecisionLog::open(const std::string& path
     sqlite3_close(db);
     return output_error(path, "cannot open the results store: " + cause);
   }
-  sqlite3_busy_timeout(db, kBusyTimeoutMs);
+  sqlite3_busy_timeout(db, kDecisionBusyTimeoutMs);
   // WAL: a committed decision is in the log file before append() returns;
   // FULL syncs the log at each commit, so not even a power cut loses it.
-  for (const char* sql : {"PRAGMA journal_mode=WAL", "PRAGMA synchronous=FULL", kSchema}) {
+  for (const char* sql : {"PRAGMA journal_mode=WAL", "PRAGMA synchronous=FULL", kDecisionSchema}) {
     char* err = nullptr;
     if (sqlite3_exec(db, sql, nullptr, nullptr, &err) != SQLITE_OK) {
       std::string cause = err ? err : sqlite3_errmsg(db);
@@ -120,7 +120,7 @@ Expected<std::unique_ptr<DecisionLog>> DecisionLog::open(const std::string& path
 DecisionLog::~DecisionLog() { sqlite3_close(db_); }
 
 Expected<std::vector<Decision>> DecisionLog::select(const std::string& where, const std::string& arg) {
-  const std::string sql = std::string("SELECT ") + kColumns + " FROM decisions " + where + " ORDER BY id";
+  const std::string sql = std::string("SELECT ") + kDecisionColumns + " FROM decisions " + where + " ORDER BY id";
   Prepared q(db_, sql.c_str());
   if (!q.stmt) return output_error(path_, std::string("cannot read decisions: ") + sqlite3_errmsg(db_));
   if (!arg.empty()) q.bind(1, arg);
