@@ -71,25 +71,6 @@ Expected<fs::path> checked_report(const fs::path& dir, const ClipResult& r,
   return path;
 }
 
-Status read_queue(const fs::path& dir, std::vector<ClipResult>& out) {
-  const fs::path queue = dir / "queue.jsonl";
-  std::ifstream in(queue, std::ios::binary);
-  if (!in) return usage_error(dir.string(), "has no queue.jsonl (not a gate output folder)");
-  std::string line;
-  for (int number = 1; std::getline(in, line); ++number) {
-    if (line.find_first_not_of(" \t\r") == std::string::npos) continue;
-    const std::string where = queue.string() + ":" + std::to_string(number);
-    auto j = parse_json_text(line, where, ErrorKind::input);
-    if (!j) return j.error();
-    auto r = clip_result_from_queue_line(*j, where);
-    if (!r) return r.error();
-    if (!r->report.empty())
-      if (auto checked = checked_report(dir, *r, where); !checked) return checked.error();
-    out.push_back(std::move(r.value()));
-  }
-  return Ok{};
-}
-
 struct Merger {
   fs::path out_dir;
   std::set<std::string> used_names;
@@ -165,8 +146,16 @@ Expected<GateRun> merge_gate_outputs(const std::vector<std::string>& shard_dirs,
   // partial queue.
   if (auto st = check_shard_set(shard_dirs); !st) return st.error();
   std::vector<std::vector<ClipResult>> queues(shard_dirs.size());
-  for (size_t i = 0; i < shard_dirs.size(); ++i)
-    if (auto st = read_queue(shard_dirs[i], queues[i]); !st) return st.error();
+  for (size_t i = 0; i < shard_dirs.size(); ++i) {
+    const fs::path dir = shard_dirs[i];
+    auto queue = read_queue(shard_dirs[i], [&dir](const ClipResult& r, const std::string& where) {
+      if (r.report.empty()) return Status(Ok{});
+      auto checked = checked_report(dir, r, where);
+      return checked ? Status(Ok{}) : Status(checked.error());
+    });
+    if (!queue) return queue.error();
+    queues[i] = std::move(*queue);
+  }
   std::error_code ec;
   fs::create_directories(out_dir, ec);
   if (ec) return output_error(out_dir, "cannot create output folder: " + ec.message());

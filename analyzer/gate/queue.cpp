@@ -119,7 +119,7 @@ Status write_queue_outputs(const std::string& out_dir, const std::vector<ClipRes
                            render_queue_page(results, links));
 }
 
-Expected<std::vector<ClipResult>> read_queue(const std::string& dir) {
+Expected<std::vector<ClipResult>> read_queue(const std::string& dir, const QueueLineCheck& check) {
   const std::filesystem::path queue = std::filesystem::path(dir) / "queue.jsonl";
   std::ifstream in(queue, std::ios::binary);
   if (!in) return usage_error(dir, "has no queue.jsonl (not a gate output folder)");
@@ -132,6 +132,8 @@ Expected<std::vector<ClipResult>> read_queue(const std::string& dir) {
     if (!j) return j.error();
     auto r = clip_result_from_queue_line(*j, where);
     if (!r) return r.error();
+    if (check)
+      if (auto st = check(*r, where); !st) return st.error();
     out.push_back(std::move(r.value()));
   }
   return out;

@@ -180,7 +180,11 @@ Status write_queue_outputs(const std::string& out_dir, const std::vector<ClipRes
 
 // Reads DIR/queue.jsonl (a usage error when there is none; a bad line is an
 // input error naming the file and line).
-Expected<std::vector<ClipResult>> read_queue(const std::string& dir);
+// `check`, when given, sees each entry with its place ("DIR/queue.jsonl:LINE")
+// and may refuse it; its error ends the reading.
+using QueueLineCheck = std::function<Status(const ClipResult&, const std::string& where)>;
+Expected<std::vector<ClipResult>> read_queue(const std::string& dir,
+                                             const QueueLineCheck& check = {});
 
 // Joins the outputs of shard runs (their queue.jsonl, reports and
 // clipwarden.db) into out_dir: one queue in input order without duplicates,
