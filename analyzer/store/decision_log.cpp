@@ -1,5 +1,8 @@
 #include "analyzer/store/decision_log.h"
 
+#include "analyzer/core/byte_text.h"
+#include "analyzer/store/sqlite_setup.h"
+
 #include <sqlite3.h>
 
 #include <algorithm>
@@ -105,14 +108,11 @@ Expected<std::unique_ptr<DecisionLog>> DecisionLog::open(const std::string& path
   sqlite3_busy_timeout(db, kDecisionBusyTimeoutMs);
   // WAL: a committed decision is in the log file before append() returns;
   // FULL syncs the log at each commit, so not even a power cut loses it.
-  for (const char* sql : {"PRAGMA journal_mode=WAL", "PRAGMA synchronous=FULL", kDecisionSchema}) {
-    char* err = nullptr;
-    if (sqlite3_exec(db, sql, nullptr, nullptr, &err) != SQLITE_OK) {
-      std::string cause = err ? err : sqlite3_errmsg(db);
-      sqlite3_free(err);
-      sqlite3_close(db);
-      return output_error(path, "cannot prepare the decisions table: " + cause);
-    }
+  if (auto st = run_store_setup(db, path, {"PRAGMA journal_mode=WAL", "PRAGMA synchronous=FULL", kDecisionSchema},
+                                 "cannot prepare the decisions table");
+      !st) {
+    sqlite3_close(db);
+    return st.error();
   }
   return std::unique_ptr<DecisionLog>(new DecisionLog(db, path));
 }
@@ -171,10 +171,10 @@ Expected<Decision> DecisionLog::append(Decision d) {
     q.bind(4, d.reviewer);
     q.bind(5, d.decided_at);
     q.bind(6, d.decision);
-    q.bind(7, nlohmann::json(d.tags).dump());
+    q.bind(7, dump_json(nlohmann::json(d.tags)));
     q.bind(8, d.note);
     q.bind(9, d.tool_verdict);
-    q.bind(10, nlohmann::json(d.tool_reasons).dump());
+    q.bind(10, dump_json(nlohmann::json(d.tool_reasons)));
     if (sqlite3_step(q.stmt) != SQLITE_DONE)
       return output_error(path_, std::string("cannot store a decision: ") + sqlite3_errmsg(db_));
   }

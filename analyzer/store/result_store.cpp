@@ -11,6 +11,7 @@
 #include <thread>
 
 #include "analyzer/core/byte_text.h"
+#include "analyzer/store/sqlite_setup.h"
 #include "clipwarden/store.h"
 
 namespace clipwarden {
@@ -134,25 +135,10 @@ Expected<std::unique_ptr<ResultStore>> ResultStore::open(const std::string& path
   sqlite3_busy_timeout(db, kBusyTimeoutMs);
   // journal_mode returns a row; exec ignores it. synchronous=NORMAL is safe
   // in WAL mode: a power cut may lose the last commits, never corrupt.
-  for (const char* sql : {"PRAGMA journal_mode=WAL", "PRAGMA synchronous=NORMAL", kSchema}) {
-    auto st = store->exec(sql);
-    // Two processes opening a new store at the same moment: switching to
-    // WAL takes an exclusive lock SQLite does not wait for (no busy
-    // handler), so the loser retries, for at most 5 s.
-    for (int attempt = 0; !st && attempt < 50; ++attempt) {
-      const int busy = sqlite3_errcode(db);
-      if (busy != SQLITE_BUSY && busy != SQLITE_LOCKED) break;
-      std::this_thread::sleep_for(std::chrono::milliseconds(100));
-      st = store->exec(sql);
-    }
-    if (st) continue;
-    const int code = sqlite3_errcode(db);
-    if (code == SQLITE_NOTADB || code == SQLITE_CORRUPT)
-      return output_error(path, "results store is damaged (" + std::string(sqlite3_errmsg(db)) +
-                                    "); move it aside (mv " + path + " " + path +
-                                    ".damaged) or point --db at another file");
+  if (auto st = run_store_setup(db, path, {"PRAGMA journal_mode=WAL", "PRAGMA synchronous=NORMAL", kSchema},
+                                 "results store");
+      !st)
     return st.error();
-  }
   Statement version(db, "PRAGMA user_version");
   int found = version.ok() && sqlite3_step(version.get()) == SQLITE_ROW
                   ? sqlite3_column_int(version.get(), 0)
