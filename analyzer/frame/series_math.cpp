@@ -46,6 +46,44 @@ std::vector<double> running_median(std::span<const double> series, int half_widt
   return out;
 }
 
+Line theil_sen_line(std::span<const double> series) {
+  constexpr double kNaN = std::numeric_limits<double>::quiet_NaN();
+  std::vector<double> slopes;
+  for (size_t a = 0; a < series.size(); ++a) {
+    if (std::isnan(series[a])) continue;
+    for (size_t b = a + 1; b < series.size(); ++b)
+      if (!std::isnan(series[b])) slopes.push_back((series[b] - series[a]) / static_cast<double>(b - a));
+  }
+  if (slopes.empty()) return {kNaN, kNaN};
+  Line line;
+  line.slope = quantile(std::move(slopes), 0.5);
+  std::vector<double> offsets;
+  for (size_t i = 0; i < series.size(); ++i)
+    if (!std::isnan(series[i])) offsets.push_back(series[i] - line.slope * static_cast<double>(i));
+  line.intercept = quantile(std::move(offsets), 0.5);
+  return line;
+}
+
+std::vector<double> running_level(std::span<const double> series, int half_width, int edge_frames) {
+  std::vector<double> out = running_median(series, half_width);
+  const int n = static_cast<int>(series.size());
+  if (n < 2) return out;
+  const size_t width = static_cast<size_t>(std::clamp(edge_frames, 2, n));
+  const Line head = theil_sen_line(series.first(width));
+  const Line tail = theil_sen_line(series.last(width));
+  const int tail_origin = n - static_cast<int>(width);
+  for (int i = 0; i < n; ++i) {
+    if (std::isnan(series[i]) || (i >= half_width && i + half_width < n)) continue;
+    // Frames in both end zones (a series shorter than a window) take the
+    // nearer end's line.
+    const bool near_head = i < n - 1 - i;
+    const Line& line = near_head ? head : tail;
+    const double x = near_head ? i : i - tail_origin;
+    if (!std::isnan(line.slope)) out[i] = line.at(x);
+  }
+  return out;
+}
+
 double median_frame_interval_s(std::span<const double> times_s) {
   if (times_s.size() < 2) return 0;
   std::vector<double> d;

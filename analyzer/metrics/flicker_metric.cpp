@@ -3,9 +3,17 @@
 // change of relative luminance after motion compensation (a moving bright
 // object adds nothing; a pulse of the whole picture does). The
 // motion-compensated luminance track is L_0 = mean Y_0, L_t = L_{t-1} + d_t.
-// flicker_t = |L_t - m_t| / max(m_t, 0.02), m_t = median(L over a centred
-// 1 s window): slow lighting changes (a sunset, an exposure ramp) follow the
-// median and score ~0, pulses shorter than half a second stand out. Units:
+// flicker_t = |L_t - m_t| / max(m_t, p_t, 0.02), m_t = median(L over a
+// centred 1 s window), p_t the same median of the plain mean luminance:
+// slow lighting changes (a sunset, an exposure ramp) follow the median and
+// score ~0 (a median of a monotone stretch is its middle value), pulses
+// shorter than half a second stand out. Within half a second of a shot's
+// first or last frame the centred window does not fit; there m_t is a
+// Theil-Sen line through the nearest half second (at least 9 frames), which
+// follows a brightening or fade that runs on to the clip's end (a shrunk
+// median lags it and read real footage's last frames as flicker) and still
+// leaves a pulse of a few frames at the very start standing out (mirroring
+// the series at the ends would hide it). Units:
 // a fraction of the local luminance level, as the IES percent flicker is a
 // fraction of the mean: what a viewer sees is the relative change (Weber's
 // law), so a 5% pulse reads the same in a night scene as at noon. Below a
@@ -79,6 +87,7 @@ namespace {
 
 constexpr double kMedianWindow_s = 1.0;
 constexpr double kFrameDarkFloor = 0.02;
+constexpr int kEdgeFrames = 9;
 
 class FlickerMetric final : public Metric {
  public:
@@ -115,15 +124,27 @@ class FlickerMetric final : public Metric {
     }
     const double dt = median_frame_interval_s(report.frame_times_s);
     const int half = std::max(2, dt > 0 ? static_cast<int>(std::lround(kMedianWindow_s / 2 / dt)) : 2);
+    // At a shot's ends the level is a robust line over the nearest half
+    // second, but over at least kEdgeFrames frames so that a pulse of two or
+    // three frames at 8 fps is still a minority of the line's points.
+    const int edge_frames = std::max(half + 1, kEdgeFrames);
     // High-pass each shot on its own.
     for (size_t begin = 0; begin < n;) {
       size_t end = begin + 1;
       while (end < n && !starts_shot(end)) ++end;
       const std::span<const double> shot(track.data() + begin, end - begin);
-      const std::vector<double> median = running_median(shot, half);
+      const std::span<const double> plain(luminance->values.data() + begin, end - begin);
+      const std::vector<double> level = running_level(shot, half, edge_frames);
+      const std::vector<double> picture_level = running_median(plain, half);
       for (size_t t = begin; t < end; ++t) {
-        const double level = median[t - begin];
-        v[t] = std::fabs(track[t] - level) / std::max(level, kFrameDarkFloor);
+        // The track is a running sum of motion-compensated steps; when the
+        // consistent pixels are biased (flames appearing fail the
+        // forward-backward check more often than flames fading) it drifts
+        // far from the picture's own level, even below zero. The relative
+        // change is taken against the larger of the two levels, so a drift
+        // never inflates it.
+        const double denominator = std::max({level[t - begin], picture_level[t - begin], kFrameDarkFloor});
+        v[t] = std::fabs(track[t] - level[t - begin]) / denominator;
       }
       begin = end;
     }
