@@ -5,6 +5,15 @@
 
 namespace clipwarden::decode {
 
+int missing_frames(double interval, double nominal) {
+  constexpr double kWholeMultipleTolerance = 0.25;
+  if (!(nominal > 0) || !(interval > 0)) return 0;
+  const double multiple = interval / nominal;
+  const double whole = std::round(multiple);
+  if (whole < 2 || std::fabs(multiple - whole) > kWholeMultipleTolerance) return 0;
+  return static_cast<int>(whole) - 1;
+}
+
 StreamTiming::StreamTiming(double tick_s, double fallback_interval_s)
     : tick_s_(tick_s > 0 ? tick_s : 1.0),
       fallback_interval_ticks_(fallback_interval_s > 0 ? fallback_interval_s / tick_s_ : 0) {}
@@ -52,9 +61,7 @@ StreamFacts StreamTiming::facts() const {
         continue;
       }
       if (std::abs(static_cast<double>(d) - nominal) > tolerance) facts.vfr = true;
-      if (static_cast<double>(d) >= 1.5 * nominal)
-        facts.dropped_frames +=
-            static_cast<int>(std::llround(static_cast<double>(d) / nominal)) - 1;
+      facts.dropped_frames += missing_frames(static_cast<double>(d), nominal);
     }
   } else {
     for (int64_t d : intervals_) facts.duplicate_timestamps += d <= 0;

@@ -12,6 +12,14 @@
 
 namespace clipwarden::decode {
 
+// Frames missing in one interval of a stream whose usual interval is
+// `nominal` (same unit): k - 1 when the interval is within a quarter of an
+// interval of a whole multiple k >= 2 of it, else 0. A missing frame leaves
+// exactly one more interval; an interval of 1.5 or 1.67 nominal ones is the
+// irregular timing of a webcam or a variable-rate capture (a frame came
+// late), not a frame that is gone.
+int missing_frames(double interval, double nominal);
+
 class StreamTiming {
  public:
   // tick_s: seconds per timestamp tick (the stream time base).
@@ -34,8 +42,7 @@ class StreamTiming {
   //    5 % of it plus one tick when ticks are finer than half an interval
   //    (timestamps rounded to a coarse time base, e.g. 1 ms for 29.97 fps,
   //    jitter by one tick without the rate being variable);
-  //  - dropped_frames: every interval of at least 1.5 nominal intervals adds
-  //    round(interval / nominal) - 1 missing frames;
+  //  - dropped_frames: missing_frames() summed over the intervals;
   //  - duplicate_timestamps: frames whose time does not advance past the
   //    previous frame's;
   //  - video_duration_s: last time + last frame's duration - first time.

@@ -7,6 +7,7 @@
 #include <utility>
 
 #include "analyzer/policy/plain_words.h"
+#include "analyzer/policy/timestamp_gaps.h"
 #include "clipwarden/policy.h"
 
 namespace clipwarden {
@@ -245,24 +246,6 @@ void check_flash(const Report& r, const Policy& p, std::vector<Finding>& out) {
   out.push_back({Severity::reject, text});
 }
 
-// Frames whose interval to the previous one is ~2+ nominal intervals.
-std::string dropped_place(const Report& r) {
-  const auto& t = r.frame_times_s;
-  if (t.size() < 3) return whole_clip(r);
-  std::vector<double> dt;
-  for (size_t i = 1; i < t.size(); ++i) dt.push_back(t[i] - t[i - 1]);
-  std::vector<double> sorted = dt;
-  std::nth_element(sorted.begin(), sorted.begin() + sorted.size() / 2, sorted.end());
-  const double nominal = sorted[sorted.size() / 2];
-  int64_t first = -1, last = -1;
-  for (size_t i = 0; i < dt.size(); ++i)
-    if (nominal > 0 && dt[i] > 1.5 * nominal) {
-      if (first < 0) first = static_cast<int64_t>(i + 1);
-      last = static_cast<int64_t>(i + 1);
-    }
-  return first < 0 ? whole_clip(r) : frame_range(r, first, last);
-}
-
 void check_stream(const Report& r, const Policy& p, std::vector<Finding>& out) {
   const StreamFacts& st = r.summary.stream;
   if (p.stream_mismatch_review_s && st.mismatch_s && *st.mismatch_s >= *p.stream_mismatch_review_s)
@@ -271,10 +254,25 @@ void check_stream(const Report& r, const Policy& p, std::vector<Finding>& out) {
                                          num(*p.stream_mismatch_review_s) + " s (video " +
                                          two_decimals(st.video_duration_s) + " s, audio " +
                                          two_decimals(st.audio_duration_s.value_or(0)) + " s)"});
-  if (p.dropped_frames_review && st.dropped_frames >= *p.dropped_frames_review)
-    out.push_back({Severity::review, "stream dropped_frames " + std::to_string(st.dropped_frames) +
-                                         " >= review " + std::to_string(*p.dropped_frames_review) +
-                                         " " + dropped_place(r)});
+  if (p.dropped_frames_review && st.dropped_frames >= *p.dropped_frames_review) {
+    // Only gaps across which the picture jumps count (timestamp_gaps.h), and
+    // never more than the stream itself is missing: a file storing each
+    // picture several times has its repeats left out of the analysed frames,
+    // which leaves gaps between them that the stream does not have.
+    int visible = 0;
+    int64_t first = -1, last = -1;
+    for (const TimestampGap& g : timestamp_gaps(r)) {
+      if (!g.picture_jumps) continue;
+      visible += g.missing;
+      if (first < 0) first = g.frame;
+      last = g.frame;
+    }
+    visible = std::min(visible, st.dropped_frames);
+    if (visible >= *p.dropped_frames_review)
+      out.push_back({Severity::review, "stream dropped_frames " + std::to_string(visible) + " >= review " +
+                                           std::to_string(*p.dropped_frames_review) + " " +
+                                           (first < 0 ? whole_clip(r) : frame_range(r, first, last))});
+  }
   // Pixels the decoder had to conceal or drop are not what the author made,
   // however coherent they look (damage often shows as a smear that stays
   // still, which no motion metric flags).

@@ -63,3 +63,37 @@ TEST(StreamTiming, LastFrameDurationEndsTheClip) {
   timing.add(100, 250);  // a long last frame (e.g. a GIF's final delay)
   EXPECT_NEAR(timing.facts().video_duration_s, 0.35, 1e-12);
 }
+
+TEST(StreamTiming, AnIntervalOfOneAndAHalfIsALateFrameNotAMissingOne) {
+  // A webcam's timing (a WebM from imageio's test data): 32 ms frames, and
+  // every twelfth interval 48 ms. No frame can be missing from 1.5 intervals.
+  StreamTiming timing(1e-3, 0.032);
+  int64_t t = 0;
+  for (int i = 0; i < 96; ++i) {
+    timing.add(t);
+    t += i % 12 == 11 ? 48 : 32;
+  }
+  const auto facts = timing.facts();
+  EXPECT_TRUE(facts.vfr);
+  EXPECT_EQ(facts.dropped_frames, 0);
+}
+
+TEST(StreamTiming, IrregularCaptureCountsOnlyIntervalsNearAWholeMultiple) {
+  // tree.avi's first intervals in ticks of 1/15 s (opencv-doc): usually 5-7
+  // ticks (median 6), a few of 10 and 11. 10/6 = 1.67 is irregular timing;
+  // 11/6 = 1.83 lies within a quarter interval of 2, one missing frame.
+  StreamTiming timing(1.0 / 15, 0.4);
+  int64_t t = 0;
+  for (int d : {11, 6, 7, 7, 6, 6, 6, 7, 5, 6, 5, 6, 6, 5, 6, 10, 6, 6, 6, 6, 7, 5, 6}) {
+    timing.add(t);
+    t += d;
+  }
+  timing.add(t);
+  EXPECT_EQ(timing.facts().dropped_frames, 1);
+  EXPECT_EQ(clipwarden::decode::missing_frames(10, 6), 0);
+  EXPECT_EQ(clipwarden::decode::missing_frames(11, 6), 1);
+  EXPECT_EQ(clipwarden::decode::missing_frames(9, 6), 0);     // 1.5
+  EXPECT_EQ(clipwarden::decode::missing_frames(36, 6), 5);    // 6 intervals
+  EXPECT_EQ(clipwarden::decode::missing_frames(27, 6), 0);    // 4.5: not whole
+  EXPECT_EQ(clipwarden::decode::missing_frames(5, 0), 0);     // no nominal interval
+}

@@ -118,6 +118,17 @@ TEST(GateEvaluate, StreamMismatchDroppedFramesAndDecodeWarningsReview) {
   v = evaluate_policy(dropped, default_policy());
   EXPECT_TRUE(has_reason(v, "stream dropped_frames 4 >= review 3 (frame 30")) << all_reasons(v);
 
+  // With the flow's occlusion share known, the gap counts only when the
+  // pair across it loses more of the picture than its neighbours
+  // (timestamp_gaps.h): 7% against 1% does, 1.2% against 1% does not.
+  Report jumps = dropped;
+  add_series(jumps, "occluded_pct", 1.0, 7.0, 30, 30);
+  EXPECT_TRUE(has_reason(evaluate_policy(jumps, default_policy()), "stream dropped_frames 4 >= review 3"));
+  Report holds = dropped;
+  add_series(holds, "occluded_pct", 1.0, 1.2, 30, 30);
+  EXPECT_FALSE(has_reason(evaluate_policy(holds, default_policy()), "stream dropped_frames"))
+      << all_reasons(evaluate_policy(holds, default_policy()));
+
   // The decoder's complaints, as the video source counts them, review.
   for (auto field :
        {&StreamFacts::decode_errors, &StreamFacts::concealed_frames, &StreamFacts::lost_frames}) {
