@@ -56,6 +56,12 @@ struct DriftParams {
   double structure_unit = 0.6;     // gradient-orientation measure distance
   double size_unit_log = std::log(1.3);  // 30% larger or 23% smaller within the size window
   double size_window_s = 2.0;
+  // The size aspect counts at most this much: a size change is reported
+  // (a drift segment opens from 0.35) but never reaches the review level
+  // (1.0) on its own. The object's points spreading apart or closing in is
+  // its own tracked motion: an approach, a recession, a turn; on real
+  // footage nothing else read that way (docs/drift.md, "Size").
+  double size_cap = 0.9;
 
   static DriftParams for_frame(int width, int height, int max_objects) {
     DriftParams p;

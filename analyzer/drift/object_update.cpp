@@ -324,9 +324,9 @@ ObjectSample DriftTracker::update_object(const FramePair& pair, ObjectTrack& obj
     sample.size_pct = std::isfinite(size_pct) ? size_pct : 0.f;
     sample.size_window_pct = size_change_over_window(object, sample);
     const double size_log = std::abs(std::log1p(sample.size_window_pct / 100.0));
-    sample.drift = static_cast<float>(std::max({sample.color_de00 / params_.colour_unit_de00,
-                                                sample.structure / params_.structure_unit,
-                                                size_log / params_.size_unit_log}));
+    const double size = std::min(size_log / params_.size_unit_log, params_.size_cap);
+    sample.drift = static_cast<float>(std::max(
+        {sample.color_de00 / params_.colour_unit_de00, sample.structure / params_.structure_unit, size}));
     if (breaks_continuity(object, sample)) {
       object.unreliable = true;
       object.unreliable_since_s = sample.t_s;
