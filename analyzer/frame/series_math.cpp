@@ -52,7 +52,8 @@ Line theil_sen_line(std::span<const double> series) {
   for (size_t a = 0; a < series.size(); ++a) {
     if (std::isnan(series[a])) continue;
     for (size_t b = a + 1; b < series.size(); ++b)
-      if (!std::isnan(series[b])) slopes.push_back((series[b] - series[a]) / static_cast<double>(b - a));
+      if (!std::isnan(series[b]))
+        slopes.push_back((series[b] - series[a]) / static_cast<double>(b - a));
   }
   if (slopes.empty()) return {kNaN, kNaN};
   Line line;

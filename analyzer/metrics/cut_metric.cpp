@@ -6,6 +6,7 @@
 //   cut = sqrt((1 - valid_fraction) * bhattacharyya)   in [0, 1]
 // Fast motion alone lowers the valid share but keeps the colours; a
 // lighting change shifts colours but flow stays consistent.
+#include <algorithm>
 #include <cmath>
 
 #include <opencv2/imgproc.hpp>
@@ -77,12 +78,32 @@ cv::Mat colour_histogram(const cv::Mat& bgr) {
   return hist;
 }
 
+// `from` with each channel scaled so its mean is `to`'s (a channel with a
+// mean under one code is left as it is).
+cv::Mat gain_matched(const cv::Mat& from, const cv::Mat& to) {
+  const cv::Scalar mean_from = cv::mean(from), mean_to = cv::mean(to);
+  cv::Scalar gain;
+  for (int c = 0; c < 3; ++c) gain[c] = mean_from[c] >= 1 ? mean_to[c] / mean_from[c] : 1.0;
+  cv::Mat scaled;
+  cv::multiply(from, gain, scaled);
+  return scaled;
+}
+
 class CutMetric final : public Metric {
  public:
   const MetricDescriptor& descriptor() const override { return cut_descriptor(); }
   void measure_pair(const FramePair& pair, std::span<double> out) const override {
-    const double distance = cv::compareHist(colour_histogram(pair.prev->bgr), colour_histogram(pair.cur->bgr),
-                                            cv::HISTCMP_BHATTACHARYYA);
+    const cv::Mat current = colour_histogram(pair.cur->bgr);
+    const double plain =
+        cv::compareHist(colour_histogram(pair.prev->bgr), current, cv::HISTCMP_BHATTACHARYYA);
+    // A fade scales every value by one gain (per channel for a white-balance
+    // shift): the previous frame scaled to the current one's channel means
+    // has the current one's colours, where another scene does not. Near
+    // black a fade moves most pixels across the histogram's coarse bins and
+    // the flow loses the dim picture, so without this a fade read as a cut.
+    const double distance = std::min(
+        plain, cv::compareHist(colour_histogram(gain_matched(pair.prev->bgr, pair.cur->bgr)),
+                               current, cv::HISTCMP_BHATTACHARYYA));
     out[0] = std::sqrt(std::clamp(1.0 - pair.valid_fraction, 0.0, 1.0) * std::clamp(distance, 0.0, 1.0));
   }
 };

@@ -28,11 +28,12 @@
 #include <algorithm>
 #include <cmath>
 
+#include "analyzer/color/color_space.h"
+#include "analyzer/frame/series_math.h"
+#include "analyzer/frame/shot_boundaries.h"
 #include "analyzer/metrics/flicker_statistics.h"
 #include "analyzer/metrics/image_error.h"
 #include "analyzer/metrics/metric.h"
-#include "analyzer/frame/shot_boundaries.h"
-#include "analyzer/frame/series_math.h"
 
 namespace clipwarden {
 
@@ -89,6 +90,30 @@ constexpr double kMedianWindow_s = 1.0;
 constexpr double kFrameDarkFloor = 0.02;
 constexpr int kEdgeFrames = 9;
 
+// The sRGB encoding, odd around 0 (the track is a running sum and can
+// drift below it; the curve is linear there, so it stays smooth).
+double encoded(double linear) {
+  return linear < 0 ? -color::linear_to_srgb(-linear) : color::linear_to_srgb(linear);
+}
+double decoded(double value) {
+  return value < 0 ? -color::srgb_to_linear(-value) : color::srgb_to_linear(value);
+}
+
+// The slow level of one shot's track (running_level), found on its
+// sRGB-encoded values: editors and generators fade by scaling code values,
+// so a fade to black is a straight line there and a curve that plunges
+// towards 0 in linear light, which a line through the last frames
+// overshoots (a fade over opencv-doc vtest.avi's last 2 s read 0.29 at its
+// last frame). Medians are the same in either domain (the encoding is
+// monotone), so only the line at the shot's ends changes.
+std::vector<double> level_of(std::span<const double> track, int half, int edge_frames) {
+  std::vector<double> values(track.begin(), track.end());
+  for (double& v : values) v = encoded(v);
+  std::vector<double> level = running_level(values, half, edge_frames);
+  for (double& v : level) v = decoded(v);
+  return level;
+}
+
 class FlickerMetric final : public Metric {
  public:
   const MetricDescriptor& descriptor() const override { return flicker_descriptor(); }
@@ -134,7 +159,7 @@ class FlickerMetric final : public Metric {
       while (end < n && !starts_shot(end)) ++end;
       const std::span<const double> shot(track.data() + begin, end - begin);
       const std::span<const double> plain(luminance->values.data() + begin, end - begin);
-      const std::vector<double> level = running_level(shot, half, edge_frames);
+      const std::vector<double> level = level_of(shot, half, edge_frames);
       const std::vector<double> picture_level = running_median(plain, half);
       for (size_t t = begin; t < end; ++t) {
         // The track is a running sum of motion-compensated steps; when the
@@ -143,7 +168,8 @@ class FlickerMetric final : public Metric {
         // far from the picture's own level, even below zero. The relative
         // change is taken against the larger of the two levels, so a drift
         // never inflates it.
-        const double denominator = std::max({level[t - begin], picture_level[t - begin], kFrameDarkFloor});
+        const double denominator =
+            std::max({level[t - begin], picture_level[t - begin], kFrameDarkFloor});
         v[t] = std::fabs(track[t] - level[t - begin]) / denominator;
       }
       begin = end;

@@ -269,9 +269,10 @@ void check_stream(const Report& r, const Policy& p, std::vector<Finding>& out) {
     }
     visible = std::min(visible, st.dropped_frames);
     if (visible >= *p.dropped_frames_review)
-      out.push_back({Severity::review, "stream dropped_frames " + std::to_string(visible) + " >= review " +
-                                           std::to_string(*p.dropped_frames_review) + " " +
-                                           (first < 0 ? whole_clip(r) : frame_range(r, first, last))});
+      out.push_back(
+          {Severity::review, "stream dropped_frames " + std::to_string(visible) + " >= review " +
+                                 std::to_string(*p.dropped_frames_review) + " " +
+                                 (first < 0 ? whole_clip(r) : frame_range(r, first, last))});
   }
   // Pixels the decoder had to conceal or drop are not what the author made,
   // however coherent they look (damage often shows as a smear that stays

@@ -14,12 +14,14 @@ constexpr double kJumpFactor = 2;
 constexpr double kJumpFloorPct = 1;
 
 bool picture_jumps(const MetricSeries* occluded, const std::vector<bool>& in_gap, size_t frame) {
-  if (!occluded || frame >= occluded->values.size() || std::isnan(occluded->values[frame])) return true;
+  if (!occluded || frame >= occluded->values.size() || std::isnan(occluded->values[frame]))
+    return true;
   std::vector<double> around;
   const size_t from = frame > kNeighbourFrames ? frame - kNeighbourFrames : 1;
   const size_t to = std::min(occluded->values.size(), frame + kNeighbourFrames + 1);
   for (size_t j = from; j < to; ++j)
-    if (j != frame && !in_gap[j] && !std::isnan(occluded->values[j])) around.push_back(occluded->values[j]);
+    if (j != frame && !in_gap[j] && !std::isnan(occluded->values[j]))
+      around.push_back(occluded->values[j]);
   if (around.empty()) return true;
   const double usual = quantile(std::move(around), 0.5);
   const double at_gap = occluded->values[frame];
@@ -43,7 +45,8 @@ std::vector<TimestampGap> timestamp_gaps(const Report& r) {
     gaps.push_back({static_cast<int64_t>(i), missing, true});
   }
   const MetricSeries* occluded = r.find_series("occluded_pct");
-  for (TimestampGap& g : gaps) g.picture_jumps = picture_jumps(occluded, in_gap, static_cast<size_t>(g.frame));
+  for (TimestampGap& g : gaps)
+    g.picture_jumps = picture_jumps(occluded, in_gap, static_cast<size_t>(g.frame));
   return gaps;
 }
 

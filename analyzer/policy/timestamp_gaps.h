@@ -13,9 +13,9 @@
 namespace clipwarden {
 
 struct TimestampGap {
-  int64_t frame = 0;           // the first frame after the gap
-  int missing = 0;             // frames the gap leaves out (decode::missing_frames)
-  bool picture_jumps = true;   // the picture changes across it as frames were lost
+  int64_t frame = 0;          // the first frame after the gap
+  int missing = 0;            // frames the gap leaves out (decode::missing_frames)
+  bool picture_jumps = true;  // the picture changes across it as frames were lost
 };
 
 // The gaps between analysed frames. A gap's picture jumps when the share of

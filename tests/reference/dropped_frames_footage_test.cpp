@@ -49,15 +49,16 @@ TEST(DroppedFramesFootage, FramesRemovedFromAnEvenlyTimedClipAreFound) {
   TempDir dir;
   const std::string clip = dir.file("gap.mkv");
   // Frames 20-23 of the first 40 removed; the rest keep their times.
-  const auto made = run_command({"ffmpeg", "-nostdin", "-v", "error", "-y", "-i", vtest, "-frames:v", "40",
-                                 "-vf", "select='not(between(n\\,20\\,23))'", "-fps_mode", "passthrough",
-                                 "-c:v", "ffv1", clip});
+  const auto made = run_command({"ffmpeg", "-nostdin", "-v", "error", "-y", "-i", vtest,
+                                 "-frames:v", "40", "-vf", "select='not(between(n\\,20\\,23))'",
+                                 "-fps_mode", "passthrough", "-c:v", "ffv1", clip});
   ASSERT_EQ(made.exit_code, 0) << made.err;
   const Report r = analyse_with_defaults(clip);
   EXPECT_EQ(r.summary.stream.dropped_frames, 4);
   bool found = false;
   for (const std::string& reason : r.verdict.reasons)
-    if (reason.find("stream dropped_frames 4 >= review 3 (frame 20,") != std::string::npos) found = true;
+    if (reason.find("stream dropped_frames 4 >= review 3 (frame 20,") != std::string::npos)
+      found = true;
   EXPECT_TRUE(found) << "no dropped-frames review at frame 20";
 }
 

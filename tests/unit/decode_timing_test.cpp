@@ -92,8 +92,8 @@ TEST(StreamTiming, IrregularCaptureCountsOnlyIntervalsNearAWholeMultiple) {
   EXPECT_EQ(timing.facts().dropped_frames, 1);
   EXPECT_EQ(clipwarden::decode::missing_frames(10, 6), 0);
   EXPECT_EQ(clipwarden::decode::missing_frames(11, 6), 1);
-  EXPECT_EQ(clipwarden::decode::missing_frames(9, 6), 0);     // 1.5
-  EXPECT_EQ(clipwarden::decode::missing_frames(36, 6), 5);    // 6 intervals
-  EXPECT_EQ(clipwarden::decode::missing_frames(27, 6), 0);    // 4.5: not whole
-  EXPECT_EQ(clipwarden::decode::missing_frames(5, 0), 0);     // no nominal interval
+  EXPECT_EQ(clipwarden::decode::missing_frames(9, 6), 0);   // 1.5
+  EXPECT_EQ(clipwarden::decode::missing_frames(36, 6), 5);  // 6 intervals
+  EXPECT_EQ(clipwarden::decode::missing_frames(27, 6), 0);  // 4.5: not whole
+  EXPECT_EQ(clipwarden::decode::missing_frames(5, 0), 0);   // no nominal interval
 }

@@ -123,7 +123,8 @@ TEST(GateEvaluate, StreamMismatchDroppedFramesAndDecodeWarningsReview) {
   // (timestamp_gaps.h): 7% against 1% does, 1.2% against 1% does not.
   Report jumps = dropped;
   add_series(jumps, "occluded_pct", 1.0, 7.0, 30, 30);
-  EXPECT_TRUE(has_reason(evaluate_policy(jumps, default_policy()), "stream dropped_frames 4 >= review 3"));
+  EXPECT_TRUE(
+      has_reason(evaluate_policy(jumps, default_policy()), "stream dropped_frames 4 >= review 3"));
   Report holds = dropped;
   add_series(holds, "occluded_pct", 1.0, 1.2, 30, 30);
   EXPECT_FALSE(has_reason(evaluate_policy(holds, default_policy()), "stream dropped_frames"))
