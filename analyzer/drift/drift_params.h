@@ -53,6 +53,11 @@ struct DriftParams {
   // The combined drift scale: each aspect divided by the level at which a
   // reviewer sees a clear departure, so drift 1.0 = "clearly visible".
   double colour_unit_de00 = 20;    // CIEDE2000 of mean colour
+  // CIEDE2000 of mean colour with the object's own brightness change taken
+  // out: light and shade on a moving object (walking through shadow,
+  // turning toward a window, exposure) scale its linear-light colour and
+  // leave this near 0, so its level can sit closer to what a viewer sees.
+  double own_colour_unit_de00 = 10;
   double structure_unit = 0.6;     // gradient-orientation measure distance
   double size_unit_log = std::log(1.3);  // 30% larger or 23% smaller within the size window
   double size_window_s = 2.0;

@@ -137,7 +137,7 @@ TrackedObject to_tracked_object(const ObjectTrack& object, int frame_width, int 
   }
   nlohmann::json frames = nlohmann::json::array(), boxes = nlohmann::json::array(),
                  boxes_frac = nlohmann::json::array(), drift = nlohmann::json::array(),
-                 colour = nlohmann::json::array(), structure = nlohmann::json::array(),
+                 colour = nlohmann::json::array(), own_colour = nlohmann::json::array(), structure = nlohmann::json::array(),
                  size = nlohmann::json::array(), size_window = nlohmann::json::array(),
                  visible = nlohmann::json::array();
   std::vector<double> t, drift_values, colour_values;
@@ -152,6 +152,7 @@ TrackedObject to_tracked_object(const ObjectTrack& object, int frame_width, int 
                           number_or_null(s.box.height / hgt, 1e-4)});
     drift.push_back(number_or_null(s.drift, 1e-4));
     colour.push_back(number_or_null(s.color_de00, 1e-3));
+    own_colour.push_back(number_or_null(s.own_colour_de00, 1e-3));
     structure.push_back(number_or_null(s.structure, 1e-4));
     size.push_back(number_or_null(s.size_pct, 1e-2));
     size_window.push_back(number_or_null(s.size_window_pct, 1e-2));
@@ -169,6 +170,7 @@ TrackedObject to_tracked_object(const ObjectTrack& object, int frame_width, int 
       {"boxes_frac", std::move(boxes_frac)},
       {"drift", std::move(drift)},
       {"color_de00", std::move(colour)},
+      {"own_color_de00", std::move(own_colour)},
       {"structure", std::move(structure)},
       {"size_pct", std::move(size)},
       {"size_window_pct", std::move(size_window)},

@@ -287,6 +287,7 @@ void DriftTracker::add_object(const RegionProposal& region, ObjectKind kind,
   first.box = cv::Rect2f(region.box);
   first.drift = first.color_de00 = first.structure = first.size_pct = first.size_window_pct = 0;
   first.visible_fraction = 1;
+  if (kind == ObjectKind::moving) first.own_colour_de00 = 0;
   object.history.push_back(first);
   objects_.push_back(std::move(object));
 }

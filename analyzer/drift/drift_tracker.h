@@ -61,6 +61,8 @@ struct PointCounts {
 // How an object looks this frame against its reference.
 struct ObjectLook {
   double colour_de00 = 0;
+  // With the object's brightness change removed; moving objects only.
+  double own_colour_de00 = std::numeric_limits<double>::quiet_NaN();
   cv::Vec3f colour_now, colour_ref;  // mean CIELAB now, and of the reference
   bool measured = false;
 };

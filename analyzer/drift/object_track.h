@@ -53,6 +53,10 @@ struct ObjectSample {
   cv::Rect2f box;
   float drift = kNotMeasured;
   float color_de00 = kNotMeasured;
+  // CIEDE2000 of the mean colour once the object's own brightness change is
+  // taken out (see hue_change_de00 in object_update.cpp): shade, a turn
+  // toward the light or exposure leave it near 0, a repaint does not.
+  float own_colour_de00 = kNotMeasured;
   float structure = kNotMeasured;
   float size_pct = kNotMeasured;         // scale against the first look, camera removed
   float size_window_pct = kNotMeasured;  // scale change over the size window

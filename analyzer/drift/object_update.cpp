@@ -36,6 +36,21 @@ double median_of(std::vector<float>& values, size_t min_count) {
   return *mid;
 }
 
+// CIEDE2000 between `ref` and `now` after `ref` takes `now`'s brightness.
+// A gain k on linear-light XYZ scales f(t) = t^(1/3) by k^(1/3) (above the
+// toe of CIE 15:2004's L* curve), so it scales L* + 16, a* and b* alike:
+// the brightness change of a surface under more or less light is a common
+// scale of (L* + 16, a*, b*). Scaling the reference by the ratio that
+// matches L* leaves only a change of hue and saturation, what a repainted
+// or recoloured surface shows and a shadow does not. The ratio is held to
+// [0.5, 2] (an eighth to eight times the light) so a surface going black
+// does not scale its reference to noise.
+double hue_change_de00(const color::Lab& ref, const color::Lab& now) {
+  const double scale = std::clamp((now.l + 16) / std::max(1.0, ref.l + 16), 0.5, 2.0);
+  const color::Lab lit{scale * (ref.l + 16) - 16, scale * ref.a, scale * ref.b};
+  return color::ciede2000(lit, now);
+}
+
 }  // namespace
 
 void AppearanceSums::add(const TrackPoint& p, const color::Lab& lp, const color::Lab& lc,
@@ -292,6 +307,11 @@ ObjectSample DriftTracker::update_object(const FramePair& pair, ObjectTrack& obj
     const color::Lab pred{s.pred[0] / n, s.pred[1] / n, s.pred[2] / n};
     const color::Lab now{s.now[0] / n, s.now[1] / n, s.now[2] / n};
     look.colour_de00 = color::ciede2000(pred, now);
+    // Moving objects only: the static scene's cells carry the global
+    // illumination fit already, and freeing their brightness as well let a
+    // fade to black read as a hue change (a field scene fading out, ΔE00 10
+    // with the brightness removed, docs/drift.md).
+    if (object.kind == ObjectKind::moving) look.own_colour_de00 = hue_change_de00(pred, now);
     look.colour_now = cv::Vec3f(static_cast<float>(now.l), static_cast<float>(now.a),
                                 static_cast<float>(now.b));
     look.colour_ref = cv::Vec3f(static_cast<float>(pred.l), static_cast<float>(pred.a),
@@ -307,6 +327,7 @@ ObjectSample DriftTracker::update_object(const FramePair& pair, ObjectTrack& obj
   if (!object.unreliable && look.measured && counts.visible * 10 >= inside_count * 6 &&
       looks_like_itself(counts)) {
     sample.color_de00 = static_cast<float>(look.colour_de00);
+    sample.own_colour_de00 = static_cast<float>(look.own_colour_de00);
     sample.colour_now = look.colour_now;
     sample.colour_ref = look.colour_ref;
     sample.structure =
@@ -325,8 +346,10 @@ ObjectSample DriftTracker::update_object(const FramePair& pair, ObjectTrack& obj
     sample.size_window_pct = size_change_over_window(object, sample);
     const double size_log = std::abs(std::log1p(sample.size_window_pct / 100.0));
     const double size = std::min(size_log / params_.size_unit_log, params_.size_cap);
-    sample.drift = static_cast<float>(std::max(
-        {sample.color_de00 / params_.colour_unit_de00, sample.structure / params_.structure_unit, size}));
+    const double own_colour =
+        std::isfinite(sample.own_colour_de00) ? sample.own_colour_de00 / params_.own_colour_unit_de00 : 0.0;
+    sample.drift = static_cast<float>(std::max({sample.color_de00 / params_.colour_unit_de00, own_colour,
+                                                sample.structure / params_.structure_unit, size}));
     if (breaks_continuity(object, sample)) {
       object.unreliable = true;
       object.unreliable_since_s = sample.t_s;

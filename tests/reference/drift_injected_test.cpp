@@ -92,6 +92,40 @@ TEST(DriftInjected, HueRampOnMovingPatchIsColourDrift) {
   EXPECT_GT(o.detail["color_de00_rate_per_s"].get<double>(), 3.0);
 }
 
+// A moderate hue turn: 20 degrees over frames 12-36, about CIEDE2000 11 of
+// the patch's mean colour (the injection set's moderate colour drift is 12).
+// Seen in the picture it is plainly another colour; it must reach review
+// through the brightness-free colour change (unit 10), which the full
+// CIEDE2000 (unit 20) alone would not.
+TEST(DriftInjected, ModerateHueRampReachesReview) {
+  Scene s = base_scene();
+  REQUIRE_SCENE(s);
+  s.scene.patch_state = [](int frame) { return PatchState{20.0 * ramp(frame, 12, 36), 1, 1}; };
+  const Report r = run_drift_on_frames(render_scene(s.scene), s.fps);
+  const double injected = mean_colour_de00(s.scene.patch, rotate_hue(s.scene.patch, 20));
+  ASSERT_LT(injected, 14) << "the ramp is meant to be moderate";
+  const TrackedObject& o = patch_object(r, s);
+  EXPECT_NEAR(object_value(o, "own_color_de00", 44), injected, 0.2 * injected);
+  EXPECT_GE(o.detail["peak_drift"].get<double>(), kReview);
+  EXPECT_LT(peak_drift_except(r, o.id), kSegmentEnter);
+}
+
+// The moving patch alone passes into shade: its linear-light colour falls
+// to 45% (about -1.15 EV) over frames 12-36, the scene's light unchanged, as
+// a person walking under a tree. Its full CIEDE2000 is large (L* drops by
+// about 20), but nothing was recoloured: the brightness-free change must
+// stay near 0 and the patch under the review level.
+TEST(DriftInjected, PatchPassingIntoShadeIsNotReviewed) {
+  Scene s = base_scene();
+  REQUIRE_SCENE(s);
+  s.scene.patch_state = [](int frame) { return PatchState{0, 1, 1, 1 - 0.55 * ramp(frame, 12, 36)}; };
+  const Report r = run_drift_on_frames(render_scene(s.scene), s.fps);
+  const TrackedObject& o = patch_object(r, s);
+  EXPECT_GT(object_value(o, "color_de00", 44), 10) << "the shade is visible";
+  EXPECT_LT(object_value(o, "own_color_de00", 44), 3);
+  EXPECT_LT(o.detail["peak_drift"].get<double>(), kReview);
+}
+
 // A brightness ramp of the whole frame (linear-light gain 1.0 -> 0.55,
 // i.e. about -0.85 EV, over frames 8-40) together with a colour cast
 // (blue gain down to 0.8): every surface changes the same way, so nothing
@@ -102,18 +136,7 @@ TEST(DriftInjected, GlobalBrightnessAndColourRampIsNotDrift) {
   s.scene.frame_filter = [](int frame, cv::Mat& bgr) {
     const double k = ramp(frame, 8, 40);
     const double gain[3] = {(1 - 0.45 * k) * (1 - 0.2 * k), 1 - 0.45 * k, 1 - 0.45 * k};
-    uchar lut[3][256];
-    for (int c = 0; c < 3; ++c) {
-      for (int v = 0; v < 256; ++v) {
-        const double lin = color::srgb_to_linear(v / 255.0) * gain[c];
-        lut[c][v] = cv::saturate_cast<uchar>(color::linear_to_srgb(lin) * 255.0 + 0.5);
-      }
-    }
-    for (int y = 0; y < bgr.rows; ++y) {
-      for (auto *p = bgr.ptr<cv::Vec3b>(y), *end = p + bgr.cols; p != end; ++p) {
-        for (int c = 0; c < 3; ++c) (*p)[c] = lut[c][(*p)[c]];
-      }
-    }
+    scale_linear_light(bgr, gain);
   };
   const Report r = run_drift_on_frames(render_scene(s.scene), s.fps);
   ASSERT_GE(r.objects.size(), 2u);

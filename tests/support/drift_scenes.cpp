@@ -40,6 +40,21 @@ cv::Mat rotate_hue(const cv::Mat& bgr, double degrees) {
   return out;
 }
 
+void scale_linear_light(cv::Mat& bgr, const double gain[3]) {
+  uchar lut[3][256];
+  for (int c = 0; c < 3; ++c) {
+    for (int v = 0; v < 256; ++v) {
+      const double lin = color::srgb_to_linear(v / 255.0) * gain[c];
+      lut[c][v] = cv::saturate_cast<uchar>(color::linear_to_srgb(lin) * 255.0 + 0.5);
+    }
+  }
+  for (int y = 0; y < bgr.rows; ++y) {
+    for (auto *p = bgr.ptr<cv::Vec3b>(y), *end = p + bgr.cols; p != end; ++p) {
+      for (int c = 0; c < 3; ++c) (*p)[c] = lut[c][(*p)[c]];
+    }
+  }
+}
+
 double mean_colour_de00(const cv::Mat& a, const cv::Mat& b) {
   auto mean_lab = [](const cv::Mat& m) {
     color::Lab sum{};
@@ -66,7 +81,11 @@ std::vector<cv::Mat> render_scene(const DriftScene& scene) {
     cv::warpAffine(scene.background, frame, shift, scene.size, cv::INTER_LINEAR,
                    cv::BORDER_REFLECT);
     const PatchState state = scene.patch_state(f);
-    cv::Mat patch = state.hue_deg != 0 ? rotate_hue(scene.patch, state.hue_deg) : scene.patch;
+    cv::Mat patch = state.hue_deg != 0 ? rotate_hue(scene.patch, state.hue_deg) : scene.patch.clone();
+    if (state.gain != 1) {
+      const double gain[3] = {state.gain, state.gain, state.gain};
+      scale_linear_light(patch, gain);
+    }
     // The patch is drawn scaled about its centre, at a sub-pixel position.
     const cv::Point2f corner = scene.patch_start + scene.patch_px_per_frame * static_cast<float>(f);
     const cv::Point2f centre = corner + cv::Point2f(patch.cols / 2.0f, patch.rows / 2.0f);

@@ -15,6 +15,7 @@ struct PatchState {
   double hue_deg = 0;  // rotation of CIELAB hue of the patch's pixels
   double scale = 1;    // size of the patch relative to its first look
   double alpha = 1;    // opacity
+  double gain = 1;     // linear-light gain on the patch (light and shade)
 };
 
 struct DriftScene {
@@ -35,6 +36,10 @@ std::vector<cv::Mat> render_scene(const DriftScene& scene);
 // Rotates the CIELAB hue of every pixel by `degrees` (L* and chroma kept),
 // back to 8-bit sRGB with clamping.
 cv::Mat rotate_hue(const cv::Mat& bgr, double degrees);
+
+// Multiplies each channel's linear-light value by `gain[c]` (B, G, R), as
+// more or less light on the surface (IEC 61966-2-1 sRGB transfer), in place.
+void scale_linear_light(cv::Mat& bgr, const double gain[3]);
 
 // CIEDE2000 between the mean CIELAB colours of two images of the same size.
 double mean_colour_de00(const cv::Mat& a, const cv::Mat& b);

@@ -82,7 +82,7 @@ Report full_report() {
   o.detail = nlohmann::json::parse(R"({
     "kind": "moving", "reference_frame": 1, "working_size": [320, 180], "frames": [1, 2],
     "boxes": [[10, 20, 30, 40], [12, 20, 30, 40]], "boxes_frac": [[0.5, 0.25, 0.125, 0.0625], [null, null, null, null]],
-    "drift": [0, 1.5], "color_de00": [0, 3.5], "structure": [0, 0.25], "size_pct": [0, -12.5],
+    "drift": [0, 1.5], "color_de00": [0, 3.5], "own_color_de00": [0, 2.5], "structure": [0, 0.25], "size_pct": [0, -12.5],
     "size_window_pct": [0, -6.25], "visible_pct": [100, 50], "peak_drift": 1.5, "peak_frame": 2,
     "drift_rate_per_s": 3, "color_de00_rate_per_s": 7,
     "drift_segments": [{"start_frame": 1, "end_frame": 2, "start_s": 0.5, "end_s": 1, "peak": 1.5, "peak_frame": 2}]
@@ -121,7 +121,7 @@ const char* kFullReportJson = R"json({
   "objects": [{"id": 7, "first_frame": 1, "last_frame": 2, "vanished": true, "end_reason": "vanished",
     "kind": "moving", "reference_frame": 1, "working_size": [320, 180], "frames": [1, 2],
     "boxes": [[10, 20, 30, 40], [12, 20, 30, 40]], "boxes_frac": [[0.5, 0.25, 0.125, 0.0625], [null, null, null, null]],
-    "drift": [0, 1.5], "color_de00": [0, 3.5], "structure": [0, 0.25], "size_pct": [0, -12.5],
+    "drift": [0, 1.5], "color_de00": [0, 3.5], "own_color_de00": [0, 2.5], "structure": [0, 0.25], "size_pct": [0, -12.5],
     "size_window_pct": [0, -6.25], "visible_pct": [100, 50], "peak_drift": 1.5, "peak_frame": 2,
     "drift_rate_per_s": 3, "color_de00_rate_per_s": 7,
     "drift_segments": [{"start_frame": 1, "end_frame": 2, "start_s": 0.5, "end_s": 1, "peak": 1.5, "peak_frame": 2}]}],
