@@ -1,68 +1,19 @@
 // Content and settings hashes for the results store (SHA-256, FIPS 180-4,
-// computed by libavutil's implementation).
+// analyzer/core/sha256.h).
 #include <algorithm>
-#include <cerrno>
-#include <cstring>
 #include <filesystem>
-#include <fstream>
-#include <memory>
 
-extern "C" {
-#include <libavutil/mem.h>
-#include <libavutil/sha.h>
-}
-
+#include "analyzer/core/sha256.h"
 #include "clipwarden/clip_source.h"
 #include "clipwarden/store.h"
 #include "clipwarden/version.h"
 
 namespace clipwarden {
-namespace {
-
-class Sha256 {
- public:
-  Sha256() : ctx_(av_sha_alloc()) { av_sha_init(ctx_.get(), 256); }
-  void update(const void* data, size_t size) {
-    av_sha_update(ctx_.get(), static_cast<const uint8_t*>(data), size);
-  }
-  std::string hex() {
-    uint8_t digest[32];
-    av_sha_final(ctx_.get(), digest);
-    static const char* digits = "0123456789abcdef";
-    std::string out;
-    for (uint8_t b : digest) {
-      out.push_back(digits[b >> 4]);
-      out.push_back(digits[b & 15]);
-    }
-    return out;
-  }
-
- private:
-  struct Free {
-    void operator()(AVSHA* p) const { av_free(p); }
-  };
-  std::unique_ptr<AVSHA, Free> ctx_;
-};
-
-Expected<std::string> file_sha256(const std::string& path) {
-  std::ifstream in(path, std::ios::binary);
-  if (!in) return input_error(path, std::string("cannot open: ") + std::strerror(errno));
-  Sha256 sha;
-  std::vector<char> buffer(1 << 20);
-  while (in) {
-    in.read(buffer.data(), static_cast<std::streamsize>(buffer.size()));
-    if (in.gcount() > 0) sha.update(buffer.data(), static_cast<size_t>(in.gcount()));
-  }
-  if (in.bad()) return input_error(path, "read error");
-  return sha.hex();
-}
-
-}  // namespace
 
 std::string sha256_hex(std::string_view bytes) {
   Sha256 sha;
-  sha.update(bytes.data(), bytes.size());
-  return sha.hex();
+  sha.update(bytes);
+  return sha.hex_digest();
 }
 
 Expected<std::string> content_sha256(const std::string& clip_path) {
@@ -71,7 +22,7 @@ Expected<std::string> content_sha256(const std::string& clip_path) {
   // a clip must be refused, not read until it ends (it may never end).
   if (auto st = check_clip_path(clip_path); !st) return st.error();
   std::error_code ec;
-  if (!fs::is_directory(clip_path, ec)) return file_sha256(clip_path);
+  if (!fs::is_directory(clip_path, ec)) return sha256_file(clip_path);
   std::vector<fs::path> files;
   for (const auto& entry : fs::directory_iterator(clip_path, ec))
     if (entry.is_regular_file()) files.push_back(entry.path());
@@ -79,7 +30,7 @@ Expected<std::string> content_sha256(const std::string& clip_path) {
   std::sort(files.begin(), files.end());
   std::string listing;
   for (const auto& f : files) {
-    auto h = file_sha256(f.string());
+    auto h = sha256_file(f.string());
     if (!h) return h.error();
     listing += f.filename().string() + " " + *h + "\n";
   }

@@ -1,7 +1,7 @@
 // sha256_file against coreutils sha256sum on the same bytes: a real clip
 // from opencv-doc (several MiB, many 1 MiB read chunks) and small files
 // around the 64-byte block boundary, plus the FIPS 180-2 Appendix B
-// messages used in tests/unit/decode_sha256_test.cpp.
+// messages used in tests/unit/sha256_test.cpp.
 #include <gtest/gtest.h>
 
 #include <fstream>

@@ -1,4 +1,4 @@
-// SHA-256 (analyzer/decode/sha256.*). Expected digests: FIPS 180-2,
+// SHA-256 (analyzer/core/sha256.*, libavutil underneath). Expected digests: FIPS 180-2,
 // Appendix B (B.1 "abc", B.2 the 448-bit two-block message, B.3 one million
 // 'a'), as recalled from memory and confirmed with coreutils sha256sum while
 // writing this test (tests/reference/decode_sha256sum_test.cpp repeats that
@@ -8,9 +8,9 @@
 #include <cmath>
 #include <string>
 
-#include "analyzer/decode/sha256.h"
+#include "analyzer/core/sha256.h"
 
-using clipwarden::decode::Sha256;
+using clipwarden::Sha256;
 
 namespace {
 std::string digest(const std::string& message) {
