@@ -7,6 +7,8 @@
 #include <numbers>
 #include <numeric>
 
+#include "analyzer/frame/series_math.h"
+
 namespace clipwarden::stats {
 
 // ---- SplitMix64 ---------------------------------------------------------------
@@ -277,14 +279,6 @@ std::vector<double> bootstrap_means(std::span<const double> values, int resample
   return means;
 }
 
-double quantile_sorted(std::span<const double> sorted, double q) {
-  if (sorted.empty() || !(q >= 0.0 && q <= 1.0)) return std::numeric_limits<double>::quiet_NaN();
-  const double h = static_cast<double>(sorted.size() - 1) * q;
-  const auto lo = static_cast<size_t>(std::floor(h));
-  const size_t hi = std::min(lo + 1, sorted.size() - 1);
-  return sorted[lo] + (h - static_cast<double>(lo)) * (sorted[hi] - sorted[lo]);
-}
-
 ConfidenceInterval bca_interval_of_mean(std::span<const double> values,
                                         std::span<const double> bootstrap_distribution,
                                         double confidence_level) {
@@ -324,8 +318,8 @@ ConfidenceInterval bca_interval_of_mean(std::span<const double> values,
     const double s = ci.bias_correction_z0 + z;
     return normal_cdf(ci.bias_correction_z0 + s / (1.0 - ci.acceleration * s));
   };
-  ci.low = quantile_sorted(sorted, adjusted(z_alpha));
-  ci.high = quantile_sorted(sorted, adjusted(-z_alpha));
+  ci.low = quantile_of_sorted(sorted, adjusted(z_alpha));
+  ci.high = quantile_of_sorted(sorted, adjusted(-z_alpha));
   return ci;
 }
 
@@ -362,11 +356,7 @@ double mean_of(std::span<const double> values) {
 }
 
 double median_of(std::span<const double> values) {
-  if (values.empty()) return std::numeric_limits<double>::quiet_NaN();
-  std::vector<double> v(values.begin(), values.end());
-  std::sort(v.begin(), v.end());
-  const size_t h = v.size() / 2;
-  return v.size() % 2 ? v[h] : 0.5 * (v[h - 1] + v[h]);
+  return quantile(std::vector<double>(values.begin(), values.end()), 0.5);
 }
 
 }  // namespace clipwarden::stats

@@ -119,10 +119,6 @@ ConfidenceInterval bca_interval_of_mean(std::span<const double> values,
 ConfidenceInterval bca_interval_of_mean(std::span<const double> values,
                                         const BootstrapOptions& options = {});
 
-// The q-quantile (0 <= q <= 1) of sorted values by linear interpolation
-// between order statistics (Hyndman & Fan 1996 definition 7).
-double quantile_sorted(std::span<const double> sorted, double q);
-
 // ---- multiple comparisons and summaries ----------------------------------------
 
 // Holm (1979) step-down adjusted p-values, in the input order. NaN entries

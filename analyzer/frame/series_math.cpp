@@ -15,12 +15,16 @@ std::vector<double> defined_values(std::span<const double> series) {
 }
 
 double quantile(std::vector<double> values, double q) {
-  if (values.empty()) return std::numeric_limits<double>::quiet_NaN();
   std::sort(values.begin(), values.end());
-  const double pos = q * static_cast<double>(values.size() - 1);
+  return quantile_of_sorted(values, q);
+}
+
+double quantile_of_sorted(std::span<const double> sorted, double q) {
+  if (sorted.empty() || !(q >= 0.0 && q <= 1.0)) return std::numeric_limits<double>::quiet_NaN();
+  const double pos = q * static_cast<double>(sorted.size() - 1);
   const size_t lo = static_cast<size_t>(std::floor(pos));
-  const size_t hi = std::min(lo + 1, values.size() - 1);
-  return values[lo] + (pos - static_cast<double>(lo)) * (values[hi] - values[lo]);
+  const size_t hi = std::min(lo + 1, sorted.size() - 1);
+  return sorted[lo] + (pos - static_cast<double>(lo)) * (sorted[hi] - sorted[lo]);
 }
 
 double median_absolute_deviation(const std::vector<double>& values) {

@@ -13,6 +13,10 @@ std::vector<double> defined_values(std::span<const double> series);
 // numpy.percentile's default method; NaN when none are defined.
 double quantile(std::vector<double> values, double q);
 
+// The same on values already sorted ascending (no copy); NaN when empty or
+// when q lies outside [0,1].
+double quantile_of_sorted(std::span<const double> sorted, double q);
+
 // Median absolute deviation about the median (unscaled).
 double median_absolute_deviation(const std::vector<double>& values);
 

@@ -7,6 +7,7 @@
 #include <limits>
 
 #include "analyzer/compare/paired_stats.h"
+#include "analyzer/frame/series_math.h"
 
 namespace st = clipwarden::stats;
 
@@ -208,10 +209,11 @@ TEST(Bootstrap, FixedSeedReproducesAndIntervalCoversTheMean) {
 }
 
 TEST(Summaries, QuantileMeanMedian) {
-  // Hyndman & Fan definition 7: h = (n-1) q; 0.25 of 1..5 is 2, 0.1 is 1.4.
+  // Hyndman & Fan (1996) definition 7, the percentile intervals' quantile:
+  // h = (n-1) q; 0.25 of 1..5 is 2, 0.1 is 1.4.
   const std::vector<double> v = {1, 2, 3, 4, 5};
-  EXPECT_DOUBLE_EQ(st::quantile_sorted(v, 0.25), 2.0);
-  EXPECT_DOUBLE_EQ(st::quantile_sorted(v, 0.1), 1.4);
+  EXPECT_DOUBLE_EQ(clipwarden::quantile_of_sorted(v, 0.25), 2.0);
+  EXPECT_DOUBLE_EQ(clipwarden::quantile_of_sorted(v, 0.1), 1.4);
   EXPECT_DOUBLE_EQ(st::median_of(std::vector<double>{4, 1, 3, 2}), 2.5);
   EXPECT_DOUBLE_EQ(st::mean_of(v), 3.0);
 }
