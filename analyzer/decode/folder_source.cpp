@@ -96,10 +96,10 @@ class FolderSource final : public ClipSource {
   const ClipInfo& info() const override { return info_; }
   StreamFacts stream_facts() const override { return facts_; }
 
-  Expected<bool> read(DecodedFrame& out) override {
+  Expected<FrameRead> read(DecodedFrame& out) override {
     if (next_ >= files_.size()) {
       facts_ = timing_.facts();
-      return false;
+      return FrameRead::end_of_clip;
     }
     const std::string& file = files_[next_];
     if (next_ > 0) {  // the first picture was decoded at open
@@ -116,7 +116,7 @@ class FolderSource final : public ClipSource {
     ++next_;
     auto converted = scaler_.convert(*frame_, out.bgr, file);
     if (!converted) return converted.error();
-    return true;
+    return FrameRead::frame;
   }
 
  private:

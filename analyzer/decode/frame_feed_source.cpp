@@ -28,14 +28,14 @@ class FrameFeedSource final : public ClipSource {
   const ClipInfo& info() const override { return info_; }
   StreamFacts stream_facts() const override { return facts_; }
 
-  Expected<bool> read(DecodedFrame& out) override {
-    if (done_) return false;
+  Expected<FrameRead> read(DecodedFrame& out) override {
+    if (done_) return FrameRead::end_of_clip;
     const std::string subject = info_.path + ": frame " + std::to_string(next_);
     if (next_picture_.empty()) {
       cv::Mat picture;
       auto more = feed_(picture);
       if (!more) return more.error();
-      if (!*more) return finish();
+      if (*more == FrameRead::end_of_clip) return finish();
       auto rgb8 = rgb8_picture(picture, subject);
       if (!rgb8) return rgb8.error();
       next_picture_ = std::move(*rgb8);
@@ -55,17 +55,17 @@ class FrameFeedSource final : public ClipSource {
     out.t_s = timing_.add(next_);
     ++next_;
     if (auto scaled = scaler_.convert(*frame_, out.bgr, info_.path); !scaled) return scaled.error();
-    return true;
+    return FrameRead::frame;
   }
 
  private:
-  Expected<bool> finish() {
+  Expected<FrameRead> finish() {
     done_ = true;
     facts_ = timing_.facts();
     // Exact now, whatever was announced.
     info_.frame_count = next_;
     info_.duration_s = static_cast<double>(next_) / info_.fps;
-    return false;
+    return FrameRead::end_of_clip;
   }
 
   FrameFeed feed_;
@@ -112,7 +112,7 @@ Expected<std::unique_ptr<ClipSource>> open_frame_feed(FrameFeed feed, const Fram
   cv::Mat first;
   auto more = feed(first);
   if (!more) return more.error();
-  if (!*more) return input_error(info.name, "no frames given");
+  if (*more == FrameRead::end_of_clip) return input_error(info.name, "no frames given");
   auto rgb8 = rgb8_picture(first, info.name + ": frame 0");
   if (!rgb8) return rgb8.error();
   if (int64_t{rgb8->cols} * rgb8->rows > decode::kMaxPixels)

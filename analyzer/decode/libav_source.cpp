@@ -104,10 +104,10 @@ class LibavSource final : public ClipSource {
   const ClipInfo& info() const override { return info_; }
   StreamFacts stream_facts() const override { return facts_; }
   std::vector<std::string> notes() const override { return notes_; }
-  Expected<bool> read(DecodedFrame& out) override;
+  Expected<FrameRead> read(DecodedFrame& out) override;
 
  private:
-  Expected<bool> finish();
+  Expected<FrameRead> finish();
   int64_t listed_sample_count() const { return index_frame_count(format_.get(), video_index_); }
   Status feed_decoder();
   Status note_failure(int code);
@@ -137,8 +137,10 @@ class LibavSource final : public ClipSource {
   int64_t frame_packets_ = 0;  // video packets that should each give a frame
 };
 
-Expected<bool> LibavSource::read(DecodedFrame& out) {
-  if (finished_) return end_error_ ? Expected<bool>(*end_error_) : Expected<bool>(false);
+Expected<FrameRead> LibavSource::read(DecodedFrame& out) {
+  if (finished_)
+    return end_error_ ? Expected<FrameRead>(*end_error_)
+                      : Expected<FrameRead>(FrameRead::end_of_clip);
   for (;;) {
     const int rc = avcodec_receive_frame(decoder_.get(), frame_.get());
     if (rc == 0) break;
@@ -160,7 +162,7 @@ Expected<bool> LibavSource::read(DecodedFrame& out) {
   auto converted = scaler_.convert(*frame_, out.bgr, path_);
   av_frame_unref(frame_.get());
   if (!converted) return converted.error();
-  return true;
+  return FrameRead::frame;
 }
 
 // Reads packets until one video packet went to the decoder (or the file
@@ -204,7 +206,7 @@ Status LibavSource::note_failure(int code) {
   return *end_error_;
 }
 
-Expected<bool> LibavSource::finish() {
+Expected<FrameRead> LibavSource::finish() {
   finished_ = true;
   facts_ = timing_.facts();
   facts_.decode_errors = decode_errors_;
@@ -239,7 +241,8 @@ Expected<bool> LibavSource::finish() {
                                         std::to_string(listed) +
                                         " frames the container lists could be decoded");
   }
-  return end_error_ ? Expected<bool>(*end_error_) : Expected<bool>(false);
+  return end_error_ ? Expected<FrameRead>(*end_error_)
+                    : Expected<FrameRead>(FrameRead::end_of_clip);
 }
 
 }  // namespace

@@ -68,7 +68,7 @@ using AvioPtr = std::unique_ptr<AVIOContext, AvioFreer>;
 class MemorySource final : public ClipSource {
  public:
   const ClipInfo& info() const override { return reader_->info(); }
-  Expected<bool> read(DecodedFrame& frame) override { return reader_->read(frame); }
+  Expected<FrameRead> read(DecodedFrame& frame) override { return reader_->read(frame); }
   StreamFacts stream_facts() const override { return reader_->stream_facts(); }
 
   std::unique_ptr<MemoryBytes> memory_;

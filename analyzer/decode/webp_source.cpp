@@ -89,10 +89,10 @@ class WebpSource final : public ClipSource {
   const ClipInfo& info() const override { return info_; }
   StreamFacts stream_facts() const override { return facts_; }
 
-  Expected<bool> read(DecodedFrame& out) override {
+  Expected<FrameRead> read(DecodedFrame& out) override {
     if (!WebPAnimDecoderHasMoreFrames(file_->decoder.get())) {
       facts_ = timing_.facts();
-      return false;
+      return FrameRead::end_of_clip;
     }
     uint8_t* canvas = nullptr;
     int end_ms = 0;
@@ -111,7 +111,7 @@ class WebpSource final : public ClipSource {
     // libwebp gives each frame's end time; it starts where the previous ended.
     out.t_s = timing_.add(start_ms_, end_ms - start_ms_);
     start_ms_ = end_ms;
-    return true;
+    return FrameRead::frame;
   }
 
  private:

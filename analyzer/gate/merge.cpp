@@ -126,7 +126,7 @@ struct Merger {
       row.report_path = it->second;
       auto present = into.contains(row);
       if (!present) return present.error();
-      if (*present) continue;
+      if (*present == ResultStore::Presence::present) continue;
       if (auto st = into.insert(row); !st) return st;
     }
     return Ok{};

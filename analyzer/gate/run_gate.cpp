@@ -162,7 +162,7 @@ bool find_or_claim(Batch& b, ClipResult& r, std::optional<StoredAnalysis>& found
       r.error = mine.error();
       return true;
     }
-    if (*mine) {
+    if (*mine == ResultStore::Claim::taken) {
       claimed = true;
       return true;
     }
@@ -196,7 +196,7 @@ std::optional<ClipResult> judge(Batch& b, const GateInput& in, bool wait) {
   if (!found || !take_from_store(b, *found, base, r)) {
     if (!claimed) {  // the stored report is gone: analysed again, claimed if free
       auto mine = b.store->claim(r.sha256, b.settings_hash);
-      claimed = mine && *mine;
+      claimed = mine && *mine == ResultStore::Claim::taken;
     }
     analyse_and_store(b, base, r);
   }

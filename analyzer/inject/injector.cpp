@@ -71,7 +71,7 @@ Expected<CutSource> open_cut_source(const std::string& clip_path, ActiveDefect& 
   for (int64_t i = 0; i < start; ++i) {
     auto got = cs.source->read(cs.frame);
     if (!got) return got.error();
-    if (!*got)
+    if (*got == FrameRead::end_of_clip)
       return usage_error("--defect '" + spec.text + "'",
                          "source_start " + std::to_string(start) + " is past the end of " + path);
   }
@@ -86,7 +86,7 @@ Expected<cv::Mat> next_cut_frame(CutSource& cs, cv::Size size) {
   if (!cs.ended) {
     auto got = cs.source->read(cs.frame);
     if (!got) return got.error();
-    if (*got) {
+    if (*got == FrameRead::frame) {
       if (cs.frame.bgr.size() == size) cs.last = cs.frame.bgr.clone();
       else cv::resize(cs.frame.bgr, cs.last, size, 0, 0, cv::INTER_AREA);
     } else {
@@ -125,7 +125,7 @@ class Injector {
     for (;;) {
       auto got = source_->read(frame);
       if (!got) return got.error();
-      if (!*got) break;
+      if (*got == FrameRead::end_of_clip) break;
       if (Status s = process(frame); !s) return s.error();
     }
     return finish();

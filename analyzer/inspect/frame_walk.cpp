@@ -30,7 +30,7 @@ Expected<FrameWalkResult> walk_frames(const std::string& clip_path,
     if (!walk.decode_to_end && result.frames_decoded > last_wanted) break;
     auto more = (*source)->read(current);
     if (!more) return more.error();
-    if (!*more) {
+    if (*more == FrameRead::end_of_clip) {
       result.reached_end = true;
       break;
     }

@@ -35,7 +35,7 @@ void FrameStream::run() {
       error_ = more.error();
       break;
     }
-    if (!*more) break;
+    if (*more == FrameRead::end_of_clip) break;
     prepare_planes(frame.index, frame.t_s, planes->bgr, *planes);
     cadence_.push(std::move(planes), ready);
     busy_ms_ += std::chrono::duration<double, std::milli>(Clock::now() - start).count();

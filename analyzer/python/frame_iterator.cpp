@@ -35,13 +35,13 @@ struct FrameIterator::State {
   int64_t index = 0;
 
   // One frame as a Mat of its own (CV_8UC3 or floating point, RGB).
-  Expected<bool> next(cv::Mat& rgb) {
+  Expected<FrameRead> next(cv::Mat& rgb) {
     py::gil_scoped_acquire gil;
     try {
       PyObject* item = PyIter_Next(iterator.ptr());
       if (!item) {
         if (PyErr_Occurred()) throw py::error_already_set();
-        return false;
+        return FrameRead::end_of_clip;
       }
       const py::object frame = py::reinterpret_steal<py::object>(item);
       const std::string subject = name + ": frame " + std::to_string(index++);
@@ -55,7 +55,7 @@ struct FrameIterator::State {
       const py::array packed = py::array::ensure(array, py::array::c_style);
       rgb.create(static_cast<int>(array.shape(0)), static_cast<int>(array.shape(1)), type);
       std::memcpy(rgb.data, packed.data(), static_cast<size_t>(packed.nbytes()));
-      return true;
+      return FrameRead::frame;
     } catch (py::error_already_set& e) {
       raised = std::make_unique<py::error_already_set>(std::move(e));
       return Error{ErrorKind::internal, name, "the frame iterable raised an exception"};

@@ -21,7 +21,7 @@ class StoppableSource final : public ClipSource {
   const ClipInfo& info() const override { return inner_.info(); }
   StreamFacts stream_facts() const override { return inner_.stream_facts(); }
   std::vector<std::string> notes() const override { return inner_.notes(); }
-  Expected<bool> read(DecodedFrame& frame) override {
+  Expected<FrameRead> read(DecodedFrame& frame) override {
     if (stop_.load()) return Error{ErrorKind::internal, path_, "analysis interrupted"};
     return inner_.read(frame);
   }

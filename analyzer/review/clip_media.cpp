@@ -44,7 +44,7 @@ Expected<std::string> frame_strip_jpeg(const std::string& clip_path, int count, 
   for (;;) {
     auto more = (*source)->read(frame);
     if (!more) return more.error();
-    if (!*more) break;
+    if (*more == FrameRead::end_of_clip) break;
     frames.push_back(scaled_to_height(frame.bgr, height));
   }
   if (frames.empty()) return input_error(clip_path, "has no frames");
@@ -88,7 +88,7 @@ Status write_browser_preview(const std::string& clip_path, const std::string& ou
   for (;;) {
     auto more = (*source)->read(frame);
     if (!more) return more.error();
-    if (!*more) break;
+    if (*more == FrameRead::end_of_clip) break;
     if (frame.t_s <= last_t) continue;  // repeated timestamps: keep the first
     last_t = frame.t_s;
     // 4:2:0 needs even sizes; a crop of one pixel is not visible.

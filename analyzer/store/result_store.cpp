@@ -180,8 +180,8 @@ Expected<std::optional<StoredAnalysis>> ResultStore::find(const std::string& con
   return output_error(path_, std::string("results store: ") + sqlite3_errmsg(db_));
 }
 
-Expected<bool> ResultStore::claim(const std::string& content_sha256,
-                                  const std::string& settings_hash) {
+Expected<ResultStore::Claim> ResultStore::claim(const std::string& content_sha256,
+                                                const std::string& settings_hash) {
   std::lock_guard lock(mutex_);
   auto begun = exec("BEGIN IMMEDIATE");
   if (!begun) return begun.error();
@@ -198,7 +198,7 @@ Expected<bool> ResultStore::claim(const std::string& content_sha256,
   if (rc != SQLITE_ROW && rc != SQLITE_DONE) return fail();
   if (rc == SQLITE_ROW && owner_alive(column_text(held.get(), 0))) {
     if (auto st = exec("COMMIT"); !st) return st.error();
-    return false;
+    return Claim::held_elsewhere;
   }
   // Stored since the caller looked (its writer inserted, then released the
   // claim): nothing to claim, the caller takes the row.
@@ -211,7 +211,7 @@ Expected<bool> ResultStore::claim(const std::string& content_sha256,
   if (found != SQLITE_ROW && found != SQLITE_DONE) return fail();
   if (found == SQLITE_ROW) {
     if (auto st = exec("COMMIT"); !st) return st.error();
-    return false;
+    return Claim::held_elsewhere;
   }
   Statement take(db_,
                  "INSERT OR REPLACE INTO claims (content_sha256, settings_hash, owner, claimed_at) "
@@ -222,7 +222,7 @@ Expected<bool> ResultStore::claim(const std::string& content_sha256,
   take.text(3, this_process());
   if (sqlite3_step(take.get()) != SQLITE_DONE) return fail();
   if (auto st = exec("COMMIT"); !st) return st.error();
-  return true;
+  return Claim::taken;
 }
 
 Status ResultStore::release(const std::string& content_sha256, const std::string& settings_hash) {
@@ -292,7 +292,7 @@ Status ResultStore::insert(StoredAnalysis& row) {
   return exec("COMMIT");
 }
 
-Expected<bool> ResultStore::contains(const StoredAnalysis& row) {
+Expected<ResultStore::Presence> ResultStore::contains(const StoredAnalysis& row) {
   std::lock_guard lock(mutex_);
   Statement s(
       db_,
@@ -304,7 +304,8 @@ Expected<bool> ResultStore::contains(const StoredAnalysis& row) {
   s.text(3, row.clip_id);
   s.text(4, row.created_at);
   const int rc = sqlite3_step(s.get());
-  if (rc == SQLITE_ROW || rc == SQLITE_DONE) return rc == SQLITE_ROW;
+  if (rc == SQLITE_ROW) return Presence::present;
+  if (rc == SQLITE_DONE) return Presence::absent;
   return output_error(path_, std::string("results store: ") + sqlite3_errmsg(db_));
 }
 

@@ -36,6 +36,13 @@ struct DecodedFrame {
   cv::Mat bgr;        // CV_8UC3, working size
 };
 
+// What one read() got. Not a bool: "false" for the end of the clip would
+// read like a failure, and Expected's own test already means "no error".
+enum class FrameRead {
+  frame,        // the next frame was written into the DecodedFrame
+  end_of_clip,  // no more frames; the clip was read to its end
+};
+
 class ClipSource {
  public:
   virtual ~ClipSource() = default;
@@ -45,19 +52,20 @@ class ClipSource {
                                                     const SourceOptions& options);
 
   // What the clip is. frame_count, duration_s and fps are the container's
-  // estimates until read() has returned false; then they are exact, and
+  // estimates until read() has returned end_of_clip; then they are exact, and
   // audio.duration_s / audio.silent_from_s come from the decoded sound.
   // width/height are the displayed size (rotation and pixel aspect
-  // applied). sha256 is left for the caller (sha256_file).
+  // applied). sha256 is left for the caller.
   virtual const ClipInfo& info() const = 0;
 
-  // Next frame into `frame`. Returns false at the end of the clip, or an
-  // input Error when the data is corrupt beyond recovery ("truncated or
-  // unreadable after frame 41 (...)"); packets that fail to decode in the
-  // middle of a stream are skipped.
-  virtual Expected<bool> read(DecodedFrame& frame) = 0;
+  // Next frame into `frame`: FrameRead::frame, FrameRead::end_of_clip at the
+  // end, or an input Error when the data is corrupt beyond recovery
+  // ("truncated or unreadable after frame 41 (...)"); packets that fail to
+  // decode in the middle of a stream are skipped.
+  virtual Expected<FrameRead> read(DecodedFrame& frame) = 0;
 
-  // Timing facts measured while reading (valid after read() returned false).
+  // Timing facts measured while reading (valid after read() returned
+  // end_of_clip).
   virtual StreamFacts stream_facts() const = 0;
 
   // Cautions about the file that do not stop the analysis (e.g. stray bytes

@@ -4,6 +4,7 @@
 #pragma once
 
 #include <string>
+#include <type_traits>
 #include <utility>
 #include <variant>
 
@@ -40,8 +41,14 @@ struct Ok {};
 
 // A value or an Error. Deliberately small: check with ok(), then use value()
 // or error(). Accessing the wrong side is a programming error (asserts).
+// Its bool test means "no error", never the value: a call with two outcomes
+// besides failing returns an enum naming both (as ClipSource::read does),
+// since `if (!result)` on an Expected<bool> reads like either.
 template <class T>
 class [[nodiscard]] Expected {
+  static_assert(!std::is_same_v<std::remove_cv_t<T>, bool>,
+                "Expected<bool> can be misread as success; return an enum that names both outcomes");
+
  public:
   Expected(T value) : state_(std::move(value)) {}
   Expected(Error error) : state_(std::move(error)) {}

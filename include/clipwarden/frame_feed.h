@@ -19,11 +19,11 @@
 
 namespace clipwarden {
 
-// Puts the next picture into `rgb` and returns true, or returns false at the
-// end. A picture is H x W x 3, RGB, of type CV_8UC3 (levels 0-255) or
+// Puts the next picture into `rgb` and returns FrameRead::frame, or returns
+// FrameRead::end_of_clip at the end. A picture is H x W x 3, RGB, of type CV_8UC3 (levels 0-255) or
 // CV_32FC3 / CV_64FC3 (0-1); every picture has the first one's size. An
 // Error returned here ends the analysis with that error.
-using FrameFeed = std::function<Expected<bool>(cv::Mat& rgb)>;
+using FrameFeed = std::function<Expected<FrameRead>(cv::Mat& rgb)>;
 
 struct FrameFeedInfo {
   std::string name = "frames";  // what the report names as clip.path

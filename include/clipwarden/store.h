@@ -60,15 +60,18 @@ class ResultStore {
   // the new row replaces it.
   Status insert(StoredAnalysis& row);
   // Two gates sharing a store must not both analyse a clip: before
-  // analysing, a gate claims the content under its settings. True when this
-  // process now holds the claim; false when a live process holds it (the
-  // caller waits for that one's row). A claim of a process that has ended
-  // is taken over. release() drops this process's claim.
-  Expected<bool> claim(const std::string& content_sha256, const std::string& settings_hash);
+  // analysing, a gate claims the content under its settings. Claim::taken
+  // when this process now holds the claim; Claim::held_elsewhere when a live
+  // process holds it (the caller waits for that one's row). A claim of a
+  // process that has ended is taken over. release() drops this process's
+  // claim.
+  enum class Claim { taken, held_elsewhere };
+  Expected<Claim> claim(const std::string& content_sha256, const std::string& settings_hash);
   Status release(const std::string& content_sha256, const std::string& settings_hash);
-  // True if a row with the same content, settings, clip id and creation time
-  // exists (merge uses it to never copy a row twice).
-  Expected<bool> contains(const StoredAnalysis& row);
+  // Whether a row with the same content, settings, clip id and creation
+  // time exists (merge uses it to never copy a row twice).
+  enum class Presence { present, absent };
+  Expected<Presence> contains(const StoredAnalysis& row);
   // Every row, oldest first.
   Expected<std::vector<StoredAnalysis>> all();
 

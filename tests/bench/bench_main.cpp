@@ -112,7 +112,7 @@ json our_decode(const std::string& clip, const AnalysisSettings& settings) {
     int64_t frames = 0;
     while (true) {
       auto more = (*source)->read(frame);
-      if (!more || !*more) break;
+      if (!more || *more == FrameRead::end_of_clip) break;
       ++frames;
     }
     return json{{"seconds", seconds_since(start)}, {"frames", frames},

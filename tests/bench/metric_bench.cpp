@@ -70,7 +70,7 @@ int main(int argc, char** argv) {
   DecodedFrame frame;
   while (static_cast<int>(planes.size()) < frames) {
     auto more = (*source)->read(frame);
-    if (!more || !*more) break;
+    if (!more || *more == FrameRead::end_of_clip) break;
     auto p = std::make_unique<FramePlanes>();
     prepare_planes(frame.index, frame.t_s, frame.bgr.clone(), *p);
     planes.push_back(std::move(p));

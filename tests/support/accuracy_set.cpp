@@ -67,7 +67,7 @@ Expected<BaseClip> cut_window(const SetOptions& o, const BaseSource& s, const st
   for (int i = 0; clip.frames < limit; ++i) {
     auto got = (*source)->read(frame);
     if (!got) return got.error();
-    if (!*got) break;
+    if (*got == FrameRead::end_of_clip) break;
     if (i < s.first_frame) continue;
     if (!writer) {
       t0 = frame.t_s;

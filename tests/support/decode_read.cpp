@@ -17,7 +17,7 @@ ReadClip read_clip(const std::string& path, const SourceOptions& options,
       result.error = more.error();
       break;
     }
-    if (!*more) break;
+    if (*more == FrameRead::end_of_clip) break;
     result.times_s.push_back(frame.t_s);
     if (on_frame) on_frame(frame);
   }

@@ -17,13 +17,13 @@ SyntheticSource::SyntheticSource(int64_t frames, double fps, FrameMaker make) : 
   info_.pix_fmt = "bgr24";
 }
 
-Expected<bool> SyntheticSource::read(DecodedFrame& frame) {
-  if (next_ >= info_.frame_count) return false;
+Expected<FrameRead> SyntheticSource::read(DecodedFrame& frame) {
+  if (next_ >= info_.frame_count) return FrameRead::end_of_clip;
   frame.index = next_;
   frame.t_s = next_ / fps_;
   frame.bgr = make_(next_);
   ++next_;
-  return true;
+  return FrameRead::frame;
 }
 
 StreamFacts SyntheticSource::stream_facts() const {

@@ -15,7 +15,7 @@ class SyntheticSource final : public ClipSource {
  public:
   SyntheticSource(int64_t frames, double fps, FrameMaker make);
   const ClipInfo& info() const override { return info_; }
-  Expected<bool> read(DecodedFrame& frame) override;
+  Expected<FrameRead> read(DecodedFrame& frame) override;
   StreamFacts stream_facts() const override;
 
  private:

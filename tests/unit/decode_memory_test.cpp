@@ -47,7 +47,7 @@ std::vector<DecodedFrame> read_all(ClipSource& source) {
     DecodedFrame frame;
     auto more = source.read(frame);
     EXPECT_TRUE(more) << more.error().message();
-    if (!more || !*more) return frames;
+    if (!more || *more == FrameRead::end_of_clip) return frames;
     frames.push_back(frame);
   }
 }
@@ -121,7 +121,7 @@ TEST(DecodeMemory, CutShortBytesEndInAnErrorOrFewerFramesNeverACrash) {
     int frames = 0;
     for (;;) {
       auto more = (*source)->read(frame);
-      if (!more || !*more) break;
+      if (!more || *more == FrameRead::end_of_clip) break;
       ++frames;
     }
     EXPECT_LE(frames, 6) << keep;  // the tail may be index data only

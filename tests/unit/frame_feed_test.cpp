@@ -18,10 +18,10 @@ namespace {
 // A feed over a fixed list of pictures.
 FrameFeed feed_of(std::vector<cv::Mat> pictures) {
   auto next = std::make_shared<size_t>(0);
-  return [pictures = std::move(pictures), next](cv::Mat& rgb) -> Expected<bool> {
-    if (*next >= pictures.size()) return false;
+  return [pictures = std::move(pictures), next](cv::Mat& rgb) -> Expected<FrameRead> {
+    if (*next >= pictures.size()) return FrameRead::end_of_clip;
     rgb = pictures[(*next)++];
-    return true;
+    return FrameRead::frame;
   };
 }
 
@@ -38,7 +38,7 @@ std::string read_error(ClipSource& source) {
   while (true) {
     auto more = source.read(frame);
     if (!more) return more.error().message();
-    if (!*more) return "";
+    if (*more == FrameRead::end_of_clip) return "";
   }
 }
 
@@ -53,14 +53,14 @@ TEST(FrameFeed, PicturesArriveUnchangedAtNativeSize) {
   EXPECT_EQ(source->info().height, 17);
   DecodedFrame frame;
   for (int i = 0; i < 2; ++i) {
-    ASSERT_TRUE(source->read(frame).value());
+    ASSERT_EQ(source->read(frame).value(), FrameRead::frame);
     EXPECT_EQ(frame.index, i);
     EXPECT_DOUBLE_EQ(frame.t_s, i / 10.0);
     cv::Mat expected_bgr;
     cv::cvtColor(i == 0 ? a : b, expected_bgr, cv::COLOR_RGB2BGR);
     EXPECT_EQ(cv::norm(frame.bgr, expected_bgr, cv::NORM_INF), 0.0);
   }
-  EXPECT_FALSE(source->read(frame).value());
+  EXPECT_EQ(source->read(frame).value(), FrameRead::end_of_clip);
   EXPECT_EQ(source->info().frame_count, 2);
   EXPECT_DOUBLE_EQ(source->info().duration_s, 0.2);
 }

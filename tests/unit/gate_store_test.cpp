@@ -103,7 +103,8 @@ TEST(GateStore, InsertFindAndReopen) {
     // The same clip (content, settings, id) is stored once: the re-analysis
     // replaced the older row, so a later merge never sees it twice (the
     // row count after reopening shows it).
-    EXPECT_TRUE(*(*store)->contains(newer));
+    EXPECT_EQ(*(*store)->contains(newer), ResultStore::Presence::present);
+    EXPECT_EQ(*(*store)->contains(row("sha-z", "z")), ResultStore::Presence::absent);
     // The same content under another clip id is another queue entry: kept.
     StoredAnalysis copy = row("sha-a", "a-copy");
     ASSERT_TRUE((*store)->insert(copy).ok());
