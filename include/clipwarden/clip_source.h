@@ -69,7 +69,7 @@ class ClipSource {
   virtual StreamFacts stream_facts() const = 0;
 
   // Cautions about the file that do not stop the analysis (e.g. stray bytes
-  // after an MP4's last box); complete after read() returned false.
+  // after an MP4's last box); complete after read() returned end_of_clip.
   virtual std::vector<std::string> notes() const { return {}; }
 };
 
