@@ -64,19 +64,26 @@ double peak_drift_except(const Report& r, int id) {
 #define REQUIRE_SCENE(s) \
   if (!(s).ok) GTEST_SKIP() << "opencv-doc baboon.jpg / fruits.jpg not installed"
 
+// The patch's hue turns by `degrees` over frames 12-36; `injected` is the
+// CIEDE2000 between its mean colours before and after.
+Report run_hue_ramp(Scene& s, double degrees, double& injected) {
+  s.scene.patch_state = [degrees](int frame) {
+    return PatchState{degrees * ramp(frame, 12, 36), 1, 1};
+  };
+  injected = mean_colour_de00(s.scene.patch, rotate_hue(s.scene.patch, degrees));
+  return run_drift_on_frames(render_scene(s.scene), s.fps);
+}
+
 // A hue rotation of 40 degrees (CIELAB a*b* plane) ramps in over frames
 // 12-36 of the moving patch. Its measured colour drift must match the
 // injected CIEDE2000 between the patch's mean colours before and after,
 // within 15%, and its drift segment must open within 6 frames (0.5 s) of the
 // start of the injection; the static scene must stay below segment level.
-// Known regression after merging the pipeline changes of 2026-12-01: no drift
-// segment is produced any more. Re-enable once fixed.
 TEST(DriftInjected, HueRampOnMovingPatchIsColourDrift) {
   Scene s = base_scene();
   REQUIRE_SCENE(s);
-  s.scene.patch_state = [](int frame) { return PatchState{40.0 * ramp(frame, 12, 36), 1, 1}; };
-  const Report r = run_drift_on_frames(render_scene(s.scene), s.fps);
-  const double injected = mean_colour_de00(s.scene.patch, rotate_hue(s.scene.patch, 40));
+  double injected = 0;
+  const Report r = run_hue_ramp(s, 40, injected);
   const TrackedObject& o = patch_object(r, s);
   EXPECT_EQ(o.detail["kind"], "moving");
   for (int frame : {36, 40, 44}) {
@@ -100,9 +107,8 @@ TEST(DriftInjected, HueRampOnMovingPatchIsColourDrift) {
 TEST(DriftInjected, ModerateHueRampReachesReview) {
   Scene s = base_scene();
   REQUIRE_SCENE(s);
-  s.scene.patch_state = [](int frame) { return PatchState{20.0 * ramp(frame, 12, 36), 1, 1}; };
-  const Report r = run_drift_on_frames(render_scene(s.scene), s.fps);
-  const double injected = mean_colour_de00(s.scene.patch, rotate_hue(s.scene.patch, 20));
+  double injected = 0;
+  const Report r = run_hue_ramp(s, 20, injected);
   ASSERT_LT(injected, 14) << "the ramp is meant to be moderate";
   const TrackedObject& o = patch_object(r, s);
   EXPECT_NEAR(object_value(o, "own_color_de00", 44), injected, 0.2 * injected);
