@@ -44,7 +44,7 @@ extern "C" int LLVMFuzzerTestOneInput(const uint8_t* data, size_t size) {
   clipwarden::DecodedFrame frame;
   for (int i = 0; i < kMaxFrames; ++i) {
     auto more = (*source)->read(frame);
-    if (!more || *more == FrameRead::end_of_clip) break;
+    if (!more || *more == clipwarden::FrameRead::end_of_clip) break;
     if (frame.index != i) contract_broken("frame index is not the decode order");
     if (frame.bgr.type() != CV_8UC3 || frame.bgr.empty())
       contract_broken("frame is not a non-empty 8-bit BGR image");
