@@ -1,4 +1,4 @@
-// compare.json ("clipwarden.compare/2") and writing both output files.
+// compare.json ("clipwarden.compare/1") and writing both output files.
 #include <cmath>
 #include <filesystem>
 

@@ -3,7 +3,7 @@
 // primary family of statistics decides the headline (Holm-adjusted within
 // it); every other statistic is exploratory: shown with its effect size,
 // interval and unadjusted p, never a verdict.
-// Written as DIR/compare.json (schema "clipwarden.compare/2") and a
+// Written as DIR/compare.json (schema "clipwarden.compare/1") and a
 // self-contained DIR/compare.html.
 #pragma once
 
@@ -21,7 +21,7 @@
 
 namespace clipwarden {
 
-inline constexpr const char* kCompareSchema = "clipwarden.compare/2";
+inline constexpr const char* kCompareSchema = "clipwarden.compare/1";
 
 // How clips of A and B are matched. automatic: prompt_id when both inputs
 // are gate folders whose queue lines all carry one, else name.

@@ -140,7 +140,7 @@ TEST(CompareGateFolders, CompareJsonStructureKeyByKey) {
                                                "aggregation", "averaged", "most_clips_per_key",
                                                "settings", "headline", "design", "verdicts",
                                                "metrics", "pairs", "unpaired", "failed"}));
-  EXPECT_EQ(c["schema"], "clipwarden.compare/2");
+  EXPECT_EQ(c["schema"], "clipwarden.compare/1");
   EXPECT_EQ(c["differences"], "B - A");
   EXPECT_EQ(c["settings"]["zero_rule"], "wilcox");
 

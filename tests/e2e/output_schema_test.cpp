@@ -1,5 +1,5 @@
 // The files `clipwarden compare` and `clipwarden inject` write are valid
-// under their JSON Schemas (report/schema/clipwarden.compare-2.schema.json,
+// under their JSON Schemas (report/schema/clipwarden.compare-1.schema.json,
 // clipwarden.inject-truth-1.schema.json), checked by an outside
 // implementation of JSON Schema draft-07: python3-jsonschema from Debian. A
 // document with a field the schema does not state, or a wrong value, must be
@@ -88,7 +88,7 @@ TEST(OutputSchema, CompareJsonIsValid) {
   bad_better["metrics"][0]["better"] = "both";
   missing.erase("pair_by");
   EXPECT_EQ(
-      python_verdicts("clipwarden.compare-2.schema.json", {doc, extra_field, bad_better, missing}),
+      python_verdicts("clipwarden.compare-1.schema.json", {doc, extra_field, bad_better, missing}),
       (std::vector<bool>{true, false, false, false}));
 }
 

@@ -58,7 +58,7 @@ TEST(ComparePage, EmptyComparisonStillRenders) {
   EXPECT_EQ(page.find("<a>"), std::string::npos);
   EXPECT_NE(page.find("</html>"), std::string::npos);
   const auto json = comparison_to_json(c);
-  EXPECT_EQ(json["schema"], "clipwarden.compare/2");
+  EXPECT_EQ(json["schema"], "clipwarden.compare/1");
   EXPECT_TRUE(json["metrics"].empty());
 }
 

@@ -52,7 +52,7 @@ TEST(SchemaDocs, ReportFieldsAreDocumented) {
 }
 
 TEST(SchemaDocs, CompareFieldsAreDocumented) {
-  expect_documented("clipwarden.compare-2.schema.json", "docs/compare.md");
+  expect_documented("clipwarden.compare-1.schema.json", "docs/compare.md");
 }
 
 TEST(SchemaDocs, InjectTruthFieldsAreDocumented) {
