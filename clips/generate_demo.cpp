@@ -15,7 +15,7 @@
 #include <string>
 
 #include "analyzer/inject/frame_effects.h"
-#include "clipwarden/clip_writer.h"
+#include "analyzer/encode/clip_writer.h"
 #include "clipwarden/inject.h"
 #include "lantern_scene.h"
 

@@ -14,7 +14,7 @@ extern "C" {
 }
 
 #include "analyzer/decode/libav_util.h"
-#include "clipwarden/clip_writer.h"
+#include "analyzer/encode/clip_writer.h"
 
 namespace clipwarden {
 

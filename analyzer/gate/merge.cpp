@@ -18,7 +18,7 @@
 #include "analyzer/gate/folder_lock.h"
 #include "clipwarden/gate.h"
 #include "clipwarden/report_io.h"
-#include "clipwarden/store.h"
+#include "analyzer/store/result_store.h"
 
 namespace clipwarden {
 namespace {

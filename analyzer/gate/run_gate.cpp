@@ -35,7 +35,8 @@
 #include "clipwarden/gate.h"
 #include "clipwarden/html_report.h"
 #include "clipwarden/report_io.h"
-#include "clipwarden/store.h"
+#include "analyzer/store/result_store.h"
+#include "analyzer/store/hashing.h"
 #include "clipwarden/version.h"
 
 namespace clipwarden {

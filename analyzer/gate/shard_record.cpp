@@ -9,7 +9,7 @@
 
 #include "clipwarden/gate.h"
 #include "clipwarden/report_io.h"
-#include "clipwarden/store.h"
+#include "analyzer/store/hashing.h"
 
 namespace clipwarden {
 namespace {

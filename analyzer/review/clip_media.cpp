@@ -8,7 +8,7 @@
 #include "analyzer/encode/picture_encoding.h"
 #include "clipwarden/analysis.h"
 #include "clipwarden/clip_source.h"
-#include "clipwarden/clip_writer.h"
+#include "analyzer/encode/clip_writer.h"
 #include "clipwarden/inspect.h"
 
 namespace clipwarden::review {

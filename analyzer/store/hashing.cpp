@@ -5,7 +5,7 @@
 
 #include "analyzer/core/sha256.h"
 #include "clipwarden/clip_source.h"
-#include "clipwarden/store.h"
+#include "analyzer/store/hashing.h"
 #include "clipwarden/version.h"
 
 namespace clipwarden {

@@ -12,7 +12,7 @@
 
 #include "analyzer/core/byte_text.h"
 #include "analyzer/store/sqlite_setup.h"
-#include "clipwarden/store.h"
+#include "analyzer/store/result_store.h"
 
 namespace clipwarden {
 namespace {

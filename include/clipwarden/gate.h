@@ -1,7 +1,7 @@
 // The review-queue gate: many clips in, one verdict per clip out, in a
 // queue a person or a pipeline acts on. Inputs are clips, folders and
 // manifests; results are per-clip reports, DIR/queue.jsonl, DIR/index.html
-// and rows in the results store (include/clipwarden/store.h). A batch never
+// and rows in the results store (analyzer/store/result_store.h). A batch never
 // stops at a bad clip: its error is recorded in its queue line.
 #pragma once
 

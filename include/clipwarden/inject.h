@@ -11,7 +11,7 @@
 
 #include <nlohmann/json.hpp>
 
-#include "clipwarden/clip_writer.h"
+#include "clipwarden/clip_encoding.h"
 #include "clipwarden/error.h"
 
 namespace clipwarden {

@@ -12,7 +12,7 @@
 #include <set>
 #include <thread>
 
-#include "clipwarden/store.h"
+#include "analyzer/store/result_store.h"
 #include "support/clips.h"
 #include "support/gate_files.h"
 

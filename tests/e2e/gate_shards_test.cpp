@@ -7,7 +7,7 @@
 #include <filesystem>
 #include <set>
 
-#include "clipwarden/store.h"
+#include "analyzer/store/result_store.h"
 #include "support/clips.h"
 #include "support/gate_files.h"
 

@@ -20,7 +20,7 @@
 #include <set>
 #include <thread>
 
-#include "clipwarden/store.h"
+#include "analyzer/store/result_store.h"
 #include "support/clips.h"
 #include "support/gate_files.h"
 #include "support/robust_run.h"

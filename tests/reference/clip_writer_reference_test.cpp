@@ -1,4 +1,4 @@
-// The clip writer (clipwarden/clip_writer.h) against outside readers: ffprobe
+// The clip writer (analyzer/encode/clip_writer.h) against outside readers: ffprobe
 // says how many frames the written file holds and when each is shown
 // (best_effort_timestamp_time); our decoder must agree with it and with the
 // times we wrote. FFV1 must decode to the exact input pixels.

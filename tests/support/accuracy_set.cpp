@@ -7,7 +7,7 @@
 #include <fstream>
 
 #include "clipwarden/clip_source.h"
-#include "clipwarden/clip_writer.h"
+#include "analyzer/encode/clip_writer.h"
 #include "clipwarden/inject.h"
 #include "support/clips.h"
 

@@ -9,7 +9,7 @@
 #include <opencv2/core.hpp>
 
 #include "clipwarden/clip_source.h"
-#include "clipwarden/clip_writer.h"
+#include "analyzer/encode/clip_writer.h"
 
 namespace clipwarden::test {
 

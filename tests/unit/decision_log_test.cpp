@@ -5,7 +5,7 @@
 #include <sqlite3.h>
 
 #include "analyzer/store/decision_log.h"
-#include "clipwarden/store.h"
+#include "analyzer/store/result_store.h"
 #include "support/clips.h"
 
 using namespace clipwarden;

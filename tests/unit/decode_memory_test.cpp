@@ -11,7 +11,7 @@
 #include "analyzer/decode/libav_util.h"
 #include "analyzer/decode/memory_source.h"
 #include "clipwarden/clip_source.h"
-#include "clipwarden/clip_writer.h"
+#include "analyzer/encode/clip_writer.h"
 #include "support/clips.h"
 
 using namespace clipwarden;

@@ -14,7 +14,7 @@
 #include "analyzer/cli/gate_output.h"
 #include "clipwarden/gate.h"
 #include "clipwarden/policy.h"
-#include "clipwarden/store.h"
+#include "analyzer/store/result_store.h"
 #include "support/clips.h"
 #include "support/gate_files.h"
 #include "support/gate_fixtures.h"

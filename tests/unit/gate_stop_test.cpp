@@ -13,7 +13,7 @@
 #include <thread>
 
 #include "clipwarden/gate.h"
-#include "clipwarden/store.h"
+#include "analyzer/store/result_store.h"
 #include "support/clips.h"
 #include "support/gate_files.h"
 #include "support/gate_fixtures.h"

@@ -9,7 +9,8 @@
 #include <set>
 #include <thread>
 
-#include "clipwarden/store.h"
+#include "analyzer/store/result_store.h"
+#include "analyzer/store/hashing.h"
 #include "support/clips.h"
 #include "support/gate_files.h"
 

@@ -11,14 +11,11 @@
 #include <mutex>
 #include <optional>
 #include <string>
-#include <string_view>
 #include <vector>
 
 #include <nlohmann/json.hpp>
 
-#include "clipwarden/analysis.h"
 #include "clipwarden/error.h"
-#include "clipwarden/policy.h"
 #include "clipwarden/report.h"
 
 struct sqlite3;
@@ -82,17 +79,5 @@ class ResultStore {
   std::string path_;
   std::mutex mutex_;  // one connection, used by one thread at a time
 };
-
-// Hex SHA-256 of a byte string.
-std::string sha256_hex(std::string_view bytes);
-
-// The store's content key of a clip: the SHA-256 of a file's bytes, or for a
-// folder of frames the SHA-256 of "<name> <sha256 of file>\n" over its
-// files in name order. Errors name the path.
-Expected<std::string> content_sha256(const std::string& clip_path);
-
-// SHA-256 of the canonical settings JSON (threads left out: they do not
-// change results), the canonical policy JSON and the tool version.
-std::string settings_hash(const AnalysisSettings& settings, const Policy& policy);
 
 }  // namespace clipwarden
