@@ -6,24 +6,11 @@
 namespace clipwarden {
 namespace {
 
-// Rows [frame, a, b, c, d] with five numbers; others are skipped.
-std::vector<std::pair<int64_t, cv::Rect2d>> box_rows(const nlohmann::json& rows) {
-  std::vector<std::pair<int64_t, cv::Rect2d>> out;
-  if (!rows.is_array()) return out;
-  for (const auto& row : rows) {
-    if (!row.is_array() || row.size() < 5) continue;
-    bool numeric = true;
-    for (size_t i = 0; i < 5; ++i) numeric = numeric && row[i].is_number();
-    if (!numeric) continue;
-    const cv::Rect2d r(row[1].get<double>(), row[2].get<double>(), row[3].get<double>(),
-                       row[4].get<double>());
-    if (!(r.width > 0 && r.height > 0) || !std::isfinite(r.x + r.y + r.width + r.height)) continue;
-    out.emplace_back(row[0].get<int64_t>(), r);
-  }
-  return out;
+bool usable(const BoxValues& b) {
+  return b.width > 0 && b.height > 0 && std::isfinite(b.x + b.y + b.width + b.height);
 }
 
-cv::Rect to_pixels(const cv::Rect2d& r) {
+cv::Rect to_pixels(const BoxValues& r) {
   const int x = static_cast<int>(std::lround(r.x)), y = static_cast<int>(std::lround(r.y));
   return {x, y, std::max(1, static_cast<int>(std::lround(r.x + r.width)) - x),
           std::max(1, static_cast<int>(std::lround(r.y + r.height)) - y)};
@@ -33,16 +20,17 @@ cv::Rect to_pixels(const cv::Rect2d& r) {
 
 std::vector<ObjectBox> object_boxes(const TrackedObject& object, cv::Size frame_size) {
   std::vector<ObjectBox> out;
-  const auto frac = object.detail.find("boxes_frac");
   const bool use_frac =
-      frac != object.detail.end() && frame_size.area() > 0 && !box_rows(*frac).empty();
-  const auto px = object.detail.find("boxes");
-  if (use_frac) {
-    for (const auto& [frame, r] : box_rows(*frac))
-      out.push_back({frame, to_pixels({r.x * frame_size.width, r.y * frame_size.height,
-                                       r.width * frame_size.width, r.height * frame_size.height})});
-  } else if (px != object.detail.end()) {
-    for (const auto& [frame, r] : box_rows(*px)) out.push_back({frame, to_pixels(r)});
+      frame_size.area() > 0 && std::any_of(object.samples.begin(), object.samples.end(),
+                                            [](const TrackedSample& l) { return usable(l.box_frac); });
+  for (const auto& look : object.samples) {
+    if (use_frac && usable(look.box_frac)) {
+      const BoxValues& f = look.box_frac;
+      out.push_back({look.frame, to_pixels({f.x * frame_size.width, f.y * frame_size.height,
+                                            f.width * frame_size.width, f.height * frame_size.height})});
+    } else if (!use_frac && usable(look.box_px)) {
+      out.push_back({look.frame, to_pixels(look.box_px)});
+    }
   }
   std::stable_sort(out.begin(), out.end(),
                    [](const auto& a, const auto& b) { return a.frame < b.frame; });
@@ -68,21 +56,8 @@ std::optional<ObjectBox> object_first_box(const TrackedObject& object, cv::Size 
 
 std::vector<std::pair<int64_t, double>> object_drift_samples(const TrackedObject& object) {
   std::vector<std::pair<int64_t, double>> out;
-  const auto drift = object.detail.find("drift");
-  if (drift == object.detail.end() || !drift->is_array()) return out;
-  const auto frames = object.detail.find("frames");
-  const bool aligned =
-      frames != object.detail.end() && frames->is_array() && frames->size() == drift->size();
-  for (size_t i = 0; i < drift->size(); ++i) {
-    const auto& entry = (*drift)[i];
-    if (entry.is_array() && entry.size() >= 2 && entry[0].is_number() && entry[1].is_number()) {
-      out.emplace_back(entry[0].get<int64_t>(), entry[1].get<double>());
-    } else if (entry.is_number()) {
-      const int64_t frame = aligned && (*frames)[i].is_number() ? (*frames)[i].get<int64_t>()
-                                                                : object.first_frame + int64_t(i);
-      out.emplace_back(frame, entry.get<double>());
-    }
-  }
+  for (const auto& look : object.samples)
+    if (std::isfinite(look.drift)) out.emplace_back(look.frame, look.drift);
   std::stable_sort(out.begin(), out.end(),
                    [](const auto& a, const auto& b) { return a.first < b.first; });
   return out;

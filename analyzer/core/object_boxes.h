@@ -1,9 +1,7 @@
-// Reading tracked objects' boxes from Report::objects, as the drift metric
-// writes them (analyzer/drift/drift_report.cpp): detail.boxes holds
-// [frame, x, y, w, h] rows in working-frame pixels, detail.boxes_frac the
-// same as fractions of the frame, detail.frames / detail.drift the sampled
-// frames and the object's drift there. Tolerant of missing or malformed
-// entries: a report read from disk must never crash the page writer.
+// Boxes and drift of tracked objects (Report::objects) at a frame, for the
+// pictures: each look's box in working-frame pixels or as fractions of the
+// frame, and its drift. Looks without a usable box (unknown or empty) are
+// passed over: a report read from disk must never crash the page writer.
 #pragma once
 
 #include <cstdint>
@@ -22,8 +20,8 @@ struct ObjectBox {
 };
 
 // The object's boxes in pixels of a frame of `frame_size` (the working
-// size the pictures are made at): from boxes_frac when present, so a page
-// made at another size still boxes the right place; else from boxes.
+// size the pictures are made at): from the fractions when present, so a page
+// made at another size still boxes the right place; else from the pixels.
 std::vector<ObjectBox> object_boxes(const TrackedObject& object, cv::Size frame_size);
 
 // The box at `frame`, or the last one before it within the object's life.
@@ -33,9 +31,7 @@ std::optional<cv::Rect> object_box_at(const TrackedObject& object, int64_t frame
 // The object's first box (its "first look").
 std::optional<ObjectBox> object_first_box(const TrackedObject& object, cv::Size frame_size);
 
-// The object's drift at `frame` (the last sample at or before it), from
-// detail.drift given either as values aligned with detail.frames or as
-// [frame, value] rows.
+// The object's drift at `frame` (the last known look at or before it).
 std::optional<double> object_drift_at(const TrackedObject& object, int64_t frame);
 
 // The object's sampled (frame, drift) pairs, for its sparkline.

@@ -19,6 +19,14 @@ std::optional<Severity> severity_from_string(const std::string& s) {
   return std::nullopt;
 }
 
+const char* to_string(TrackedKind kind) { return kind == TrackedKind::moving ? "moving" : "scene"; }
+
+std::optional<TrackedKind> tracked_kind_from_string(const std::string& s) {
+  if (s == "moving") return TrackedKind::moving;
+  if (s == "scene") return TrackedKind::scene;
+  return std::nullopt;
+}
+
 const char* to_string(Verdict v) {
   switch (v) {
     case Verdict::pass: return "pass";

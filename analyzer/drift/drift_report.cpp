@@ -10,9 +10,15 @@ namespace {
 constexpr double kSamplesPerSecond = 8;
 constexpr size_t kMaxSamples = 240;
 
-nlohmann::json number_or_null(double v, double unit) {
-  if (!std::isfinite(v)) return nullptr;
+// Rounded to the report's precision for the value; NaN stays NaN (null).
+double rounded(double v, double unit) {
+  if (!std::isfinite(v)) return kUndefined;
   return std::round(v / unit) * unit;
+}
+
+nlohmann::json number_or_null(double v, double unit) {
+  const double r = rounded(v, unit);
+  return std::isnan(r) ? nlohmann::json(nullptr) : nlohmann::json(r);
 }
 
 // Where a stretch of drift began: the last sample before it reached the
@@ -52,7 +58,7 @@ std::vector<size_t> sample_indices(const ObjectTrack& object, size_t peak) {
   return picked;
 }
 
-nlohmann::json object_segments(const ObjectTrack& object, const ObjectSegmentRule& rule) {
+std::vector<DriftStretch> object_segments(const ObjectTrack& object, const ObjectSegmentRule& rule) {
   struct Stretch {
     size_t start = 0, end = 0, peak = 0;
   };
@@ -90,15 +96,11 @@ nlohmann::json object_segments(const ObjectTrack& object, const ObjectSegmentRul
       merged.push_back(s);
     }
   }
-  nlohmann::json out = nlohmann::json::array();
+  std::vector<DriftStretch> out;
   for (const auto& s : merged) {
     if (h[s.end].frame - h[s.start].frame + 1 < rule.min_frames) continue;
-    out.push_back({{"start_frame", h[s.start].frame},
-                   {"end_frame", h[s.end].frame},
-                   {"start_s", number_or_null(h[s.start].t_s, 1e-4)},
-                   {"end_s", number_or_null(h[s.end].t_s, 1e-4)},
-                   {"peak", number_or_null(h[s.peak].drift, 1e-4)},
-                   {"peak_frame", h[s.peak].frame}});
+    out.push_back({h[s.start].frame, h[s.end].frame, rounded(h[s.start].t_s, 1e-4),
+                   rounded(h[s.end].t_s, 1e-4), rounded(h[s.peak].drift, 1e-4), h[s.peak].frame});
   }
   return out;
 }
@@ -135,52 +137,39 @@ TrackedObject to_tracked_object(const ObjectTrack& object, int frame_width, int 
   for (size_t i = 0; i < h.size(); ++i) {
     if (std::isfinite(h[i].drift) && !(h[i].drift <= h[peak].drift)) peak = i;
   }
-  nlohmann::json frames = nlohmann::json::array(), boxes = nlohmann::json::array(),
-                 boxes_frac = nlohmann::json::array(), drift = nlohmann::json::array(),
-                 colour = nlohmann::json::array(), own_colour = nlohmann::json::array(), structure = nlohmann::json::array(),
-                 size = nlohmann::json::array(), size_window = nlohmann::json::array(),
-                 visible = nlohmann::json::array();
+  out.kind = object.kind;
+  out.reference_frame = object.first_frame;
+  out.working_width = frame_width;
+  out.working_height = frame_height;
   std::vector<double> t, drift_values, colour_values;
   const double w = std::max(1, frame_width), hgt = std::max(1, frame_height);
   for (size_t i : sample_indices(object, peak)) {
     const ObjectSample& s = h[i];
-    frames.push_back(s.frame);
-    boxes.push_back({s.frame, number_or_null(s.box.x, 0.1), number_or_null(s.box.y, 0.1),
-                     number_or_null(s.box.width, 0.1), number_or_null(s.box.height, 0.1)});
-    boxes_frac.push_back({s.frame, number_or_null(s.box.x / w, 1e-4),
-                          number_or_null(s.box.y / hgt, 1e-4), number_or_null(s.box.width / w, 1e-4),
-                          number_or_null(s.box.height / hgt, 1e-4)});
-    drift.push_back(number_or_null(s.drift, 1e-4));
-    colour.push_back(number_or_null(s.color_de00, 1e-3));
-    own_colour.push_back(number_or_null(s.own_colour_de00, 1e-3));
-    structure.push_back(number_or_null(s.structure, 1e-4));
-    size.push_back(number_or_null(s.size_pct, 1e-2));
-    size_window.push_back(number_or_null(s.size_window_pct, 1e-2));
-    visible.push_back(number_or_null(100.0 * s.visible_fraction, 0.1));
+    TrackedSample look;
+    look.frame = s.frame;
+    look.box_px = {rounded(s.box.x, 0.1), rounded(s.box.y, 0.1), rounded(s.box.width, 0.1),
+                   rounded(s.box.height, 0.1)};
+    look.box_frac = {rounded(s.box.x / w, 1e-4), rounded(s.box.y / hgt, 1e-4),
+                     rounded(s.box.width / w, 1e-4), rounded(s.box.height / hgt, 1e-4)};
+    look.drift = rounded(s.drift, 1e-4);
+    look.color_de00 = rounded(s.color_de00, 1e-3);
+    look.own_color_de00 = rounded(s.own_colour_de00, 1e-3);
+    look.structure = rounded(s.structure, 1e-4);
+    look.size_pct = rounded(s.size_pct, 1e-2);
+    look.size_window_pct = rounded(s.size_window_pct, 1e-2);
+    look.visible_pct = rounded(100.0 * s.visible_fraction, 0.1);
+    out.samples.push_back(look);
     t.push_back(s.t_s);
     drift_values.push_back(s.drift);
     colour_values.push_back(s.color_de00);
   }
-  out.detail = {
-      {"kind", to_string(object.kind)},
-      {"reference_frame", object.first_frame},
-      {"working_size", {frame_width, frame_height}},
-      {"frames", std::move(frames)},
-      {"boxes", std::move(boxes)},
-      {"boxes_frac", std::move(boxes_frac)},
-      {"drift", std::move(drift)},
-      {"color_de00", std::move(colour)},
-      {"own_color_de00", std::move(own_colour)},
-      {"structure", std::move(structure)},
-      {"size_pct", std::move(size)},
-      {"size_window_pct", std::move(size_window)},
-      {"visible_pct", std::move(visible)},
-      {"peak_drift", h.empty() ? nlohmann::json(nullptr) : number_or_null(h[peak].drift, 1e-4)},
-      {"peak_frame", h.empty() ? nlohmann::json(nullptr) : nlohmann::json(h[peak].frame)},
-      {"drift_rate_per_s", number_or_null(theil_sen_slope(t, drift_values), 1e-4)},
-      {"color_de00_rate_per_s", number_or_null(theil_sen_slope(t, colour_values), 1e-3)},
-      {"drift_segments", object_segments(object, rule)},
-  };
+  if (!h.empty()) {
+    out.peak_drift = rounded(h[peak].drift, 1e-4);
+    out.peak_frame = h[peak].frame;
+  }
+  out.drift_rate_per_s = rounded(theil_sen_slope(t, drift_values), 1e-4);
+  out.color_de00_rate_per_s = rounded(theil_sen_slope(t, colour_values), 1e-3);
+  out.drift_segments = object_segments(object, rule);
   return out;
 }
 

@@ -36,8 +36,6 @@ double histogram_distance(const FramePair& pair) {
 
 }  // namespace
 
-const char* to_string(ObjectKind kind) { return kind == ObjectKind::moving ? "moving" : "scene"; }
-
 DriftTracker::DriftTracker(int max_objects) : max_objects_(std::max(1, max_objects)) {}
 
 int DriftTracker::active_count() const {

@@ -12,6 +12,7 @@
 
 #include "analyzer/drift/frame_features.h"
 #include "analyzer/drift/similarity_fit.h"
+#include "clipwarden/report.h"
 
 namespace clipwarden::drift {
 
@@ -40,8 +41,8 @@ struct TrackPoint {
   float own_motion_error = 0, camera_motion_error = 0;
 };
 
-enum class ObjectKind { moving, scene };
-const char* to_string(ObjectKind kind);
+// The report's kinds (a moving region, or a cell carried with the camera).
+using ObjectKind = TrackedKind;
 
 inline constexpr float kNotMeasured = std::numeric_limits<float>::quiet_NaN();
 

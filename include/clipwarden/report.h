@@ -98,15 +98,67 @@ struct Summary {
   nlohmann::json details = nlohmann::json::object();
 };
 
-// An object followed through the clip (drift). Per-frame series are sampled
-// at `frames`.
+// An object followed through the clip (drift), as the report carries it:
+// typed from the tracker to the JSON writer and back from the reader, so no
+// part of the program reads these values out of JSON it wrote itself.
+// Numbers are held as written (rounded to the report's precision); NaN
+// (kUndefined) where a value was not measured, written as JSON null.
+
+// A rectangle; NaN members when unknown.
+struct BoxValues {
+  double x = kUndefined;
+  double y = kUndefined;
+  double width = kUndefined;
+  double height = kUndefined;
+};
+
+// One sample of an object (about 8 per second; always its first, last
+// and worst frame).
+struct TrackedSample {
+  int64_t frame = 0;
+  BoxValues box_px;    // in pixels of the working frame (TrackedObject::working_*)
+  BoxValues box_frac;  // the same box as fractions of the frame
+  double drift = kUndefined;            // combined departure from the first look
+  double color_de00 = kUndefined;       // CIEDE2000 from the first look's colour
+  double own_color_de00 = kUndefined;   // the same with the object's brightness change removed
+  double structure = kUndefined;        // structure departure (0-1)
+  double size_pct = kUndefined;         // size change from the first look, percent
+  double size_window_pct = kUndefined;  // size change within the recent window, percent
+  double visible_pct = kUndefined;      // share of the object not hidden, percent
+};
+
+// A stretch where one object drifted (hysteresis on its own drift series).
+struct DriftStretch {
+  int64_t start_frame = 0;
+  int64_t end_frame = 0;
+  double start_s = kUndefined;
+  double end_s = kUndefined;
+  double peak = kUndefined;
+  int64_t peak_frame = 0;
+};
+
+// What was followed: a region that moves against the camera, or a cell of
+// the scene carried with the camera.
+enum class TrackedKind { moving, scene };
+const char* to_string(TrackedKind kind);
+std::optional<TrackedKind> tracked_kind_from_string(const std::string& s);
+
 struct TrackedObject {
   int id = 0;
   int64_t first_frame = 0;
   int64_t last_frame = 0;
   bool vanished = false;
   std::string end_reason;  // "clip_end", "left_frame", "vanished", "lost", "cut"
-  nlohmann::json detail = nlohmann::json::object();  // boxes, drift series, rates
+  TrackedKind kind = TrackedKind::moving;
+  int64_t reference_frame = 0;  // the frame of the first look every look is compared with
+  int working_width = 0;        // the frame size box_px is measured in
+  int working_height = 0;
+  std::vector<TrackedSample> samples;  // by frame
+  double peak_drift = kUndefined;
+  std::optional<int64_t> peak_frame;
+  double drift_rate_per_s = kUndefined;       // Theil-Sen slope of drift over time
+  double color_de00_rate_per_s = kUndefined;  // the same for color_de00
+  std::vector<DriftStretch> drift_segments;
 };
 
 enum class Verdict { pass, review, reject };

@@ -104,6 +104,9 @@ std::string scalar_text(const nlohmann::json& v) {
 
 bool is_scalar(const nlohmann::json& v) { return v.is_primitive(); }
 
+// A number, or a dash where it is unknown (as JSON null reads).
+std::string number_cell(double v) { return std::isfinite(v) ? num(v) : std::string("\u2014"); }
+
 // An object's drift over the whole clip as a small line (x: frame across the
 // clip, y: drift on a scale shared by all objects, so rows compare).
 std::string drift_sparkline(const TrackedObject& o, int64_t frame_count, double max_drift) {
@@ -197,11 +200,19 @@ std::string segments_table(const Report& report, const HtmlAssets& assets) {
 
 std::string objects_table(const Report& report) {
   if (report.objects.empty()) return "";
-  // Columns: the fixed ones, then every scalar detail key any object has.
-  std::vector<std::string> keys;
-  for (const auto& o : report.objects)
-    for (const auto& [k, v] : o.detail.items())
-      if (is_scalar(v) && std::find(keys.begin(), keys.end(), k) == keys.end()) keys.push_back(k);
+  // The object's clip-level figures, one column each, by their report keys.
+  const std::pair<const char*, std::string (*)(const TrackedObject&)> columns[] = {
+      {"color_de00_rate_per_s", [](const TrackedObject& o) { return number_cell(o.color_de00_rate_per_s); }},
+      {"drift_rate_per_s", [](const TrackedObject& o) { return number_cell(o.drift_rate_per_s); }},
+      {"kind", [](const TrackedObject& o) { return std::string(to_string(o.kind)); }},
+      {"peak_drift", [](const TrackedObject& o) { return number_cell(o.peak_drift); }},
+      {"peak_frame",
+       [](const TrackedObject& o) {
+         return o.peak_frame ? num(static_cast<double>(*o.peak_frame)) : std::string("\u2014");
+       }},
+      {"reference_frame",
+       [](const TrackedObject& o) { return num(static_cast<double>(o.reference_frame)); }},
+  };
   double max_drift = 0;
   for (const auto& o : report.objects)
     for (const auto& [frame, value] : object_drift_samples(o))
@@ -214,18 +225,14 @@ std::string objects_table(const Report& report) {
       num(max_drift) +
       ").</p>\n<div class=\"table-wrap\"><table><thead><tr><th>object</th>"
       "<th>frames</th><th>drift over the clip</th><th>ends</th><th>vanished</th>";
-  for (const auto& k : keys) out += "<th>" + html_escape(k) + "</th>";
+  for (const auto& [key, cell] : columns) out += std::string("<th>") + key + "</th>";
   out += "</tr></thead><tbody>\n";
   for (const auto& o : report.objects) {
     out += "<tr><td>#" + std::to_string(o.id) + "</td><td>" + std::to_string(o.first_frame) +
            "\u2013" + std::to_string(o.last_frame) + "</td><td>" +
            drift_sparkline(o, frame_count, max_drift) + "</td><td>" + html_escape(o.end_reason) +
            "</td><td>" + (o.vanished ? "yes" : "no") + "</td>";
-    for (const auto& k : keys) {
-      const auto it = o.detail.find(k);
-      out += "<td class=\"num\">" +
-             (it == o.detail.end() ? std::string("\u2014") : scalar_text(*it)) + "</td>";
-    }
+    for (const auto& [key, cell] : columns) out += "<td class=\"num\">" + cell(o) + "</td>";
     out += "</tr>\n";
   }
   return out + "</tbody></table></div>\n</section>\n";

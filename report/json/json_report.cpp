@@ -4,14 +4,16 @@
 
 #include "analyzer/core/byte_text.h"
 #include "clipwarden/report_io.h"
+#include "report/json/json_fields.h"
+#include "report/json/tracked_object_json.h"
 #include "clipwarden/version.h"
 
 namespace clipwarden {
 namespace {
 
 using nlohmann::json;
+using json_fields::number_or_null;
 
-json number_or_null(double v) { return std::isfinite(v) ? json(v) : json(nullptr); }
 template <class T>
 json optional_or_null(const std::optional<T>& v) {
   return v ? json(*v) : json(nullptr);
@@ -91,15 +93,7 @@ json report_to_json(const Report& r) {
                         {"peak_frame", s.peak_frame},
                         {"severity", to_string(s.severity)}});
   json objects = json::array();
-  for (const auto& o : r.objects) {
-    json obj = {{"id", o.id},
-                {"first_frame", o.first_frame},
-                {"last_frame", o.last_frame},
-                {"vanished", o.vanished},
-                {"end_reason", o.end_reason}};
-    for (const auto& [k, v] : o.detail.items()) obj[k] = v;
-    objects.push_back(std::move(obj));
-  }
+  for (const auto& o : r.objects) objects.push_back(tracked_object_to_json(o));
   return {{"schema", kReportSchema},
           {"tool", {{"name", r.tool_name}, {"version", r.tool_version}}},
           {"clip", clip_to_json(r.clip)},

@@ -7,66 +7,15 @@
 
 #include "analyzer/core/byte_text.h"
 #include "analyzer/core/json_text.h"
+#include "report/json/json_fields.h"
+#include "report/json/tracked_object_json.h"
 #include "clipwarden/report_io.h"
 
 namespace clipwarden {
 namespace {
 
 using nlohmann::json;
-
-// Thrown only inside this file and turned into an Error at the boundary.
-struct BadKey {
-  std::string path;
-  std::string cause;
-};
-
-const json& at(const json& j, const std::string& key, const std::string& path) {
-  if (!j.is_object() || !j.contains(key)) throw BadKey{path + key, "is missing"};
-  return j[key];
-}
-double num(const json& j, const std::string& key, const std::string& path) {
-  const json& v = at(j, key, path);
-  if (v.is_null()) return kUndefined;
-  if (!v.is_number()) throw BadKey{path + key, "is not a number"};
-  return v.get<double>();
-}
-std::optional<double> opt_num(const json& j, const std::string& key, const std::string& path) {
-  if (!j.contains(key) || j[key].is_null()) return std::nullopt;
-  return num(j, key, path);
-}
-// Sizes, counts and frame indices. Casting a fractional, null, infinite or
-// out-of-range number to an integer type is undefined behaviour (C++
-// [conv.fpint]), so such values are refused by name (found by fuzzing).
-template <class Int>
-Int whole(const json& j, const std::string& key, const std::string& path) {
-  const double v = num(j, key, path);
-  // Signed ranges are [-2^k, 2^k): both ends are exact in a double.
-  const double low = static_cast<double>(std::numeric_limits<Int>::min());
-  if (!(std::trunc(v) == v && v >= low && v < -low))
-    throw BadKey{path + key, "is not a whole number in range"};
-  return static_cast<Int>(v);
-}
-int whole_int(const json& j, const std::string& key, const std::string& path) {
-  return whole<int>(j, key, path);
-}
-int64_t whole_int64(const json& j, const std::string& key, const std::string& path) {
-  return whole<int64_t>(j, key, path);
-}
-std::string str(const json& j, const std::string& key, const std::string& path) {
-  const json& v = at(j, key, path);
-  if (!v.is_string()) throw BadKey{path + key, "is not a string"};
-  return v.get<std::string>();
-}
-bool boolean(const json& j, const std::string& key, const std::string& path) {
-  const json& v = at(j, key, path);
-  if (!v.is_boolean()) throw BadKey{path + key, "is not true or false"};
-  return v.get<bool>();
-}
-const json& array(const json& j, const std::string& key, const std::string& path) {
-  const json& v = at(j, key, path);
-  if (!v.is_array()) throw BadKey{path + key, "is not an array"};
-  return v;
-}
+using namespace json_fields;
 
 ClipInfo read_clip(const json& c) {
   const std::string p = "clip.";
@@ -169,20 +118,8 @@ Report read_report(const json& j) {
   read_summary(at(j, "summary", ""), r);
   if (j.contains("objects")) {
     const json& objects = array(j, "objects", "");
-    for (size_t i = 0; i < objects.size(); ++i) {
-      const std::string p = "objects[" + std::to_string(i) + "].";
-      const json& o = objects[i];
-      TrackedObject obj;
-      obj.id = whole_int(o, "id", p);
-      obj.first_frame = whole_int64(o, "first_frame", p);
-      obj.last_frame = whole_int64(o, "last_frame", p);
-      obj.vanished = boolean(o, "vanished", p);
-      if (o.contains("end_reason") && o["end_reason"].is_string()) obj.end_reason = o["end_reason"];
-      for (const auto& [k, v] : o.items())
-        if (k != "id" && k != "first_frame" && k != "last_frame" && k != "vanished" && k != "end_reason")
-          obj.detail[k] = v;
-      r.objects.push_back(std::move(obj));
-    }
+    for (size_t i = 0; i < objects.size(); ++i)
+      r.objects.push_back(tracked_object_from_json(objects[i], "objects[" + std::to_string(i) + "]."));
   }
   const json& verdict = at(j, "verdict", "");
   const std::string status = str(verdict, "status", "verdict.");
@@ -203,7 +140,7 @@ Report read_report(const json& j) {
 Expected<Report> report_from_json(const json& j, const std::string& subject) {
   try {
     return read_report(j);
-  } catch (const BadKey& bad) {
+  } catch (const json_fields::BadKey& bad) {
     return input_error(subject, "report key '" + bad.path + "' " + bad.cause);
   } catch (const json::exception& e) {
     return input_error(subject, std::string("malformed report: ") + e.what());

@@ -35,12 +35,8 @@ void expect_no_review_drift(const Report& report) {
   }
   EXPECT_LT(worst, kReview) << "largest per-frame drift";
   for (const auto& o : report.objects) {
-    if (o.detail["peak_drift"].is_number()) {
-      EXPECT_LT(o.detail["peak_drift"].get<double>(), kReview) << "object " << o.id;
-    }
-    for (const auto& s : o.detail["drift_segments"]) {
-      EXPECT_LT(s["peak"].get<double>(), kReview) << "object " << o.id;
-    }
+    if (std::isfinite(o.peak_drift)) EXPECT_LT(o.peak_drift, kReview) << "object " << o.id;
+    for (const auto& s : o.drift_segments) EXPECT_LT(s.peak, kReview) << "object " << o.id;
   }
   const auto schema = nlohmann::json::parse(asset("clipwarden.report-1.schema.json"));
   const Status valid = check_against_schema(report_to_json(report), schema, "report");
@@ -61,7 +57,7 @@ TEST(DriftFootage, VtestFirst150FramesReadsNoDrift) {
   ASSERT_TRUE(report.ok()) << report.error().message();
   EXPECT_EQ(report->frame_times_s.size(), 150u);
   int moving = 0;
-  for (const auto& o : report->objects) moving += o.detail["kind"] == "moving";
+  for (const auto& o : report->objects) moving += o.kind == TrackedKind::moving;
   EXPECT_GE(moving, 3) << "the people walking at the start are followed";
   expect_no_review_drift(*report);
 }
@@ -101,9 +97,9 @@ TEST(DriftFootage, BoxCarriedToAndFromTheCameraReadsNoDriftReview) {
   ASSERT_TRUE(report.ok()) << report.error().message();
   double largest_size_log = 0;
   for (const auto& o : report->objects) {
-    for (const auto& v : o.detail["size_window_pct"]) {
-      if (!v.is_number()) continue;
-      largest_size_log = std::max(largest_size_log, std::abs(std::log1p(v.get<double>() / 100)));
+    for (const auto& look : o.samples) {
+      if (!std::isfinite(look.size_window_pct)) continue;
+      largest_size_log = std::max(largest_size_log, std::abs(std::log1p(look.size_window_pct / 100)));
     }
   }
   EXPECT_GT(largest_size_log, std::log(1.3)) << "the box's size change within 2 s is measured";

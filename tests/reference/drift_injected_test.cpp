@@ -55,8 +55,7 @@ const TrackedObject& patch_object(const Report& r, const Scene& s) {
 double peak_drift_except(const Report& r, int id) {
   double peak = 0;
   for (const auto& o : r.objects) {
-    if (o.id != id && o.detail["peak_drift"].is_number())
-      peak = std::max(peak, o.detail["peak_drift"].get<double>());
+    if (o.id != id && std::isfinite(o.peak_drift)) peak = std::max(peak, o.peak_drift);
   }
   return peak;
 }
@@ -85,18 +84,18 @@ TEST(DriftInjected, HueRampOnMovingPatchIsColourDrift) {
   double injected = 0;
   const Report r = run_hue_ramp(s, 40, injected);
   const TrackedObject& o = patch_object(r, s);
-  EXPECT_EQ(o.detail["kind"], "moving");
+  EXPECT_EQ(o.kind, TrackedKind::moving);
   for (int frame : {36, 40, 44}) {
-    EXPECT_NEAR(object_value(o, "color_de00", frame), injected, 0.15 * injected)
+    EXPECT_NEAR(object_value(o, &TrackedSample::color_de00, frame), injected, 0.15 * injected)
         << "frame " << frame;
   }
-  EXPECT_LT(object_value(o, "color_de00", 10), 1.5) << "before the injection";
-  ASSERT_FALSE(o.detail["drift_segments"].empty());
-  const int64_t start = o.detail["drift_segments"][0]["start_frame"];
+  EXPECT_LT(object_value(o, &TrackedSample::color_de00, 10), 1.5) << "before the injection";
+  ASSERT_FALSE(o.drift_segments.empty());
+  const int64_t start = o.drift_segments[0].start_frame;
   EXPECT_NEAR(start, 12, 4);
-  EXPECT_GE(o.detail["peak_drift"].get<double>(), kReview);
+  EXPECT_GE(o.peak_drift, kReview);
   EXPECT_LT(peak_drift_except(r, o.id), kSegmentEnter);
-  EXPECT_GT(o.detail["color_de00_rate_per_s"].get<double>(), 3.0);
+  EXPECT_GT(o.color_de00_rate_per_s, 3.0);
 }
 
 // A moderate hue turn: 20 degrees over frames 12-36, about CIEDE2000 11 of
@@ -111,8 +110,8 @@ TEST(DriftInjected, ModerateHueRampReachesReview) {
   const Report r = run_hue_ramp(s, 20, injected);
   ASSERT_LT(injected, 14) << "the ramp is meant to be moderate";
   const TrackedObject& o = patch_object(r, s);
-  EXPECT_NEAR(object_value(o, "own_color_de00", 44), injected, 0.2 * injected);
-  EXPECT_GE(o.detail["peak_drift"].get<double>(), kReview);
+  EXPECT_NEAR(object_value(o, &TrackedSample::own_color_de00, 44), injected, 0.2 * injected);
+  EXPECT_GE(o.peak_drift, kReview);
   EXPECT_LT(peak_drift_except(r, o.id), kSegmentEnter);
 }
 
@@ -127,9 +126,9 @@ TEST(DriftInjected, PatchPassingIntoShadeIsNotReviewed) {
   s.scene.patch_state = [](int frame) { return PatchState{0, 1, 1, 1 - 0.55 * ramp(frame, 12, 36)}; };
   const Report r = run_drift_on_frames(render_scene(s.scene), s.fps);
   const TrackedObject& o = patch_object(r, s);
-  EXPECT_GT(object_value(o, "color_de00", 44), 10) << "the shade is visible";
-  EXPECT_LT(object_value(o, "own_color_de00", 44), 3);
-  EXPECT_LT(o.detail["peak_drift"].get<double>(), kReview);
+  EXPECT_GT(object_value(o, &TrackedSample::color_de00, 44), 10) << "the shade is visible";
+  EXPECT_LT(object_value(o, &TrackedSample::own_color_de00, 44), 3);
+  EXPECT_LT(o.peak_drift, kReview);
 }
 
 // A brightness ramp of the whole frame (linear-light gain 1.0 -> 0.55,
@@ -147,8 +146,8 @@ TEST(DriftInjected, GlobalBrightnessAndColourRampIsNotDrift) {
   const Report r = run_drift_on_frames(render_scene(s.scene), s.fps);
   ASSERT_GE(r.objects.size(), 2u);
   for (const auto& o : r.objects) {
-    EXPECT_LT(o.detail["peak_drift"].get<double>(), kSegmentEnter) << "object " << o.id;
-    EXPECT_TRUE(o.detail["drift_segments"].empty()) << "object " << o.id;
+    EXPECT_LT(o.peak_drift, kSegmentEnter) << "object " << o.id;
+    EXPECT_TRUE(o.drift_segments.empty()) << "object " << o.id;
   }
 }
 
@@ -164,12 +163,12 @@ TEST(DriftInjected, PatchShrinkingOverItsBackgroundIsReportedUnderReview) {
   s.scene.patch_state = [](int frame) { return PatchState{0, 1.0 - 0.3 * ramp(frame, 12, 36), 1}; };
   const Report r = run_drift_on_frames(render_scene(s.scene), s.fps);
   const TrackedObject& o = patch_object(r, s);
-  EXPECT_NEAR(object_value(o, "size_pct", 40), -30.0, 6.0);
-  EXPECT_NEAR(object_value(o, "size_pct", 10), 0.0, 4.0);
-  ASSERT_FALSE(o.detail["drift_segments"].empty());
-  EXPECT_GE(o.detail["drift_segments"][0]["peak"].get<double>(), kSegmentEnter);
-  EXPECT_LT(o.detail["peak_drift"].get<double>(), kReview);
-  const int64_t start = o.detail["drift_segments"][0]["start_frame"];
+  EXPECT_NEAR(object_value(o, &TrackedSample::size_pct, 40), -30.0, 6.0);
+  EXPECT_NEAR(object_value(o, &TrackedSample::size_pct, 10), 0.0, 4.0);
+  ASSERT_FALSE(o.drift_segments.empty());
+  EXPECT_GE(o.drift_segments[0].peak, kSegmentEnter);
+  EXPECT_LT(o.peak_drift, kReview);
+  const int64_t start = o.drift_segments[0].start_frame;
   EXPECT_NEAR(start, 12, 6);
 }
 
@@ -200,7 +199,7 @@ TEST(DriftInjected, PatchWalkingOutOfTheFrameEndsAsLeftFrame) {
   // Its left edge passes the frame's right edge (480 px) at frame 37.
   EXPECT_GE(o.last_frame, 25);
   EXPECT_LE(o.last_frame, 38);
-  EXPECT_LT(o.detail["peak_drift"].get<double>(), kSegmentEnter);
+  EXPECT_LT(o.peak_drift, kSegmentEnter);
 }
 
 // The same injected hue ramp rendered at 8 and 24 fps (same motion per
@@ -224,9 +223,9 @@ TEST(DriftInjected, ColourDriftIsComparableAcrossFrameRates) {
     };
     const Report r = run_drift_on_frames(render_scene(scene), fps);
     const TrackedObject& o = patch_object(r, s);
-    final_de.push_back(object_value(o, "color_de00", static_cast<int64_t>(3.2 * fps)));
-    ASSERT_FALSE(o.detail["drift_segments"].empty()) << fps << " fps";
-    onset_s.push_back(o.detail["drift_segments"][0]["start_s"].get<double>());
+    final_de.push_back(object_value(o, &TrackedSample::color_de00, static_cast<int64_t>(3.2 * fps)));
+    ASSERT_FALSE(o.drift_segments.empty()) << fps << " fps";
+    onset_s.push_back(o.drift_segments[0].start_s);
   }
   EXPECT_NEAR(final_de[0], final_de[1], 0.1 * final_de[1]);
   EXPECT_NEAR(onset_s[0], onset_s[1], 0.25);

@@ -60,7 +60,12 @@ void expect_panels_show_what_the_analysis_measured(const std::string& clip) {
   o.id = 3;
   o.first_frame = 10;
   o.last_frame = 60;
-  o.detail = {{"boxes", {{10, 20, 40, 60, 80}, {50, 30, 40, 60, 80}}}};
+  for (const auto& [frame, x] : {std::pair{10, 20.0}, std::pair{50, 30.0}}) {
+    TrackedSample look;
+    look.frame = frame;
+    look.box_px = {x, 40, 60, 80};
+    o.samples.push_back(look);
+  }
   r.objects = {o};
 
   const HtmlAssets assets = collect_html_assets(r, settings, HtmlOptions{}, {});

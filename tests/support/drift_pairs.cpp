@@ -53,26 +53,24 @@ const TrackedObject* object_at(const Report& report, const cv::Rect2f& where, in
   const TrackedObject* best = nullptr;
   double best_share = 0;
   for (const auto& o : report.objects) {
-    for (const auto& b : o.detail.value("boxes", nlohmann::json::array())) {
-      if (b[0].get<int64_t>() != frame) continue;
-      const cv::Rect2f box(b[1].get<float>(), b[2].get<float>(), b[3].get<float>(), b[4].get<float>());
-      const double share = (box & where).area() / std::max(1.0f, box.area());
+    for (const auto& look : o.samples) {
+      if (look.frame != frame) continue;
+      const cv::Rect2d box(look.box_px.x, look.box_px.y, look.box_px.width, look.box_px.height);
+      const double share = (box & cv::Rect2d(where)).area() / std::max(1.0, box.area());
       if (share > best_share) best_share = share, best = &o;
     }
   }
   return best;
 }
 
-double object_value(const TrackedObject& object, const std::string& key, int64_t frame) {
-  const auto& frames = object.detail.at("frames");
-  const auto& values = object.detail.at(key);
-  double value = std::numeric_limits<double>::quiet_NaN();
+double object_value(const TrackedObject& object, double TrackedSample::*value, int64_t frame) {
+  double found = std::numeric_limits<double>::quiet_NaN();
   int64_t best = std::numeric_limits<int64_t>::max();
-  for (size_t i = 0; i < frames.size(); ++i) {
-    const int64_t gap = std::llabs(frames[i].get<int64_t>() - frame);
-    if (gap < best && !values[i].is_null()) best = gap, value = values[i].get<double>();
+  for (const auto& look : object.samples) {
+    const int64_t gap = std::llabs(look.frame - frame);
+    if (gap < best && std::isfinite(look.*value)) best = gap, found = look.*value;
   }
-  return value;
+  return found;
 }
 
 }  // namespace clipwarden::test

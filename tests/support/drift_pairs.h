@@ -27,7 +27,7 @@ std::string opencv_sample(const std::string& name);
 // object's box), or nullptr.
 const TrackedObject* object_at(const Report& report, const cv::Rect2f& where, int64_t frame);
 
-// Value of an object's sampled series `key` at the sample nearest `frame`.
-double object_value(const TrackedObject& object, const std::string& key, int64_t frame);
+// One of an object's per-look values at the look nearest `frame` where it is known.
+double object_value(const TrackedObject& object, double TrackedSample::*value, int64_t frame);
 
 }  // namespace clipwarden::test

@@ -187,18 +187,18 @@ Report synthetic_report(const SyntheticScene& scene, const std::string& clip_pat
   ball.first_frame = 0;
   ball.last_frame = n - 1;
   ball.end_reason = "clip_end";
-  // Sampled every 5 frames, laid out as the drift metric writes objects.
-  nlohmann::json frames = nlohmann::json::array(), boxes = nlohmann::json::array(),
-                 drift_values = nlohmann::json::array();
+  // Sampled every 5 frames, as the drift metric samples objects.
+  ball.kind = TrackedKind::moving;
   for (int i = 0; i < n; i += 5) {
     const cv::Rect b = scene.ball_box(i);
-    frames.push_back(i);
-    boxes.push_back({i, b.x, b.y, b.width, b.height});
-    drift_values.push_back(drift.values[i]);
+    TrackedSample look;
+    look.frame = i;
+    look.box_px = {double(b.x), double(b.y), double(b.width), double(b.height)};
+    look.drift = drift.values[i];
+    ball.samples.push_back(look);
   }
-  ball.detail = {{"kind", "moving"},          {"frames", frames},  {"boxes", boxes},
-                 {"drift", drift_values},     {"peak_drift", 7.3}, {"drift_rate_per_s", 0.61},
-                 {"label", "<ball> & \"co\""}};
+  ball.peak_drift = 7.3;
+  ball.drift_rate_per_s = 0.61;
   r.objects.push_back(ball);
   r.verdict.status = Verdict::reject;
   r.verdict.reasons = {"warp_error peak 0.056 >= 0.03 (reject) at 3.93-4.53 s",

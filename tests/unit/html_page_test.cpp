@@ -173,39 +173,46 @@ TEST(ThumbnailCollector, KeepsABoundedEvenlySpacedStrip) {
   EXPECT_EQ(kept[0].image.mime, "image/jpeg");
 }
 
-TEST(ObjectBoxes, ToleratesMalformedDetail) {
+TrackedSample sample_at(int64_t frame, BoxValues px, BoxValues frac = {}, double drift = kUndefined) {
+  TrackedSample look;
+  look.frame = frame;
+  look.box_px = px;
+  look.box_frac = frac;
+  look.drift = drift;
+  return look;
+}
+
+TEST(ObjectBoxes, PassesOverUnusableBoxes) {
   TrackedObject o;
   o.first_frame = 2;
   o.last_frame = 9;
-  o.detail = {{"boxes", {{2, 1, 2, 3, 4}, "junk", {3, 1}, {5, 10, 20, 30, 40}, {6, 0, 0, -1, 4}}}};
+  o.samples = {sample_at(2, {1, 2, 3, 4}), sample_at(3, {}), sample_at(5, {10, 20, 30, 40}),
+             sample_at(6, {0, 0, -1, 4}), sample_at(7, {0, kUndefined, 3, 4})};
   const cv::Size size(100, 50);
   ASSERT_EQ(object_boxes(o, size).size(), 2u);
   EXPECT_EQ(object_box_at(o, 4, size), cv::Rect(1, 2, 3, 4));
   EXPECT_EQ(object_box_at(o, 7, size), cv::Rect(10, 20, 30, 40));
   EXPECT_FALSE(object_box_at(o, 1, size).has_value());
   EXPECT_FALSE(object_box_at(o, 10, size).has_value());
-  o.detail = {{"boxes", "not a list"}};
+  o.samples.clear();
   EXPECT_TRUE(object_boxes(o, size).empty());
 }
 
-// The drift metric's own layout (analyzer/drift/drift_report.cpp): sampled
-// frames, boxes with nulls, fractions of the frame, drift aligned with frames.
+// The drift metric's layout (analyzer/drift/drift_report.cpp): sampled
+// looks, a box unknown at one of them, fractions of the frame, drift.
 TEST(ObjectBoxes, ReadsTheDriftMetricsLayout) {
   TrackedObject o;
   o.first_frame = 10;
   o.last_frame = 40;
-  o.detail = {
-      {"frames", {10, 20, 30}},
-      {"boxes", {{10, 5, 5, 10, 10}, {20, nullptr, nullptr, nullptr, nullptr}, {30, 7, 5, 10, 10}}},
-      {"boxes_frac", {{10, 0.1, 0.2, 0.2, 0.4}, {30, 0.5, 0.2, 0.2, 0.4}}},
-      {"drift", {0.0, nullptr, 2.5}}};
+  o.samples = {sample_at(10, {5, 5, 10, 10}, {0.1, 0.2, 0.2, 0.4}, 0.0), sample_at(20, {}, {}, kUndefined),
+             sample_at(30, {7, 5, 10, 10}, {0.5, 0.2, 0.2, 0.4}, 2.5)};
   // Fractions win: they place the box on a frame of any size.
   EXPECT_EQ(object_box_at(o, 12, {200, 100}), cv::Rect(20, 20, 40, 40));
   EXPECT_EQ(object_box_at(o, 35, {100, 50}), cv::Rect(50, 10, 20, 20));
   EXPECT_EQ(object_drift_at(o, 25), 0.0);
   EXPECT_EQ(object_drift_at(o, 30), 2.5);
   EXPECT_EQ(object_drift_samples(o).size(), 2u);
-  o.detail.erase("boxes_frac");
+  for (auto& look : o.samples) look.box_frac = {};
   EXPECT_EQ(object_box_at(o, 35, {200, 100}), cv::Rect(7, 5, 10, 10));
 }
 

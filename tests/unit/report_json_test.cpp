@@ -79,14 +79,32 @@ Report full_report() {
   o.last_frame = 2;
   o.vanished = true;
   o.end_reason = "vanished";
-  o.detail = nlohmann::json::parse(R"({
-    "kind": "moving", "reference_frame": 1, "working_size": [320, 180], "frames": [1, 2],
-    "boxes": [[10, 20, 30, 40], [12, 20, 30, 40]], "boxes_frac": [[0.5, 0.25, 0.125, 0.0625], [null, null, null, null]],
-    "drift": [0, 1.5], "color_de00": [0, 3.5], "own_color_de00": [0, 2.5], "structure": [0, 0.25], "size_pct": [0, -12.5],
-    "size_window_pct": [0, -6.25], "visible_pct": [100, 50], "peak_drift": 1.5, "peak_frame": 2,
-    "drift_rate_per_s": 3, "color_de00_rate_per_s": 7,
-    "drift_segments": [{"start_frame": 1, "end_frame": 2, "start_s": 0.5, "end_s": 1, "peak": 1.5, "peak_frame": 2}]
-  })");
+  o.kind = TrackedKind::moving;
+  o.reference_frame = 1;
+  o.working_width = 320;
+  o.working_height = 180;
+  TrackedSample first, second;
+  first.frame = 1;
+  first.box_px = {10, 20, 30, 40};
+  first.box_frac = {0.5, 0.25, 0.125, 0.0625};
+  first.drift = first.color_de00 = first.own_color_de00 = first.structure = 0;
+  first.size_pct = first.size_window_pct = 0;
+  first.visible_pct = 100;
+  second.frame = 2;
+  second.box_px = {12, 20, 30, 40};  // box_frac unknown: written as nulls
+  second.drift = 1.5;
+  second.color_de00 = 3.5;
+  second.own_color_de00 = 2.5;
+  second.structure = 0.25;
+  second.size_pct = -12.5;
+  second.size_window_pct = -6.25;
+  second.visible_pct = 50;
+  o.samples = {first, second};
+  o.peak_drift = 1.5;
+  o.peak_frame = 2;
+  o.drift_rate_per_s = 3;
+  o.color_de00_rate_per_s = 7;
+  o.drift_segments = {{1, 2, 0.5, 1, 1.5, 2}};
   r.objects = {o};
   r.verdict = {Verdict::reject, {"flicker segment peak 0.5 >= reject 0.1 (frame 0, 0.00 s)"}};
   r.notes = {"a note"};
@@ -120,7 +138,7 @@ const char* kFullReportJson = R"json({
                          "concealed_frames": 4, "lost_frames": 5}},
   "objects": [{"id": 7, "first_frame": 1, "last_frame": 2, "vanished": true, "end_reason": "vanished",
     "kind": "moving", "reference_frame": 1, "working_size": [320, 180], "frames": [1, 2],
-    "boxes": [[10, 20, 30, 40], [12, 20, 30, 40]], "boxes_frac": [[0.5, 0.25, 0.125, 0.0625], [null, null, null, null]],
+    "boxes": [[1, 10, 20, 30, 40], [2, 12, 20, 30, 40]], "boxes_frac": [[1, 0.5, 0.25, 0.125, 0.0625], [2, null, null, null, null]],
     "drift": [0, 1.5], "color_de00": [0, 3.5], "own_color_de00": [0, 2.5], "structure": [0, 0.25], "size_pct": [0, -12.5],
     "size_window_pct": [0, -6.25], "visible_pct": [100, 50], "peak_drift": 1.5, "peak_frame": 2,
     "drift_rate_per_s": 3, "color_de00_rate_per_s": 7,
@@ -171,7 +189,9 @@ TEST(ReportJson, ReaderKeepsEveryFieldOfTheHandWrittenDocument) {
   EXPECT_EQ(back->summary.stream.duplicate_timestamps, 2);
   EXPECT_EQ(back->summary.stream.lost_frames, 5);
   EXPECT_EQ(back->clip.path, "takes/lantern\xff.mp4");
-  EXPECT_EQ(back->objects.at(0).detail.at("peak_drift"), 1.5);
+  EXPECT_EQ(back->objects.at(0).peak_drift, 1.5);
+  EXPECT_EQ(back->objects.at(0).samples.at(1).box_px.x, 12);
+  EXPECT_TRUE(std::isnan(back->objects.at(0).samples.at(1).box_frac.x));
   EXPECT_EQ(back->notes, std::vector<std::string>{"a note"});
   EXPECT_EQ(report_to_json(*back), expected);
 }
