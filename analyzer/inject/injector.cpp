@@ -11,6 +11,7 @@
 #include <opencv2/imgproc.hpp>
 
 #include "analyzer/core/byte_text.h"
+#include "analyzer/encode/clip_writer.h"
 #include "analyzer/inject/active_defect.h"
 #include "clipwarden/clip_source.h"
 #include "clipwarden/inject.h"

@@ -3,6 +3,7 @@
 // python-jsonschema in tests/reference/schema_reference_test.cpp.
 #include <gtest/gtest.h>
 
+#include <cmath>
 #include <filesystem>
 #include <fstream>
 
@@ -232,6 +233,31 @@ TEST(ReportJson, ReaderNamesTheBadKey) {
   auto back = report_from_json(j, "x.json");
   ASSERT_FALSE(back.ok());
   EXPECT_EQ(back.error().message(), "x.json: report key 'segments[0].end_frame' is missing");
+}
+
+// A tracked object's per-sample arrays line up with its frames; a report
+// where they do not (or a box row names another frame) is refused by key,
+// and one written before own_color_de00 existed still reads.
+TEST(ReportJson, TrackedObjectArraysMustLineUpWithFrames) {
+  const nlohmann::json good = nlohmann::json::parse(kFullReportJson);
+  auto short_column = good;
+  short_column["objects"][0]["drift"].erase(1);
+  auto back = report_from_json(short_column, "x.json");
+  ASSERT_FALSE(back.ok());
+  EXPECT_EQ(back.error().message(),
+            "x.json: report key 'objects[0].drift' does not have one entry per frames[] entry");
+  auto other_frame = good;
+  other_frame["objects"][0]["boxes"][1][0] = 5;
+  back = report_from_json(other_frame, "x.json");
+  ASSERT_FALSE(back.ok());
+  EXPECT_EQ(back.error().message(),
+            "x.json: report key 'objects[0].boxes[1]' names a frame other than frames[] at the same place");
+  auto older = good;
+  older["objects"][0].erase("own_color_de00");
+  back = report_from_json(older, "old.json");
+  ASSERT_TRUE(back.ok()) << back.error().message();
+  EXPECT_TRUE(std::isnan(back->objects.at(0).samples.at(1).own_color_de00));
+  EXPECT_EQ(back->objects.at(0).samples.at(1).color_de00, 3.5);
 }
 
 TEST(ReportJson, AtomicWriteReplacesWholeFiles) {
