@@ -19,10 +19,24 @@ void FrameFeatures::compute(int64_t frame_index, const cv::Mat& gray, const cv::
   // sigma 1 smoothing keeps the orientation of fine texture but removes the
   // pixel noise and block edges of compressed video (common practice).
   cv::GaussianBlur(gray, smoothed_, cv::Size(5, 5), 1.0, 1.0, cv::BORDER_REPLICATE);
-  // Sobel scaled by 1/8 gives gray levels per pixel.
-  cv::Sobel(smoothed_, gx_, CV_32F, 1, 0, 3, 1.0 / 8.0, 0, cv::BORDER_REPLICATE);
-  cv::Sobel(smoothed_, gy_, CV_32F, 0, 1, 3, 1.0 / 8.0, 0, cv::BORDER_REPLICATE);
-  cv::cartToPolar(gx_, gy_, magnitude_, angle_, false);
+  // Sobel scaled by 1/8 gives gray levels per pixel. The two gradient
+  // planes are only a step towards magnitude and angle, so they are made a
+  // band of rows at a time: a band of `smoothed_` is a view into the whole
+  // plane, and OpenCV's filters read the rows around a view from the plane
+  // itself (the border rule applies only at the plane's own edges), so
+  // every value is the one a whole-plane Sobel gives, and the features of a
+  // frame in flight hold two planes of floats fewer.
+  constexpr int kBandRows = 32;
+  magnitude_.create(gray.size(), CV_32FC1);
+  angle_.create(gray.size(), CV_32FC1);
+  for (int y = 0; y < gray.rows; y += kBandRows) {
+    const cv::Range rows(y, std::min(gray.rows, y + kBandRows));
+    const cv::Mat band = smoothed_.rowRange(rows);
+    cv::Sobel(band, gx_, CV_32F, 1, 0, 3, 1.0 / 8.0, 0, cv::BORDER_REPLICATE);
+    cv::Sobel(band, gy_, CV_32F, 0, 1, 3, 1.0 / 8.0, 0, cv::BORDER_REPLICATE);
+    cv::Mat magnitude = magnitude_.rowRange(rows), angle = angle_.rowRange(rows);
+    cv::cartToPolar(gx_, gy_, magnitude, angle, false);
+  }
 }
 
 cv::Vec3f FrameFeatures::colour(cv::Point2f p) const { return sample_colour(window_colour_, p); }

@@ -25,6 +25,7 @@ class FrameFeatures {
 
   int64_t frame_index() const { return frame_index_; }
   const cv::Mat& magnitude() const { return magnitude_; }
+  const cv::Mat& angle() const { return angle_; }  // gradient orientation, radians in [0, 2 pi)
   const cv::Mat& window_gray() const { return window_gray_; }
 
   // Window-mean colour at `p` (bilinear between window centres), encoded
@@ -41,7 +42,8 @@ class FrameFeatures {
 
  private:
   int64_t frame_index_ = -1;
-  cv::Mat smoothed_, gx_, gy_, magnitude_, angle_, window_colour_, window_gray_;
+  cv::Mat smoothed_, magnitude_, angle_, window_colour_, window_gray_;
+  cv::Mat gx_, gy_;  // one band of rows of the gradient (compute())
 };
 
 // Generalised Hellinger distance between two non-negative measures, after

@@ -20,7 +20,16 @@ inline constexpr float kOcclusionAbsolute = 0.5f;
 double forward_backward_check(const cv::Mat& flow_backward, const cv::Mat& forward_at_target,
                               cv::Mat& valid);
 
-// Absolute sampling map x + flow(x) for cv::remap (CV_32FC2).
-void flow_to_map(const cv::Mat& flow, cv::Mat& map);
+// The same check for a band of rows: forward_at_target holds rows
+// [first_row, first_row + its rows) of the whole-frame one; those rows of
+// `valid` (already CV_8UC1 of the frame's size) are written. Returns how
+// many of them pass.
+size_t forward_backward_rows(const cv::Mat& flow_backward, const cv::Mat& forward_at_target,
+                             int first_row, cv::Mat& valid);
+
+// Absolute sampling map x + flow(x) for cv::remap (CV_32FC2). With
+// first_row, `flow` is a band of rows of a larger flow starting there, and
+// the map holds that band's coordinates in the whole frame.
+void flow_to_map(const cv::Mat& flow, cv::Mat& map, int first_row = 0);
 
 }  // namespace clipwarden

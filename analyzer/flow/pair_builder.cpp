@@ -9,12 +9,18 @@
 
 namespace clipwarden {
 
-void prepare_planes(int64_t index, double t_s, const cv::Mat& bgr, FramePlanes& planes) {
+void prepare_gray(int64_t index, double t_s, const cv::Mat& bgr, FramePlanes& planes) {
   planes.index = index;
   planes.t_s = t_s;
   if (planes.bgr.data != bgr.data) bgr.copyTo(planes.bgr);
   cv::cvtColor(planes.bgr, planes.gray, cv::COLOR_BGR2GRAY);
-  relative_luminance(planes.bgr, planes.luminance);
+}
+
+void prepare_luminance(FramePlanes& planes) { relative_luminance(planes.bgr, planes.luminance); }
+
+void prepare_planes(int64_t index, double t_s, const cv::Mat& bgr, FramePlanes& planes) {
+  prepare_gray(index, t_s, bgr, planes);
+  prepare_luminance(planes);
 }
 
 namespace {
@@ -49,11 +55,14 @@ static void dis_flow(cv::DISOpticalFlow& dis, const cv::Mat& from, const cv::Mat
   flow_padded(cv::Rect(0, 0, from.cols, from.rows)).copyTo(flow);
 }
 
+// Rows of the float map made at a time (build()).
+constexpr int kBandRows = 32;
+
 struct PairBuilder::Impl {
   cv::Ptr<cv::DISOpticalFlow> dis;
-  cv::Mat map;                // x + flow_backward(x)
-  cv::Mat map_xy, map_fraction;  // the same map in cv::remap's fixed-point form
-  cv::Mat forward_at_target;  // flow_forward sampled at x + flow_backward(x)
+  cv::Mat map;                   // x + flow_backward(x), one band of rows
+  cv::Mat map_xy, map_fraction;  // the whole map in cv::remap's fixed-point form
+  cv::Mat forward_at_target;     // flow_forward sampled at x + flow_backward(x), one band
 };
 
 PairBuilder::PairBuilder(Preset preset) : impl_(std::make_unique<Impl>()) {
@@ -80,13 +89,31 @@ void PairBuilder::build(const FramePlanes& prev, const FramePlanes& cur, FramePa
   // cv::remap turns a float map into 1/32-pixel fixed point block by block
   // on every call; converting it once for the three planes gives the same
   // bytes (checked by a unit test) for a third of the conversions.
-  flow_to_map(pair.flow_backward, impl_->map);
-  cv::convertMaps(impl_->map, cv::noArray(), impl_->map_xy, impl_->map_fraction, CV_16SC2);
+  // The float map and the forward flow sampled through it are needed only
+  // on the way (to the fixed-point map, to the check), so they are made a
+  // band of rows at a time: every value depends only on its own pixel's map,
+  // and the builder holds two bands instead of two whole float planes.
+  const cv::Size size = pair.flow_backward.size();
+  impl_->map_xy.create(size, CV_16SC2);
+  impl_->map_fraction.create(size, CV_16UC1);
+  pair.valid.create(size, CV_8UC1);
+  size_t valid_count = 0;
+  for (int y = 0; y < size.height; y += kBandRows) {
+    const cv::Range rows(y, std::min(size.height, y + kBandRows));
+    flow_to_map(pair.flow_backward.rowRange(rows), impl_->map, y);
+    cv::Mat map_xy = impl_->map_xy.rowRange(rows),
+            map_fraction = impl_->map_fraction.rowRange(rows);
+    cv::convertMaps(impl_->map, cv::noArray(), map_xy, map_fraction, CV_16SC2);
+    cv::remap(pair.flow_forward, impl_->forward_at_target, map_xy, map_fraction, cv::INTER_LINEAR,
+              cv::BORDER_REPLICATE);
+    valid_count +=
+        forward_backward_rows(pair.flow_backward, impl_->forward_at_target, y, pair.valid);
+  }
+  pair.valid_fraction =
+      static_cast<double>(valid_count) / (static_cast<double>(size.width) * size.height);
   const auto warp = [&](const cv::Mat& from, cv::Mat& to) {
     cv::remap(from, to, impl_->map_xy, impl_->map_fraction, cv::INTER_LINEAR, cv::BORDER_REPLICATE);
   };
-  warp(pair.flow_forward, impl_->forward_at_target);
-  pair.valid_fraction = forward_backward_check(pair.flow_backward, impl_->forward_at_target, pair.valid);
   warp(prev.bgr, pair.warped_prev_bgr);
   warp(prev.luminance, pair.warped_prev_luminance);
 

@@ -13,6 +13,11 @@ namespace clipwarden {
 
 // Fills the per-frame planes (gray, luminance) of a decoded frame.
 void prepare_planes(int64_t index, double t_s, const cv::Mat& bgr, FramePlanes& planes);
+// The same in two steps, for a caller that decides from the gray plane
+// whether the frame is analysed at all (the cadence filter): the frame's
+// number, time, BGR and gray first, its luminance once it is analysed.
+void prepare_gray(int64_t index, double t_s, const cv::Mat& bgr, FramePlanes& planes);
+void prepare_luminance(FramePlanes& planes);
 
 // One per worker thread: owns the DIS instance and scratch buffers, so
 // building pairs allocates nothing in the steady state.

@@ -60,6 +60,9 @@ class Analysis {
       for (size_t m = 0; m < metrics_.size(); ++m) metrics_[m]->measure_first(*frame, table_.slot(row, m));
       table_.append(frame->t_s, std::move(row));
     } else {
+      // The oldest pair is committed before the next is taken on, so at
+      // most `window_` jobs (and their buffers) ever exist.
+      while (in_flight_.size() >= window_) commit_oldest();
       std::shared_ptr<PairJob> job = take_job();
       job->prev = prev_;
       job->cur = frame;
@@ -77,7 +80,6 @@ class Analysis {
         job->done.set_value();
       });
       in_flight_.push_back(std::move(job));
-      while (in_flight_.size() > window_) commit_oldest();
     }
     prev_ = std::move(frame);
   }
@@ -98,7 +100,7 @@ class Analysis {
 
  private:
   // Jobs are recycled once committed, so their flow, mask and warp buffers
-  // are reused from pair to pair (window + 1 jobs exist at most).
+  // are reused from pair to pair (window jobs exist at most).
   std::shared_ptr<PairJob> take_job() {
     if (spare_jobs_.empty()) return std::make_shared<PairJob>();
     std::shared_ptr<PairJob> job = std::move(spare_jobs_.back());

@@ -54,31 +54,36 @@ void CadenceFilter::push(Frame frame, std::vector<Frame>& ready) {
     pass(std::move(frame), repeat, ready);
     return;
   }
-  held_.emplace_back(std::move(frame), repeat);
-  if (held_.size() >= lookahead_) {
+  looked_ahead_.push_back(repeat);
+  // Nothing held and a new picture: it is analysed whatever the cadence.
+  if (held_.empty() && !repeat)
+    pass(std::move(frame), false, ready);
+  else
+    held_.emplace_back(std::move(frame), repeat);
+  if (looked_ahead_.size() >= lookahead_) {
     decide(false);
-    while (!held_.empty()) {
-      auto [f, r] = std::move(held_.front());
-      held_.pop_front();
-      pass(std::move(f), r, ready);
-    }
+    release_held(ready);
   }
 }
 
 void CadenceFilter::finish(std::vector<Frame>& ready) {
   if (!decided_) decide(true);
+  release_held(ready);
+  last_.reset();
+}
+
+void CadenceFilter::release_held(std::vector<Frame>& ready) {
   while (!held_.empty()) {
     auto [f, r] = std::move(held_.front());
     held_.pop_front();
     pass(std::move(f), r, ready);
   }
-  last_.reset();
 }
 
 void CadenceFilter::decide(bool at_end) {
   decided_ = true;
   std::vector<int> repeats;
-  for (const auto& [frame, repeat] : held_) {
+  for (const bool repeat : looked_ahead_) {
     if (!repeat)
       repeats.push_back(0);
     else if (!repeats.empty())
@@ -87,6 +92,7 @@ void CadenceFilter::decide(bool at_end) {
   // The last picture's hold may go on past the look-ahead.
   if (!at_end && !repeats.empty()) repeats.pop_back();
   if (auto found = usual_repeats(repeats)) std::tie(usual_repeats_, repeat_share_) = *found;
+  looked_ahead_ = {};
 }
 
 void CadenceFilter::pass(Frame frame, bool repeat, std::vector<Frame>& ready) {

@@ -9,6 +9,12 @@
 // real rate with their original timestamps. A picture held longer than the
 // cadence explains is kept at the content's rate (one repeat per content
 // interval), so it still reads as a freeze.
+//
+// Only a repeat's fate waits for the decision: a new picture is always
+// analysed. So frames pass on at once until the first repeat, and only
+// from there to the decision are they held (a clip without repeats, most
+// generated ones, holds nothing and its analysis starts with its first
+// frame, instead of after 30 decoded frames held in memory).
 #pragma once
 
 #include <deque>
@@ -39,13 +45,14 @@ class CadenceFilter {
  public:
   using Frame = std::shared_ptr<FramePlanes>;
 
-  // lookahead: stored frames examined (and held back) before the cadence is
-  // decided; a shorter clip is decided at its end.
+  // lookahead: stored frames examined before the cadence is decided (those
+  // from the first repeat on are held back until then); a shorter clip is
+  // decided at its end.
   explicit CadenceFilter(size_t lookahead = kDefaultLookahead);
 
-  // The next decoded frame (planes prepared, index = its decoded index).
-  // Appends the frames to analyse, in order, to `ready`, renumbered 0, 1, ...
-  // in analysis order.
+  // The next decoded frame (index = its decoded index; only its gray plane
+  // is read). Appends the frames to analyse, in order, to `ready`,
+  // renumbered 0, 1, ... in analysis order.
   void push(Frame frame, std::vector<Frame>& ready);
   // The stream ended: releases what is still held.
   void finish(std::vector<Frame>& ready);
@@ -60,12 +67,14 @@ class CadenceFilter {
 
  private:
   void decide(bool at_end);
+  void release_held(std::vector<Frame>& ready);
   void pass(Frame frame, bool repeat, std::vector<Frame>& ready);
 
   size_t lookahead_;
   bool decided_ = false;
   int usual_repeats_ = 0;  // 0: no cadence, nothing is left out
   double repeat_share_ = 0;
+  std::vector<bool> looked_ahead_;           // before the decision: each frame a repeat?
   std::deque<std::pair<Frame, bool>> held_;  // frame, is a repeat of the one before
   std::shared_ptr<const FramePlanes> last_;  // the previous decoded frame
   int run_ = 0;                              // repeats of the current picture so far

@@ -18,9 +18,15 @@ void FrameStream::run() {
   DecodedFrame frame;
   using Clock = std::chrono::steady_clock;
   std::vector<CadenceFilter::Frame> ready;
+  // Luminance only for the frames analysed: a repeat the cadence leaves
+  // out never needs it, and a frame held back by the filter waits without.
   auto hand_on = [&] {
-    for (auto& planes : ready)
+    for (auto& planes : ready) {
+      const auto start = Clock::now();
+      prepare_luminance(*planes);
+      busy_ms_ += std::chrono::duration<double, std::milli>(Clock::now() - start).count();
       if (!queue_.push(std::move(planes))) return false;  // consumer stopped
+    }
     ready.clear();
     return true;
   };
@@ -36,7 +42,7 @@ void FrameStream::run() {
       break;
     }
     if (*more == FrameRead::end_of_clip) break;
-    prepare_planes(frame.index, frame.t_s, planes->bgr, *planes);
+    prepare_gray(frame.index, frame.t_s, planes->bgr, *planes);
     cadence_.push(std::move(planes), ready);
     busy_ms_ += std::chrono::duration<double, std::milli>(Clock::now() - start).count();
     if (!hand_on()) return;

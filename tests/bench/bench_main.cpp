@@ -46,6 +46,7 @@
 #include "analyzer/cli/args.h"
 #include "analyzer/cli/command.h"
 #include "analyzer/cli/settings_args.h"
+#include "analyzer/core/allocator_policy.h"
 #include "clipwarden/analysis.h"
 #include "clipwarden/clip_source.h"
 
@@ -386,7 +387,9 @@ std::vector<cli::OptionSpec> bench_specs() {
 }  // namespace
 
 int main(int argc, char** argv) {
-  cv::setNumThreads(1);  // as the clipwarden CLI does (analyzer/cli/module_entry.cpp)
+  // As the clipwarden CLI does (analyzer/cli/module_entry.cpp).
+  cv::setNumThreads(1);
+  keep_freed_buffers_for_reuse();
   std::vector<std::string> args(argv + 1, argv + argc);
   auto parsed = cli::parse_args(args, bench_specs());
   if (!parsed) {

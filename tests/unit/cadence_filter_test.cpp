@@ -57,3 +57,75 @@ TEST(SamePicture, ASmallMovingThingIsNotAFrozenPicture) {
   c(cv::Rect(0, 0, 512, 20)) += cv::Scalar(1);  // a faint band: 20 of 288 rows one level up
   EXPECT_TRUE(same_picture(a, c));
 }
+
+namespace {
+
+// A decoded frame for the filter: only its gray plane is read. Pictures
+// differ by their noise seed (uniform noise, standard deviation ~74 levels:
+// textured); a repeat is the same seed again.
+CadenceFilter::Frame noise_frame(int64_t index, uint64_t seed) {
+  auto f = std::make_shared<FramePlanes>();
+  f->index = index;
+  f->t_s = static_cast<double>(index) / 24.0;
+  f->gray.create(64, 64, CV_8UC1);
+  cv::RNG rng(seed);
+  rng.fill(f->gray, cv::RNG::UNIFORM, 0, 256);
+  return f;
+}
+
+std::vector<int64_t> indices(const std::vector<CadenceFilter::Frame>& frames) {
+  std::vector<int64_t> out;
+  for (const auto& f : frames) out.push_back(f->index);
+  return out;
+}
+
+}  // namespace
+
+// Frames pass on as they come until the first repeat: a new picture is
+// analysed whatever the cadence turns out to be, so only a repeat's fate
+// (and the frames after it, to keep the order) waits for the decision.
+TEST(CadenceStream, NewPicturesPassAtOnceUntilTheFirstRepeat) {
+  CadenceFilter filter;
+  std::vector<CadenceFilter::Frame> ready;
+  for (int64_t i = 0; i < 5; ++i) {
+    filter.push(noise_frame(i, 100 + i), ready);
+    ASSERT_EQ(ready.size(), 1u) << "frame " << i << " was held back";
+    EXPECT_EQ(ready.front()->index, i);
+    ready.clear();
+  }
+  filter.push(noise_frame(5, 104), ready);  // repeats frame 4
+  filter.push(noise_frame(6, 106), ready);  // new, but after a held repeat
+  EXPECT_TRUE(ready.empty());
+  filter.finish(ready);
+  // One repeat in six pictures is no cadence (fewer than 3 repeated): all
+  // seven frames are analysed, in order, with their own numbers.
+  EXPECT_EQ(indices(ready), (std::vector<int64_t>{0, 1, 2, 3, 4, 5, 6}));
+  EXPECT_EQ(filter.source_frames(), (std::vector<int64_t>{0, 1, 2, 3, 4, 5, 6}));
+}
+
+// 8 fps content stored at 24 fps: each picture 3 times (decoded frames 0,
+// 1, 2 one picture, 3, 4, 5 the next, ...; worked by hand, the pattern
+// FFmpeg's fps filter writes, tests/reference/cadence_reference_test.cpp).
+// The first picture passes at once; from its first repeat on everything
+// waits for the decision at the 30th frame, which drops the repeats.
+TEST(CadenceStream, StoredThreeTimesIsDecidedAtTheLookahead) {
+  CadenceFilter filter;
+  std::vector<CadenceFilter::Frame> ready;
+  std::vector<int64_t> handed_on_after;  // frames out after each push
+  for (int64_t i = 0; i < 36; ++i) {
+    filter.push(noise_frame(i, 200 + static_cast<uint64_t>(i / 3)), ready);
+    handed_on_after.push_back(static_cast<int64_t>(ready.size()));
+  }
+  EXPECT_EQ(handed_on_after[0], 1);
+  EXPECT_EQ(handed_on_after[28], 1);   // held since frame 1
+  EXPECT_EQ(handed_on_after[29], 10);  // decided: pictures 0..9 (frames 0, 3, ..., 27)
+  filter.finish(ready);
+  ASSERT_EQ(ready.size(), 12u);
+  EXPECT_EQ(indices(ready), (std::vector<int64_t>{0, 1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11}));
+  const std::vector<int64_t> expected_sources{0, 3, 6, 9, 12, 15, 18, 21, 24, 27, 30, 33};
+  EXPECT_EQ(filter.source_frames(), expected_sources);
+  const auto cadence = filter.cadence(36 / 24.0);
+  ASSERT_TRUE(cadence);
+  EXPECT_EQ(cadence->usual_repeats, 2);
+  EXPECT_EQ(cadence->pictures, 12);
+}
