@@ -35,18 +35,23 @@ bool same_bits(const cv::Mat& a, const cv::Mat& b) {
   return true;
 }
 
+// The reference: the same OpenCV calls on whole planes.
+void whole_plane_gradient(const cv::Mat& gray, cv::Mat& magnitude, cv::Mat& angle) {
+  cv::Mat smoothed, gx, gy;
+  cv::GaussianBlur(gray, smoothed, cv::Size(5, 5), 1.0, 1.0, cv::BORDER_REPLICATE);
+  cv::Sobel(smoothed, gx, CV_32F, 1, 0, 3, 1.0 / 8.0, 0, cv::BORDER_REPLICATE);
+  cv::Sobel(smoothed, gy, CV_32F, 0, 1, 3, 1.0 / 8.0, 0, cv::BORDER_REPLICATE);
+  cv::cartToPolar(gx, gy, magnitude, angle, false);
+}
+
 TEST(DriftFrameFeatures, BandedGradientEqualsWholePlaneOpenCv) {
   cv::Mat gray, bgr;
   textured_frame(gray, bgr);
   FrameFeatures features;
   features.compute(3, gray, bgr, 2);
 
-  // Reference: the same OpenCV calls on whole planes.
-  cv::Mat smoothed, gx, gy, magnitude, angle;
-  cv::GaussianBlur(gray, smoothed, cv::Size(5, 5), 1.0, 1.0, cv::BORDER_REPLICATE);
-  cv::Sobel(smoothed, gx, CV_32F, 1, 0, 3, 1.0 / 8.0, 0, cv::BORDER_REPLICATE);
-  cv::Sobel(smoothed, gy, CV_32F, 0, 1, 3, 1.0 / 8.0, 0, cv::BORDER_REPLICATE);
-  cv::cartToPolar(gx, gy, magnitude, angle, false);
+  cv::Mat magnitude, angle;
+  whole_plane_gradient(gray, magnitude, angle);
 
   EXPECT_TRUE(same_bits(features.magnitude(), magnitude));
   EXPECT_TRUE(same_bits(features.angle(), angle));
@@ -65,11 +70,8 @@ TEST(DriftFrameFeatures, ReusedForAnotherSize) {
   const cv::Mat small_gray = gray(cv::Rect(0, 0, 64, 40)).clone(),
                 small_bgr = bgr(cv::Rect(0, 0, 64, 40)).clone();
   features.compute(1, small_gray, small_bgr, 2);
-  cv::Mat smoothed, gx, gy, magnitude, angle;
-  cv::GaussianBlur(small_gray, smoothed, cv::Size(5, 5), 1.0, 1.0, cv::BORDER_REPLICATE);
-  cv::Sobel(smoothed, gx, CV_32F, 1, 0, 3, 1.0 / 8.0, 0, cv::BORDER_REPLICATE);
-  cv::Sobel(smoothed, gy, CV_32F, 0, 1, 3, 1.0 / 8.0, 0, cv::BORDER_REPLICATE);
-  cv::cartToPolar(gx, gy, magnitude, angle, false);
+  cv::Mat magnitude, angle;
+  whole_plane_gradient(small_gray, magnitude, angle);
   EXPECT_TRUE(same_bits(features.magnitude(), magnitude));
   EXPECT_TRUE(same_bits(features.angle(), angle));
 }
