@@ -1,7 +1,7 @@
 // Calibration (include/clipwarden/calibrate.h) on synthetic decisions made
 // by a known bar: people reject a clip whose flicker p95 is at least 0.15,
 // want a second look from 0.06, and keep the rest. Starting from the
-// built-in policy (flicker p95 review 0.04, reject 0.1), the proposal must
+// built-in policy (flicker p95 review 0.05, reject 0.1), the proposal must
 // recover both levels to within half the spacing of the clips' values
 // (0.005 apart, so +-0.0025), agree with every decision, and write a policy
 // that gate reads back. Too few decisions: nothing moves, and the count

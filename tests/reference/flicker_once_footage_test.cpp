@@ -1,0 +1,85 @@
+// Light that changes once is not flicker; light that pulses again and again
+// is. Outside anchors: opencv-doc vtest.avi (a street seen by a still
+// camera, 10 fps) whose brightness FFmpeg's eq filter lifts for three
+// frames once, or three times within 1.2 s; and camera clips of the
+// evaluation corpus (CLIPWARDEN_CORPUS; skipped without it) whose light
+// changes once: a stove's fire leaving the picture as the camera swings to
+// a dog, a gym's exposure stepping up and back, a cockatoo's head at the
+// lens. A reviewer looking at those frames sees no flicker.
+#include <gtest/gtest.h>
+
+#include <algorithm>
+#include <cmath>
+#include <string>
+
+#include "clipwarden/analysis.h"
+#include "support/clips.h"
+#include "support/corpus.h"
+#include "support/drift_pairs.h"
+
+namespace clipwarden::test {
+namespace {
+
+constexpr int kFrames = 50;  // 5 s of vtest.avi at 10 fps
+
+// The first kFrames of vtest.avi with eq's brightness (an offset on Y' in
+// [-1, 1]) raised by `lift` on the frames `when` selects, losslessly coded.
+Report street_lifted(const std::string& vtest, const std::string& when, double lift) {
+  TempDir dir;
+  const std::string out = dir.file("street.mkv");
+  const std::string eq = "eq=brightness='" + std::to_string(lift) + "*(" + when + ")':eval=frame";
+  const auto made = run_command({"ffmpeg", "-nostdin", "-v", "error", "-y", "-i", vtest, "-frames:v",
+                                 std::to_string(kFrames), "-vf", eq, "-c:v", "ffv1", out});
+  EXPECT_EQ(made.exit_code, 0) << made.err;
+  return analyse_with_defaults(out);
+}
+
+const Segment* strongest(const Report& r, const std::string& metric) {
+  const Segment* best = nullptr;
+  for (const Segment& s : r.segments)
+    if (s.metric == metric && (!best || s.peak > best->peak)) best = &s;
+  return best;
+}
+
+// The same lift, 0.3 s long, once and three times 0.6 s apart: only the
+// repeated one is flicker a reviewer should see. Measured 2026-12-05 with
+// lift 0.012 (about +3 of 255 on Y'): the step reads 0.07 of the street's
+// level at its frames, a review before lone changes counted at half.
+TEST(FlickerOnceFootage, ALiftThatComesOnceStaysBelowReviewAndARepeatedOneIsFound) {
+  const std::string vtest = opencv_sample("vtest.avi");
+  if (vtest.empty()) GTEST_SKIP() << "opencv-doc vtest.avi not installed";
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
+  const Report once = street_lifted(vtest, "between(n,20,22)", 0.012);
+  const Report repeated = street_lifted(vtest, "between(n,20,22)+between(n,26,28)+between(n,32,34)", 0.012);
+  const Segment* lone = strongest(once, "flicker");
+  const Segment* pulses = strongest(repeated, "flicker");
+  ASSERT_NE(pulses, nullptr) << "three lifts within 1.2 s were not found";
+  EXPECT_NE(pulses->severity, Severity::info) << "peak " << pulses->peak;
+  EXPECT_LE(pulses->start_frame, 22);
+  EXPECT_GE(pulses->end_frame, 32);
+  if (lone) {
+    EXPECT_EQ(lone->severity, Severity::info) << "peak " << lone->peak;
+    // Counted at half, not dropped: the lone step is still in the series.
+    EXPECT_GT(lone->peak, 0.5 * 0.04);
+  }
+  EXPECT_NE(once.verdict.status, Verdict::reject);
+}
+
+// Camera clips whose light changes once: no flicker segment above info.
+// Before lone changes counted at half (measured 2026-12-05) they were
+// reviewed at 0.094 (frames 9-11), 0.058 (29-37) and 0.082 (157-158).
+TEST(FlickerOnceFootage, LightThatChangesOnceInCameraClipsIsNotReviewed) {
+  for (const std::string name : {"cam_moviepy_fire2.mp4", "cam_mmaction2_test_video_structuralize.mp4",
+                                 "cam_imageio_cockatoo.mp4"}) {
+    const std::string path = corpus_clip(name);
+    if (path.empty()) GTEST_SKIP() << "evaluation corpus not found (set CLIPWARDEN_CORPUS)";
+    const Report r = analyse_with_defaults(path);
+    for (const Segment& s : r.segments)
+      if (s.metric == "flicker")
+        EXPECT_EQ(s.severity, Severity::info)
+            << name << ": frames " << s.start_frame << "-" << s.end_frame << " peak " << s.peak;
+  }
+}
+
+}  // namespace
+}  // namespace clipwarden::test
