@@ -1,7 +1,7 @@
 // Light that changes once is not flicker; light that pulses again and again
 // is. Outside anchors: opencv-doc vtest.avi (a street seen by a still
 // camera, 10 fps) whose brightness FFmpeg's eq filter lifts for three
-// frames once, or three times within 1.2 s; and camera clips of the
+// frames once, or on four single frames within 1.2 s; and camera clips of the
 // evaluation corpus (CLIPWARDEN_CORPUS; skipped without it) whose light
 // changes once: a stove's fire leaving the picture as the camera swings to
 // a dog, a gym's exposure stepping up and back, a cockatoo's head at the
@@ -28,8 +28,9 @@ Report street_lifted(const std::string& vtest, const std::string& when, double l
   TempDir dir;
   const std::string out = dir.file("street.mkv");
   const std::string eq = "eq=brightness='" + std::to_string(lift) + "*(" + when + ")':eval=frame";
-  const auto made = run_command({"ffmpeg", "-nostdin", "-v", "error", "-y", "-i", vtest, "-frames:v",
-                                 std::to_string(kFrames), "-vf", eq, "-c:v", "ffv1", out});
+  const auto made =
+      run_command({"ffmpeg", "-nostdin", "-v", "error", "-y", "-i", vtest, "-frames:v",
+                   std::to_string(kFrames), "-vf", eq, "-c:v", "ffv1", out});
   EXPECT_EQ(made.exit_code, 0) << made.err;
   return analyse_with_defaults(out);
 }
@@ -41,36 +42,40 @@ const Segment* strongest(const Report& r, const std::string& metric) {
   return best;
 }
 
-// The same lift, 0.3 s long, once and three times 0.6 s apart: only the
-// repeated one is flicker a reviewer should see. Measured 2026-12-05 with
-// lift 0.012 (about +3 of 255 on Y'): the step reads 0.07 of the street's
-// level at its frames, a review before lone changes counted at half.
+// A lift of 0.025 (about +6 of 255 on Y') reads about 0.066 of the
+// street's level at its frames (measured 2026-12-05). Held for 0.3 s once,
+// it counts at half (0.033, under the 0.04 where segments start; before
+// lone changes counted at half it was a review); on single frames every
+// 0.4 s (a minority of each 1 s median window) each lift repeats the
+// others and keeps its value: reviews.
 TEST(FlickerOnceFootage, ALiftThatComesOnceStaysBelowReviewAndARepeatedOneIsFound) {
   const std::string vtest = opencv_sample("vtest.avi");
   if (vtest.empty()) GTEST_SKIP() << "opencv-doc vtest.avi not installed";
   CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
-  const Report once = street_lifted(vtest, "between(n,20,22)", 0.012);
-  const Report repeated = street_lifted(vtest, "between(n,20,22)+between(n,26,28)+between(n,32,34)", 0.012);
+  const Report once = street_lifted(vtest, "between(n,20,22)", 0.025);
+  const Report repeated = street_lifted(vtest, "eq(n,20)+eq(n,24)+eq(n,28)+eq(n,32)", 0.025);
   const Segment* lone = strongest(once, "flicker");
   const Segment* pulses = strongest(repeated, "flicker");
-  ASSERT_NE(pulses, nullptr) << "three lifts within 1.2 s were not found";
+  ASSERT_NE(pulses, nullptr) << "four lifts within 1.2 s were not found";
   EXPECT_NE(pulses->severity, Severity::info) << "peak " << pulses->peak;
-  EXPECT_LE(pulses->start_frame, 22);
-  EXPECT_GE(pulses->end_frame, 32);
-  if (lone) {
-    EXPECT_EQ(lone->severity, Severity::info) << "peak " << lone->peak;
-    // Counted at half, not dropped: the lone step is still in the series.
-    EXPECT_GT(lone->peak, 0.5 * 0.04);
-  }
-  EXPECT_NE(once.verdict.status, Verdict::reject);
+  EXPECT_GE(pulses->peak_frame, 20);
+  EXPECT_LE(pulses->peak_frame, 32);
+  if (lone) EXPECT_EQ(lone->severity, Severity::info) << "peak " << lone->peak;
+  // Counted at half, not dropped: the lone lift is still in the series.
+  const MetricSeries* series = once.find_series("flicker");
+  ASSERT_NE(series, nullptr);
+  EXPECT_GT(series->values[21], 0.02);
+  EXPECT_LT(series->values[21], 0.04);
+  EXPECT_EQ(once.verdict.status, Verdict::pass);
 }
 
 // Camera clips whose light changes once: no flicker segment above info.
 // Before lone changes counted at half (measured 2026-12-05) they were
 // reviewed at 0.094 (frames 9-11), 0.058 (29-37) and 0.082 (157-158).
 TEST(FlickerOnceFootage, LightThatChangesOnceInCameraClipsIsNotReviewed) {
-  for (const std::string name : {"cam_moviepy_fire2.mp4", "cam_mmaction2_test_video_structuralize.mp4",
-                                 "cam_imageio_cockatoo.mp4"}) {
+  for (const std::string name :
+       {"cam_moviepy_fire2.mp4", "cam_mmaction2_test_video_structuralize.mp4",
+        "cam_imageio_cockatoo.mp4"}) {
     const std::string path = corpus_clip(name);
     if (path.empty()) GTEST_SKIP() << "evaluation corpus not found (set CLIPWARDEN_CORPUS)";
     const Report r = analyse_with_defaults(path);

@@ -26,7 +26,7 @@ constexpr ExcursionRule kRule{.min_level = 0.02, .comparable_share = 0.5, .withi
 TEST(LightExcursions, OneStepUpAndBackIsLone) {
   std::vector<double> v(40, 0.0);
   for (int t = 20; t <= 22; ++t) v[t] = 0.07;  // 0.3 s up, as a camera's exposure step
-  v[23] = 0.01;                                  // under min_level: not a departure
+  v[23] = 0.01;                                // under min_level: not a departure
   const auto lone = lone_excursion_frames(v, times(v.size()), kRule);
   for (size_t t = 0; t < v.size(); ++t) EXPECT_EQ(lone[t], t >= 20 && t <= 22) << t;
 }
@@ -42,8 +42,8 @@ TEST(LightExcursions, SquareWaveAtFourHertzIsRepeated) {
 TEST(LightExcursions, AReboundUnderHalfAndAStepFarAwayDoNotRepeat) {
   std::vector<double> v(60, 0.0);
   v[10] = v[11] = -0.10;  // a dip ...
-  v[14] = 0.04;            // ... with a rebound under half its depth
-  v[40] = v[41] = 0.10;    // a comparable step 2.8 s later: too far to repeat it
+  v[14] = 0.04;           // ... with a rebound under half its depth
+  v[40] = v[41] = 0.10;   // a comparable step 2.8 s later: too far to repeat it
   const auto lone = lone_excursion_frames(v, times(v.size()), kRule);
   EXPECT_TRUE(lone[10] && lone[11] && lone[40] && lone[41]);
   EXPECT_TRUE(lone[14]);  // the dip is more than twice the rebound: not comparable
