@@ -16,10 +16,6 @@ double rounded(double v, double unit) {
   return std::round(v / unit) * unit;
 }
 
-nlohmann::json number_or_null(double v, double unit) {
-  const double r = rounded(v, unit);
-  return std::isnan(r) ? nlohmann::json(nullptr) : nlohmann::json(r);
-}
 
 // Where a stretch of drift began: the last sample before it reached the
 // enter level at which the drift was still at its baseline (the median
@@ -193,7 +189,7 @@ nlohmann::json drift_summary(const std::vector<ObjectTrack>& objects) {
           {"vanished", vanished},
           {"end_reasons", std::move(end_reasons)},
           {"worst_object", worst_id},
-          {"peak_drift", worst < 0 ? nlohmann::json(nullptr) : number_or_null(worst, 1e-4)}};
+          {"peak_drift", worst < 0 ? nlohmann::json(nullptr) : nlohmann::json(rounded(worst, 1e-4))}};
 }
 
 }  // namespace clipwarden::drift
