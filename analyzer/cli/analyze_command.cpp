@@ -8,6 +8,7 @@
 #include "analyzer/cli/output_names.h"
 #include "analyzer/cli/progress.h"
 #include "analyzer/cli/settings_args.h"
+#include "analyzer/inspect/page_pictures.h"
 #include "clipwarden/analysis.h"
 #include "clipwarden/report_io.h"
 
@@ -64,7 +65,7 @@ int run_analyze(const std::vector<std::string>& args) {
     const std::string base = (std::filesystem::path(out_dir) / namer.unique_name(clip)).string();
     ReportExtras extras;
     extras.settings = &options->settings;
-    extras.thumbnails = &thumbnails;
+    extras.thumbnails = &thumbnails.thumbnails();
     auto written = write_reports(*report, base, html, extras);
     if (!written) {
       print_error(written.error().message());

@@ -136,7 +136,7 @@ int run_gate(const std::vector<std::string>& args) {
   const bool html = !parsed->has("no-html");
   gate.collect_thumbnails = html;
   gate.write_report = [html](const Report& r, const std::string& base,
-                             const ThumbnailCollector* thumbnails) {
+                             const std::vector<Thumbnail>* thumbnails) {
     ReportExtras extras;
     extras.thumbnails = thumbnails;
     return write_reports(r, base, html, extras);

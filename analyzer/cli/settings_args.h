@@ -29,7 +29,7 @@ struct ReportExtras {
   const AnalysisSettings* settings = nullptr;
   // Thumbnails kept during analysis (AnalysisHooks::on_frame). Null or
   // empty: the page's own pass over the clip collects them.
-  const ThumbnailCollector* thumbnails = nullptr;
+  const std::vector<Thumbnail>* thumbnails = nullptr;
   HtmlOptions html;  // e.g. manifest facts (prompt, model) shown on the page
 };
 

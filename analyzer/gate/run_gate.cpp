@@ -32,6 +32,7 @@
 #include <thread>
 
 #include "analyzer/gate/folder_lock.h"
+#include "analyzer/inspect/page_pictures.h"
 #include "clipwarden/gate.h"
 #include "clipwarden/html_report.h"
 #include "clipwarden/report_io.h"
@@ -115,7 +116,7 @@ void analyse_and_store(Batch& b, const std::string& base, ClipResult& r) {
   // A frame folder has no file hash of its own: its report carries the
   // content hash the queue and store use, so merge can match the two.
   if (report->clip.sha256.empty()) report->clip.sha256 = r.sha256;
-  auto written = b.write_report(*report, base, thumbnails ? &*thumbnails : nullptr);
+  auto written = b.write_report(*report, base, thumbnails ? &thumbnails->thumbnails() : nullptr);
   if (!written) {
     r.error = written.error();
     return;
@@ -370,7 +371,7 @@ Expected<GateRun> run_gate(const std::vector<GateInput>& inputs, const GateOptio
   b.analyze = options.analyze ? options.analyze : AnalyzeFunction(analyze_clip);
   b.write_report =
       options.write_report ? options.write_report
-                           : [](const Report& r, const std::string& base, const ThumbnailCollector*) {
+                           : [](const Report& r, const std::string& base, const std::vector<Thumbnail>*) {
                                return write_json_report(r, base + ".json");
                              };
   b.observer = observer;

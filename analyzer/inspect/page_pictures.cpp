@@ -10,7 +10,7 @@
 #include "analyzer/encode/picture_encoding.h"
 #include "analyzer/inspect/frame_walk.h"
 #include "analyzer/inspect/panels.h"
-#include "clipwarden/html_report.h"
+#include "analyzer/inspect/page_pictures.h"
 #include "clipwarden/report_io.h"
 #include "analyzer/core/object_boxes.h"
 
@@ -222,9 +222,9 @@ HtmlAssets collect_html_assets(const Report& report, const AnalysisSettings& set
 
 Status write_html_report(const Report& report, const std::string& path,
                          const AnalysisSettings& settings, const HtmlOptions& options,
-                         const ThumbnailCollector* thumbnails) {
-  HtmlAssets assets = collect_html_assets(
-      report, settings, options, thumbnails ? thumbnails->thumbnails() : std::vector<Thumbnail>{});
+                         const std::vector<Thumbnail>* thumbnails) {
+  HtmlAssets assets = collect_html_assets(report, settings, options,
+                                          thumbnails ? *thumbnails : std::vector<Thumbnail>{});
   return write_file_atomic(path, render_clip_page(report, assets, options));
 }
 

@@ -140,7 +140,7 @@ std::unique_ptr<GateIterator> gate(const py::object& paths, const py::object& ou
   }
   gate.collect_thumbnails = html;  // the pages then need not decode each clip again
   gate.write_report = [html](const Report& r, const std::string& base,
-                             const ThumbnailCollector* thumbnails) {
+                             const std::vector<Thumbnail>* thumbnails) {
     cli::ReportExtras extras;
     extras.thumbnails = thumbnails;
     return cli::write_reports(r, base, html, extras);

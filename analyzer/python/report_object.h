@@ -9,6 +9,7 @@
 #include <nlohmann/json.hpp>
 
 #include "clipwarden/analysis.h"
+#include "analyzer/inspect/page_pictures.h"
 #include "clipwarden/html_report.h"
 #include "clipwarden/report.h"
 
@@ -22,7 +23,9 @@ class ReportObject {
   const Report& report() const { return report_; }
   const nlohmann::json& json() const { return json_; }
   const AnalysisSettings& settings() const { return settings_; }
-  const ThumbnailCollector* thumbnails() const { return thumbnails_.get(); }
+  const std::vector<Thumbnail>* thumbnails() const {
+    return thumbnails_ ? &thumbnails_->thumbnails() : nullptr;
+  }
 
  private:
   Report report_;

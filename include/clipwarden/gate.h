@@ -22,7 +22,7 @@
 
 namespace clipwarden {
 
-class ThumbnailCollector;  // clipwarden/html_report.h
+struct Thumbnail;  // clipwarden/html_report.h
 
 // One clip of a batch.
 struct GateInput {
@@ -136,7 +136,7 @@ using AnalyzeFunction = std::function<Expected<Report>(
 // whole clip again; null when not collected or when the report came from
 // the results store.
 using ReportWriter = std::function<Status(const Report& report, const std::string& base_path,
-                                          const ThumbnailCollector* thumbnails)>;
+                                          const std::vector<Thumbnail>* thumbnails)>;
 
 struct GateOptions {
   AnalysisSettings settings;  // settings.threads = 0: max(1, cores / jobs) per clip

@@ -5,9 +5,9 @@
 //
 // The report holds numbers only; the page also needs pixels. They are
 // gathered in two cheap steps, so analysis memory stays bounded:
-//   1. during analysis, a ThumbnailCollector on AnalysisHooks::on_frame keeps
-//      a few small JPEG thumbnails (at most max_count, thinned as the clip
-//      grows);
+//   1. during analysis, a hook on AnalysisHooks::on_frame may keep a few
+//      small JPEG thumbnails (a bounded strip, thinned as the clip grows;
+//      the CLI and the gate do);
 //   2. after analysis, collect_html_assets() decodes the clip once more and
 //      builds frame pairs only at the worst frames of the flagged segments
 //      (and crops objects' first looks), as `clipwarden inspect` does.
@@ -22,9 +22,7 @@
 #include <opencv2/core.hpp>
 
 #include "clipwarden/analysis.h"
-#include "clipwarden/clip_source.h"
 #include "clipwarden/error.h"
-#include "clipwarden/inspect.h"
 #include "clipwarden/report.h"
 
 namespace clipwarden {
@@ -37,31 +35,12 @@ struct EncodedImage {
   int height_px = 0;
   bool empty() const { return bytes.empty(); }
 };
-EncodedImage encode_jpeg(const cv::Mat& bgr, int quality);
-EncodedImage encode_png(const cv::Mat& image);
 
+// One picture of the page's strip of thumbnails.
 struct Thumbnail {
   int64_t frame_index = 0;
   double t_s = 0;
   EncodedImage image;
-};
-
-// Keeps one thumbnail every `interval` frames; when more than max_count
-// would be kept, the interval doubles and every other thumbnail is dropped,
-// so memory is bounded whatever the clip's length.
-class ThumbnailCollector {
- public:
-  explicit ThumbnailCollector(int max_count = 16, int width_px = 160, int jpeg_quality = 70);
-  void add(const DecodedFrame& frame);  // usable as AnalysisHooks::on_frame
-  const std::vector<Thumbnail>& thumbnails() const { return thumbnails_; }
-  int64_t interval_frames() const { return interval_; }
-
- private:
-  int max_count_;
-  int width_px_;
-  int jpeg_quality_;
-  int64_t interval_ = 1;
-  std::vector<Thumbnail> thumbnails_;
 };
 
 // A tracked object seen at a panel's frame (drift).
@@ -112,19 +91,6 @@ struct HtmlOptions {
   int jpeg_quality = 80;
 };
 
-// The frames whose panels the page shows: the peak frames of the segments,
-// worst first (reject, review, info; then longer first), without repeats,
-// at most options.max_panel_sets.
-std::vector<int64_t> panel_frames(const Report& report, const HtmlOptions& options);
-
-// Encodes panels (downscaled to options.panel_width_px) for the page and adds
-// the drift looks of objects present at that frame.
-PanelImages encode_panels(const FramePanels& panels, const Report& report,
-                          const HtmlOptions& options);
-
-// The legends of the panel sets (the same for every clip).
-PanelLegends make_panel_legends();
-
 // Step 2 above. `thumbnails` are those collected during analysis; when empty
 // they are collected in this pass. Never fails: if the clip cannot be read
 // again, the assets carry a note saying so and the page is written without
@@ -137,8 +103,10 @@ std::string render_clip_page(const Report& report, const HtmlAssets& assets,
                              const HtmlOptions& options);
 
 // collect_html_assets + render_clip_page, written atomically to `path`.
+// `thumbnails`: a strip already at hand (the CLI and the gate keep one from
+// the analysis' own frames); null to take it in the picture pass.
 Status write_html_report(const Report& report, const std::string& path,
                          const AnalysisSettings& settings, const HtmlOptions& options,
-                         const ThumbnailCollector* thumbnails);
+                         const std::vector<Thumbnail>* thumbnails);
 
 }  // namespace clipwarden

@@ -3,6 +3,7 @@
 #include <cmath>
 #include <cstdio>
 
+#include "clipwarden/inspect.h"
 #include "report/html/html_escape.h"
 #include "analyzer/core/object_boxes.h"
 #include "report/html/page_parts.h"

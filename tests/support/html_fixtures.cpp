@@ -4,6 +4,7 @@
 
 #include <opencv2/imgproc.hpp>
 
+#include "analyzer/inspect/page_pictures.h"
 #include "analyzer/inspect/panels.h"
 #include "analyzer/core/object_boxes.h"
 

@@ -11,6 +11,7 @@
 #include <regex>
 
 #include "clipwarden/html_report.h"
+#include "analyzer/inspect/page_pictures.h"
 #include "report/html/csp.h"
 #include "analyzer/core/object_boxes.h"
 #include "support/html_fixtures.h"
