@@ -1,4 +1,5 @@
 #include "analyzer/decode/stream_timing.h"
+#include "analyzer/frame/series_math.h"
 
 #include <algorithm>
 #include <cmath>
@@ -44,9 +45,7 @@ double StreamTiming::nominal_interval_ticks() const {
   for (int64_t d : intervals_)
     if (d > 0) positive.push_back(d);
   if (positive.empty()) return fallback_interval_ticks_;
-  auto middle = positive.begin() + static_cast<std::ptrdiff_t>(positive.size() / 2);
-  std::nth_element(positive.begin(), middle, positive.end());
-  return static_cast<double>(*middle);
+  return static_cast<double>(upper_median_in_place(positive));
 }
 
 StreamFacts StreamTiming::facts() const {

@@ -1,6 +1,8 @@
 // Small statistics on per-frame series (NaN = undefined, skipped).
 #pragma once
 
+#include <algorithm>
+#include <cstddef>
 #include <span>
 #include <vector>
 
@@ -16,6 +18,22 @@ double quantile(std::vector<double> values, double q);
 // The same on values already sorted ascending (no copy); NaN when empty or
 // when q lies outside [0,1].
 double quantile_of_sorted(std::span<const double> sorted, double q);
+
+// The median as an element of the data: the middle value for an odd count,
+// the upper of the two middle ones for an even count (numpy.median would
+// average those two). Linear time (std::nth_element); reorders `values`,
+// which must not be empty. For the many places that want a typical level
+// fast and need no interpolation.
+template <class T>
+T upper_median_in_place(std::span<T> values) {
+  const auto middle = values.begin() + static_cast<std::ptrdiff_t>(values.size() / 2);
+  std::nth_element(values.begin(), middle, values.end());
+  return *middle;
+}
+template <class T>
+T upper_median_in_place(std::vector<T>& values) {
+  return upper_median_in_place(std::span<T>(values));
+}
 
 // Median absolute deviation about the median (unscaled).
 double median_absolute_deviation(const std::vector<double>& values);

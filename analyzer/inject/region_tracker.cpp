@@ -1,4 +1,5 @@
 #include "analyzer/inject/region_tracker.h"
+#include "analyzer/frame/series_math.h"
 
 #include <algorithm>
 #include <vector>
@@ -8,12 +9,7 @@
 namespace clipwarden::inject {
 namespace {
 
-double median_of(std::vector<float>& v) {
-  if (v.empty()) return 0;
-  auto mid = v.begin() + static_cast<std::ptrdiff_t>(v.size() / 2);
-  std::nth_element(v.begin(), mid, v.end());
-  return *mid;
-}
+double median_of(std::vector<float>& v) { return v.empty() ? 0 : upper_median_in_place(v); }
 
 cv::Mat small_gray(const cv::Mat& bgr, double scale) {
   cv::Mat gray, small;

@@ -14,6 +14,7 @@
 
 #include "analyzer/metrics/image_error.h"
 #include "analyzer/metrics/metric.h"
+#include "analyzer/frame/series_math.h"
 #include "analyzer/frame/shot_boundaries.h"
 #include "analyzer/metrics/natural_levels.h"
 
@@ -127,9 +128,7 @@ double median_flow_magnitude(const cv::Mat& flow, const cv::Mat& valid) {
       if (m[x]) magnitudes.push_back(std::hypot(f[x][0], f[x][1]));
   }
   if (magnitudes.empty()) return kUndefined;
-  auto middle = magnitudes.begin() + static_cast<std::ptrdiff_t>(magnitudes.size() / 2);
-  std::nth_element(magnitudes.begin(), middle, magnitudes.end());
-  return *middle;
+  return upper_median_in_place(magnitudes);
 }
 
 class WarpErrorMetric final : public Metric {

@@ -3,6 +3,7 @@
 #include <cmath>
 #include <cstdio>
 
+#include "analyzer/frame/series_math.h"
 #include "analyzer/metrics/metric_descriptor.h"
 #include "report/html/html_escape.h"
 #include "report/html/page_parts.h"
@@ -70,8 +71,7 @@ TimeAxis time_axis(const Report& report) {
   for (size_t i = 1; i < t.size(); ++i)
     if (t[i] > t[i - 1]) steps.push_back(t[i] - t[i - 1]);
   if (!steps.empty()) {
-    std::nth_element(steps.begin(), steps.begin() + steps.size() / 2, steps.end());
-    axis.frame_interval_s = steps[steps.size() / 2];
+    axis.frame_interval_s = upper_median_in_place(steps);
   } else if (report.clip.fps > 0) {
     axis.frame_interval_s = 1.0 / report.clip.fps;
   } else {
