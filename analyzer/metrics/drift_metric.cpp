@@ -34,7 +34,9 @@ const MetricDescriptor& drift_descriptor() {
            .frame_rate_text = "compares with the object's first look; size is read over 2 s, rates are per "
                               "second",
            // The combined scale is max(ΔE00 / 20, structure / 0.6, |ln size
-           // change over 2 s| / ln 1.3). Measured 2026-12-02 at 512 px,
+           // change over 2 s| / ln 1.3), since refined (docs/drift.md: own
+           // colour, size and a moving object's brightness held under
+           // review). Measured 2026-12-02 at 512 px,
            // balanced preset: clean opencv-doc vtest.avi (first 150 frames)
            // peaks at 0.79, tree.avi at 0.49; injected drifts on real images
            // read 1.2 (hue turned 40 degrees, ΔE00 23) and 1.4 (30% shrink
