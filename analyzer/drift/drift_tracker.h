@@ -113,6 +113,7 @@ class DriftTracker {
   void confirm_support(const FramePair& pair, ObjectTrack& object);
   void decide_state(const FramePair& pair, ObjectTrack& object, const PointCounts& counts);
   bool looks_like_itself(const PointCounts& counts) const;
+  bool seen_well(const PointCounts& counts, int inside_count) const;
   bool breaks_continuity(const ObjectTrack& object, const ObjectSample& now) const;
   GrayFit fit_object_gray(const ObjectTrack& object) const;
   bool behind_other_object(const ObjectTrack& object, const cv::Rect2f& box) const;

@@ -317,19 +317,14 @@ ObjectSample DriftTracker::update_object(const FramePair& pair, ObjectTrack& obj
     look.colour_ref = cv::Vec3f(static_cast<float>(pred.l), static_cast<float>(pred.a),
                                 static_cast<float>(pred.b));
   }
-  // Drift is read only while the object is followed well: at least 60% of
-  // its points in view are tracked and look like their reference (on
-  // opencv-doc vtest.avi the size readings of walking people swung by a
-  // quarter at 50% visibility). Otherwise (crossing, partial
-  // occlusion, a point set disturbed by an occluder) the frame is left
-  // unmeasured: tracking trouble must not read as drift.
+  // Drift is read only while the object is followed well (`seen_well`).
   const int inside_count = reference_count - counts.outside;
   // An object with most of its points already out of the frame is read on
   // a sliver at the edge, whose windows and histograms are cut by the frame
   // (a walker leaving the hand-held pool scene read structure 0.65 on its
   // last fifth, drift 1.09): it needs half of its points in view.
   const bool mostly_in_view = inside_count * 2 >= reference_count;
-  if (!object.unreliable && look.measured && mostly_in_view && counts.visible * 10 >= inside_count * 6 &&
+  if (!object.unreliable && look.measured && mostly_in_view && seen_well(counts, inside_count) &&
       looks_like_itself(counts)) {
     sample.color_de00 = static_cast<float>(look.colour_de00);
     sample.own_colour_de00 = static_cast<float>(look.own_colour_de00);
