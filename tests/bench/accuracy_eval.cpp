@@ -15,6 +15,14 @@
 //                           $CLIPWARDEN_CORPUS or shared/corpus beside the
 //                           checkout when present: verdicts of its clips)
 //       [--corpus-only]    (the corpus part alone, no injected set)
+//       [--injected-only]  (the injected set alone; the corpus still gives
+//                           model outputs as bases, and camera clean
+//                           footage is then only the clean camera bases)
+//   --bases takes names (vtest, gen_svd, ...) or kinds (camera, synthetic,
+//   generated); with the corpus present, its model outputs are bases too.
+//   After the class table: operating points per class (rules scaled, recall
+//   and precision per kind of base against segments above info per minute
+//   on the corpus's camera clips).
 //       [--calibrate]      (derive the natural levels of
 //                           analyzer/metrics/natural_levels.cpp from the
 //                           corpus's camera clips and print them)
@@ -31,6 +39,7 @@
 #include "support/accuracy_run.h"
 #include "support/corpus_run.h"
 #include "support/natural_calibration.h"
+#include "support/operating_points.h"
 
 using namespace clipwarden;
 using namespace clipwarden::accuracy;
@@ -57,6 +66,7 @@ struct CorpusOptions {
   std::string dir;
   bool only = false;
   bool calibrate = false;
+  bool injected_only = false;
 };
 
 EvalOptions parse(int argc, char** argv, std::string& json_path, std::string& md_path, bool& sweep,
@@ -85,6 +95,7 @@ EvalOptions parse(int argc, char** argv, std::string& json_path, std::string& md
     else if (a == "--reports") o.reports_dir = value();
     else if (a == "--corpus") corpus.dir = value();
     else if (a == "--corpus-only") corpus.only = true;
+    else if (a == "--injected-only") corpus.injected_only = true;
     else if (a == "--calibrate") corpus.calibrate = true;
     else if (a == "--preset") {
       auto preset = preset_from_string(value());
@@ -200,7 +211,9 @@ int main(int argc, char** argv) {
   EvalOptions options = parse(argc, argv, json_path, md_path, sweep, corpus_options);
   options.set.log = [](const std::string& line) { std::fprintf(stderr, "%s\n", line.c_str()); };
   const auto corpus_dir = corpus::find_corpus(corpus_options.dir);
-  if (corpus_dir) {
+  if (corpus_dir) options.set.corpus_dir = *corpus_dir;
+  std::vector<corpus::CorpusResult> results;  // kept for the operating points
+  if (corpus_dir && !corpus_options.injected_only) {
     auto clips = corpus::read_manifest(*corpus_dir);
     if (!clips) {
       std::fprintf(stderr, "clipwarden_accuracy_eval: %s\n", clips.error().message().c_str());
@@ -208,7 +221,7 @@ int main(int argc, char** argv) {
     }
     AnalysisSettings settings = options.analysis;
     settings.working_long_side = options.set.long_side;
-    const auto results = corpus::analyse_corpus(*clips, "", settings, options.policy, options.set.log);
+    results = corpus::analyse_corpus(*clips, "", settings, options.policy, options.set.log);
     std::printf("## Real-footage corpus\n%s", corpus::corpus_markdown(results).c_str());
     if (corpus_options.calibrate) {
       std::vector<const Report*> camera;
@@ -221,6 +234,8 @@ int main(int argc, char** argv) {
                   calibration::natural_levels_cpp(bins).c_str(),
                   calibration::largest_relative_difference(bins, natural_bins()));
     }
+  } else if (corpus_dir) {
+    // --injected-only: the corpus tables are left out on purpose.
   } else if (!corpus_options.dir.empty()) {
     usage("no MANIFEST.tsv in " + corpus_options.dir);
   } else if (corpus_options.calibrate) {
@@ -237,6 +252,17 @@ int main(int argc, char** argv) {
   const Scoreboard board = score_all(run->cases, run->clean, options.policy);
   std::printf("%s", board.markdown().c_str());
   std::printf("\n%zu injected clips, %zu clean clips, %.0f s\n", run->cases.size(), run->clean.size(), run->seconds);
+  // Clean camera footage for the operating points: the corpus's camera
+  // clips when they were analysed, else the clean camera bases.
+  std::vector<CleanFootage> camera;
+  for (const auto& r : results)
+    if (r.clip.camera && r.report) camera.push_back({&*r.report, r.report->clip.duration_s / 60});
+  if (camera.empty())
+    for (const auto& c : run->clean)
+      if (c.real && c.report) camera.push_back({&*c.report, c.report->clip.duration_s / 60});
+  for (StrengthLevel level : options.levels)
+    std::printf("\n## Operating points, %s strength (%zu camera clips)\n\n%s", inject::to_string(level),
+                camera.size(), operating_points_markdown(run->cases, run->clean, camera, options.policy, level).c_str());
   if (sweep) {
     print_responses(*run);
     print_sweep(*run, options.policy);

@@ -38,7 +38,7 @@ Expected<EvalRun> run_evaluation(const EvalOptions& options) {
                                options.set.work_dir);
   for (size_t i = 0; i < plan.size(); ++i) {
     const PlannedCase& p = plan[i];
-    AnalyzedCase c{p.id, p.base->source.name, p.cls, p.level};
+    AnalyzedCase c{p.id, p.base->source.name, base_kind(p.base->source), p.cls, p.level};
     auto truth = inject_case(p);
     if (!truth) {
       c.error = "inject: " + truth.error().message();

@@ -149,9 +149,10 @@ int base_drops(const BaseDrops& drops, const std::string& base) {
   return it == drops.end() ? 0 : it->second;
 }
 
-ClassLevelRow score_group(DefectClass cls, StrengthLevel level, const std::vector<const AnalyzedCase*>& group,
-                          const std::vector<AnalyzedCase>& all, const BaseDrops& drops, const Policy& policy) {
-  ClassLevelRow row{cls, level};
+ClassLevelRow score_group(DefectClass cls, StrengthLevel level, const std::string& kind,
+                          const std::vector<const AnalyzedCase*>& group, const std::vector<AnalyzedCase>& all,
+                          const BaseDrops& drops, const Policy& policy) {
+  ClassLevelRow row{cls, level, kind};
   row.cases = static_cast<int>(group.size());
   int matched = 0, false_segments = 0;
   double iou_sum = 0;
@@ -176,11 +177,13 @@ ClassLevelRow score_group(DefectClass cls, StrengthLevel level, const std::vecto
     row.max_abs_onset = static_cast<int64_t>(*std::max_element(onsets.begin(), onsets.end()));
   }
   if (cls == DefectClass::drop) {
-    // A clip-level fact: of the injected clips whose stream timing shows
-    // more missing frames than their clean base (this level's drop cases
-    // and every case of another class), the share that really lost frames.
+    // A clip-level fact: of the injected clips on this kind of base whose
+    // stream timing shows more missing frames than their clean base (this
+    // level's drop cases and every case of another class), the share that
+    // really lost frames.
     int flagged_clips = 0, true_clips = 0;
     for (const auto& c : all) {
+      if (c.kind != kind) continue;
       const bool this_row = c.cls == DefectClass::drop && c.level == level;
       if (c.cls == DefectClass::drop && !this_row) continue;
       if (c.report && c.report->summary.stream.dropped_frames > base_drops(drops, c.base)) {
@@ -204,12 +207,13 @@ Scoreboard score_all(const std::vector<AnalyzedCase>& cases, const std::vector<A
   for (const auto& c : clean)
     if (c.report) drops[c.name] = c.report->summary.stream.dropped_frames;
   for (DefectClass cls : inject::all_defect_classes())
-    for (StrengthLevel level : {StrengthLevel::weak, StrengthLevel::moderate, StrengthLevel::strong}) {
-      std::vector<const AnalyzedCase*> group;
-      for (const auto& c : cases)
-        if (c.cls == cls && c.level == level) group.push_back(&c);
-      if (!group.empty()) board.rows.push_back(score_group(cls, level, group, cases, drops, policy));
-    }
+    for (StrengthLevel level : {StrengthLevel::weak, StrengthLevel::moderate, StrengthLevel::strong})
+      for (const char* kind : {"camera", "synthetic", "generated"}) {
+        std::vector<const AnalyzedCase*> group;
+        for (const auto& c : cases)
+          if (c.cls == cls && c.level == level && c.kind == kind) group.push_back(&c);
+        if (!group.empty()) board.rows.push_back(score_group(cls, level, kind, group, cases, drops, policy));
+      }
   for (const auto& c : clean) {
     CleanRow row{c.name, c.real};
     if (!c.report) {
@@ -239,9 +243,9 @@ Scoreboard score_all(const std::vector<AnalyzedCase>& cases, const std::vector<A
   return board;
 }
 
-const ClassLevelRow* Scoreboard::find(DefectClass cls, StrengthLevel level) const {
+const ClassLevelRow* Scoreboard::find(DefectClass cls, StrengthLevel level, const std::string& kind) const {
   for (const auto& r : rows)
-    if (r.cls == cls && r.level == level) return &r;
+    if (r.cls == cls && r.level == level && r.kind == kind) return &r;
   return nullptr;
 }
 
@@ -250,6 +254,7 @@ nlohmann::json Scoreboard::to_json() const {
   j["classes"] = nlohmann::json::array();
   for (const auto& r : rows) {
     nlohmann::json row = {{"class", inject::to_string(r.cls)}, {"level", inject::to_string(r.level)},
+                          {"bases", r.kind},
                           {"metrics", metrics_for(r.cls)}, {"available", r.available},
                           {"cases", r.cases}, {"scored", r.scored}, {"detected", r.detected},
                           {"recall", r.recall}, {"mean_iou", r.mean_iou}, {"flagged", r.flagged},
@@ -283,14 +288,14 @@ std::string fixed(double v, int digits = 2) {
 
 std::string Scoreboard::markdown() const {
   std::string md =
-      "| class | caught by | strength | cases | recall | precision | IoU | onset median / max (frames) | "
-      "verdict review+ | other metrics firing |\n|---|---|---|---|---|---|---|---|---|---|\n";
+      "| class | caught by | strength | bases | cases | recall | precision | IoU | onset median / max (frames) | "
+      "verdict review+ | other metrics firing |\n|---|---|---|---|---|---|---|---|---|---|---|\n";
   for (const auto& r : rows) {
     std::string metrics;
     for (const auto& m : metrics_for(r.cls)) metrics += (metrics.empty() ? "" : ", ") + m;
     if (r.cls == DefectClass::drop) metrics = "stream.dropped_frames, jolt";
     md += "| " + std::string(inject::to_string(r.cls)) + " | " + metrics + " | " + inject::to_string(r.level) +
-          " | " + std::to_string(r.scored) + " | ";
+          " | " + r.kind + " | " + std::to_string(r.scored) + " | ";
     if (!r.available) {
       md += "detector not available | | | | | |\n";
       continue;

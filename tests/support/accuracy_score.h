@@ -1,5 +1,5 @@
 // Scoring the accuracy evaluation: found segments against injected truth.
-// Per defect class and strength: recall, precision, segment IoU and onset
+// Per defect class, strength and kind of base (camera, synthetic, generated): recall, precision, segment IoU and onset
 // error in frames; per clean clip: segments per minute and the verdict.
 // Segments can be re-derived from the kept per-frame series under another
 // policy, so threshold choices are compared without re-analysing.
@@ -39,6 +39,7 @@ inline constexpr int kMatchToleranceFrames = 2;
 
 struct AnalyzedCase {
   std::string id, base;
+  std::string kind = "camera";  // the base's kind (accuracy_set.h, base_kind)
   inject::DefectClass cls = inject::DefectClass::flicker;
   inject::StrengthLevel level = inject::StrengthLevel::moderate;
   nlohmann::json truth_defect;  // the truth file's entry
@@ -73,6 +74,7 @@ CaseScore score_case(const AnalyzedCase& c, const Policy& policy, int base_dropp
 struct ClassLevelRow {
   inject::DefectClass cls = inject::DefectClass::flicker;
   inject::StrengthLevel level = inject::StrengthLevel::moderate;
+  std::string kind = "camera";  // the bases' kind: camera, synthetic or generated
   int cases = 0, scored = 0, detected = 0;
   bool available = false;
   double recall = 0;
@@ -101,7 +103,8 @@ struct Scoreboard {
   double real_minutes = 0;
   int real_rejects = 0, real_reviews = 0;
 
-  const ClassLevelRow* find(inject::DefectClass cls, inject::StrengthLevel level) const;
+  const ClassLevelRow* find(inject::DefectClass cls, inject::StrengthLevel level,
+                            const std::string& kind = "camera") const;
   nlohmann::json to_json() const;
   std::string markdown() const;
 };

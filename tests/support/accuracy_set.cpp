@@ -5,6 +5,7 @@
 #include <cstdlib>
 #include <filesystem>
 #include <fstream>
+#include <optional>
 
 #include "clipwarden/clip_source.h"
 #include "analyzer/encode/clip_writer.h"
@@ -91,6 +92,8 @@ Expected<BaseClip> cut_window(const SetOptions& o, const BaseSource& s, const st
 
 }  // namespace
 
+std::string base_kind(const BaseSource& s) { return s.real ? "camera" : s.lavfi ? "synthetic" : "generated"; }
+
 std::vector<BaseSource> available_sources(const SetOptions& o) {
   const std::string data = kOpencvData;
   // Windows avoid the trailer's own scene cuts and its black opening
@@ -108,10 +111,26 @@ std::vector<BaseSource> available_sources(const SetOptions& o) {
                          ":rate=25",
        false, true, 0, true},
   };
+  // Model outputs of the corpus: short and at low frame rates as generated
+  // clips are (8 fps, 16-49 frames), and longer ones at 24-29 fps (the
+  // parrot GIF stores periodic repeats). Not real footage: no false alarm
+  // is counted on them (the corpus tables count the model outputs).
+  if (!o.corpus_dir.empty())
+    for (const auto& [name, file] : {std::pair{"gen_svd", "gen_animatelcm_svd_000002.mp4"},
+                                     std::pair{"gen_easyanimate", "gen_easyanimate_asset1.mp4"},
+                                     std::pair{"gen_instructvideo", "gen_vgen_instructvideo_0001.mp4"},
+                                     std::pair{"gen_parrot", "gen_opensora_v1.3_demo_parrot.gif"},
+                                     std::pair{"gen_coast", "gen_opensora_v2.0_motion_score_1.gif"},
+                                     std::pair{"gen_aurora", "gen_allegro_demo_video.mp4"}})
+      all.push_back({.name = name, .path = o.corpus_dir + "/clips/" + file, .real = false});
+  const auto wanted = [&](const BaseSource& s) {
+    return o.base_names.empty() || std::any_of(o.base_names.begin(), o.base_names.end(), [&](const std::string& n) {
+             return n == s.name || n == base_kind(s);
+           });
+  };
   std::vector<BaseSource> out;
   for (auto s : all) {
-    if (!o.base_names.empty() && std::find(o.base_names.begin(), o.base_names.end(), s.name) == o.base_names.end())
-      continue;
+    if (!wanted(s)) continue;
     if (s.lavfi) {
       if (!test::have_tool("ffmpeg")) {
         say(o, "skipping " + s.name + ": the ffmpeg tool is not installed");
@@ -183,8 +202,10 @@ std::string range_spec(DefectClass cls, StrengthLevel level, int start, const Ba
   }
 }
 
-// Where a cut's frames come from, as spec keys.
-std::string cut_source(StrengthLevel level, int start, const BaseClip& b, const std::vector<BaseClip>& bases) {
+// Where a cut's frames come from, as spec keys; nullopt when the source is
+// too short to splice from the level's distance.
+std::optional<std::string> cut_source(StrengthLevel level, int start, const BaseClip& b,
+                                      const std::vector<BaseClip>& bases) {
   if (level == StrengthLevel::strong) {
     // Another base clip: a different scene altogether.
     const auto it = std::find_if(bases.begin(), bases.end(), [&](const BaseClip& o) {
@@ -198,7 +219,8 @@ std::string cut_source(StrengthLevel level, int start, const BaseClip& b, const 
   const int remaining = b.frames - start;  // the cut runs to the end
   // After the range if the source is long enough, else before it.
   int from = here + offset;
-  if (from + remaining > b.full_frames) from = here - offset >= 0 ? here - offset : std::max(0, b.full_frames - remaining);
+  if (from + remaining > b.full_frames) from = here - offset;
+  if (from < 0) return std::nullopt;
   return ",source=" + b.full_path + ",source_start=" + std::to_string(from);
 }
 
@@ -226,7 +248,11 @@ std::vector<PlannedCase> plan_cases(const std::vector<BaseClip>& bases, const st
           c.spec = std::string(inject::to_string(cls)) + "@" + range_spec(cls, level, start, b);
           if (!inject::strength_is_range_length(cls))
             c.spec += std::string(":strength=") + inject::to_string(level);
-          if (cls == DefectClass::cut) c.spec += cut_source(level, start, b, bases);
+          if (cls == DefectClass::cut) {
+            const auto source = cut_source(level, start, b, bases);
+            if (!source) continue;
+            c.spec += *source;
+          }
           std::string file = c.id;
           std::replace(file.begin(), file.end(), '/', '-');
           c.clip_path = work_dir + "/cases/" + file + ".mkv";

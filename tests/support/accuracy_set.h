@@ -27,6 +27,12 @@ struct BaseSource {
   int max_frames = 0;      // caps the window (e.g. before a scene cut); 0 = no cap
 };
 
+// What kind of picture a base holds, for the per-kind rows of the tables:
+// "camera" (real footage), "synthetic" (FFmpeg's lavfi sources) or
+// "generated" (model outputs of the corpus: their textures and motion are
+// not a camera's, and a rule must find defects in them too).
+std::string base_kind(const BaseSource& source);
+
 // A prepared base clip: the window, scaled, written losslessly.
 struct BaseClip {
   BaseSource source;
@@ -41,7 +47,12 @@ struct SetOptions {
   std::string work_dir;
   int long_side = 320;   // frames are scaled to this long side
   int max_frames = 120;  // frames per base clip
-  std::vector<std::string> base_names;  // empty = every available source
+  // Bases by name or by kind ("vtest", "generated"); empty = every available source.
+  std::vector<std::string> base_names;
+  // The evaluation corpus (a folder with clips/ and MANIFEST.tsv; "" =
+  // none): model outputs from it are bases too (names gen_*), so that a
+  // defect is also injected into generated texture.
+  std::string corpus_dir;
   std::function<void(const std::string&)> log;
 };
 
@@ -70,7 +81,9 @@ struct PlannedCase {
 // pulsing classes last one second, drift classes run to the end, freeze
 // and drop last their level's number of frames, cuts run to the end with
 // frames from elsewhere (weak: 1 s away in the same source, moderate: 4 s
-// away, strong: another base clip).
+// away, strong: another base clip). A cut whose base source is too short
+// for its distance either way (most model outputs for the 4 s splice) is
+// not planned: a nearer splice would be another strength.
 std::vector<PlannedCase> plan_cases(const std::vector<BaseClip>& bases,
                                     const std::vector<inject::DefectClass>& classes,
                                     const std::vector<inject::StrengthLevel>& levels, int placements,

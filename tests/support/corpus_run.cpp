@@ -6,6 +6,7 @@
 #include <filesystem>
 #include <fstream>
 #include <map>
+#include <set>
 #include <sstream>
 
 namespace clipwarden::corpus {
@@ -43,6 +44,40 @@ int segments_above_info(const Report& r) {
   return static_cast<int>(std::count_if(r.segments.begin(), r.segments.end(), [](const Segment& s) {
     return s.severity != Severity::info;
   }));
+}
+
+// Camera clips' segments above info per minute, one row per group (content
+// type or frame-rate band) and one column per metric that has any: which
+// rule fires on which kind of natural footage.
+std::string by_metric_table(const std::vector<CorpusResult>& results, const std::string& heading,
+                            const std::function<std::string(const CorpusResult&)>& group_of) {
+  std::map<std::string, std::map<std::string, int>> counts;  // group -> metric -> segments
+  std::map<std::string, double> minutes;
+  std::set<std::string> metrics;
+  for (const auto& r : results) {
+    if (!r.clip.camera || !r.report) continue;
+    const std::string g = group_of(r);
+    minutes[g] += minutes_of(r);
+    counts[g];
+    for (const auto& s : r.report->segments)
+      if (s.severity != Severity::info) ++counts[g][s.metric], metrics.insert(s.metric);
+  }
+  if (metrics.empty()) return "\nNo camera clip has a segment above info.\n";
+  std::string md = "\nSegments above info per minute of camera footage, by " + heading + " and metric:\n\n| " +
+                   heading + " | minutes";
+  for (const auto& m : metrics) md += " | " + m;
+  md += " |\n|---|---";
+  for (size_t i = 0; i < metrics.size(); ++i) md += "|---";
+  md += "|\n";
+  for (const auto& [g, by] : counts) {
+    md += "| " + g + " | " + fmt("%.2f", minutes[g]);
+    for (const auto& m : metrics) {
+      const auto it = by.find(m);
+      md += " | " + (it == by.end() ? std::string("–") : fmt("%.2f", it->second / std::max(minutes[g], 1e-9)));
+    }
+    md += " |\n";
+  }
+  return md;
 }
 
 }  // namespace
@@ -199,6 +234,8 @@ std::string corpus_markdown(const std::vector<CorpusResult>& results) {
               " |\n";
       }
     }
+    md += by_metric_table(results, "content", [](const CorpusResult& r) { return r.clip.content; });
+    md += by_metric_table(results, "frame rate (fps)", [](const CorpusResult& r) { return rate_band(r.clip.fps); });
     // Segments by metric and severity.
     std::map<std::string, std::pair<int, int>> by_metric;  // review, reject
     for (const auto& r : results)
