@@ -150,7 +150,7 @@ void print_responses(const EvalRun& run) {
           if (c.cls != cls || c.level != level || !c.report) continue;
           const MetricSeries* s = c.report->find_series(metric);
           if (!s) continue;
-          const FrameSpan span = expected_span(cls, c.truth_defect, static_cast<int64_t>(s->values.size()));
+          const FrameSpan span = expected_span(cls, c.truth_defect, *c.report);
           double peak = -INFINITY;
           for (int64_t f = std::max<int64_t>(0, span.start - kMatchToleranceFrames);
                f <= std::min<int64_t>(static_cast<int64_t>(s->values.size()) - 1, span.end + kMatchToleranceFrames); ++f)

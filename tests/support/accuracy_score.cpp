@@ -66,6 +66,21 @@ FrameSpan expected_span(DefectClass cls, const nlohmann::json& truth_defect, int
   }
 }
 
+FrameSpan expected_span(DefectClass cls, const nlohmann::json& truth_defect, const Report& report) {
+  const auto cadence = report.summary.details.find("cadence");
+  if (cadence == report.summary.details.end() || !cadence->contains("source_frames")) {
+    return expected_span(cls, truth_defect, static_cast<int64_t>(report.frame_times_s.size()));
+  }
+  const std::vector<int64_t> sources = (*cadence)["source_frames"].get<std::vector<int64_t>>();
+  const FrameSpan stored = expected_span(cls, truth_defect, (*cadence).value("stored_frames", int64_t{0}));
+  // First analysed frame at or after the span's start; last at or before its end.
+  const auto first = std::lower_bound(sources.begin(), sources.end(), stored.start);
+  const auto past = std::upper_bound(sources.begin(), sources.end(), stored.end);
+  const int64_t start = std::min<int64_t>(first - sources.begin(), static_cast<int64_t>(sources.size()) - 1);
+  const int64_t end = std::max<int64_t>(start, (past - sources.begin()) - 1);
+  return {start, end};
+}
+
 std::vector<Segment> segments_under(const Report& report, const Policy& policy) {
   std::vector<Segment> out;
   // Kept as the metric made them: segments of metrics with no series, and
@@ -103,7 +118,7 @@ CaseScore score_case(const AnalyzedCase& c, const Policy& policy, int base_dropp
   judged.segments = segments;
   score.verdict = evaluate_policy(judged, policy).status;
 
-  const FrameSpan span = expected_span(c.cls, c.truth_defect, static_cast<int64_t>(r.frame_times_s.size()));
+  const FrameSpan span = expected_span(c.cls, c.truth_defect, r);
   std::set<int64_t> found_frames;
   std::set<std::string> others;
   for (const auto& s : segments) {

@@ -33,6 +33,12 @@ struct FrameSpan {
   int64_t start = 0, end = 0;
 };
 FrameSpan expected_span(inject::DefectClass cls, const nlohmann::json& truth_defect, int64_t frame_count);
+// The same span in the report's frames. A file that stores pictures on a
+// cadence is analysed at its pictures (summary.details.cadence lists the
+// stored frame of each analysed one), while the truth counts stored
+// frames: the span is mapped to the analysed frames that lie in it (the
+// nearest one after it when none does).
+FrameSpan expected_span(inject::DefectClass cls, const nlohmann::json& truth_defect, const Report& report);
 
 // A detection may start or end this many frames outside the span.
 inline constexpr int kMatchToleranceFrames = 2;
