@@ -77,6 +77,7 @@
 
 #include <opencv2/imgproc.hpp>
 
+#include "analyzer/frame/series_math.h"
 #include "analyzer/frame/shot_boundaries.h"
 #include "analyzer/metrics/metric.h"
 
@@ -328,7 +329,7 @@ class BoilingMetric final : public Metric {
             if (!std::isnan(v)) members_.push_back(v);
           }
         if (members_.empty() || members_.size() < kMinMeasuredShare * area) continue;
-        w.values[static_cast<size_t>(wy) * w.cols + wx] = median_of(members_);
+        w.values[static_cast<size_t>(wy) * w.cols + wx] = upper_median_in_place(members_);
       }
     return w;
   }
@@ -346,7 +347,8 @@ class BoilingMetric final : public Metric {
         for (int by = wy; by < std::min(rows, wy + n); ++by)
           for (int bx = wx; bx < std::min(cols, wx + n); ++bx)
             members_.push_back(blocks[static_cast<size_t>(by) * cols + bx]);
-        if (!members_.empty()) out[static_cast<size_t>(wy) * grid.cols + wx] = median_of(members_);
+        if (!members_.empty())
+          out[static_cast<size_t>(wy) * grid.cols + wx] = upper_median_in_place(members_);
       }
     return out;
   }
@@ -355,14 +357,8 @@ class BoilingMetric final : public Metric {
   static void less_smear(std::vector<float>& excess, const std::vector<float>& motion) {
     if (motion.size() != excess.size()) return;
     for (size_t w = 0; w < excess.size(); ++w)
-      if (excess[w] != kUnmeasured) excess[w] -= kSmearPerPx * std::max(0.0F, motion[w] - kFreeMotionPx);
-  }
-
-  // Median (upper of the two middle values for an even count); reorders.
-  static float median_of(std::vector<float>& v) {
-    const auto middle = v.begin() + static_cast<std::ptrdiff_t>(v.size() / 2);
-    std::nth_element(v.begin(), middle, v.end());
-    return *middle;
+      if (excess[w] != kUnmeasured)
+        excess[w] -= kSmearPerPx * std::max(0.0F, motion[w] - kFreeMotionPx);
   }
 
   // Each window's excess over its quiet level (0 where `quiet` has none)
@@ -377,7 +373,7 @@ class BoilingMetric final : public Metric {
         measured.push_back(excess[w]);
       }
     if (measured.size() < 2) return {};
-    const float middle = median_of(measured);
+    const float middle = upper_median_in_place(measured);
     for (float& e : excess)
       if (e != kUnmeasured) e -= middle;
     return excess;
