@@ -60,15 +60,20 @@
 // smear is re-drawn from frame to frame as the speed and the edges change:
 // a runner's blurred limbs, a car and the grass behind it in a pan, a
 // kitten's paws. The flow follows the body but not the smear, so the
-// residuals alternate as boiling's do. They grow with the motion, so each
+// residuals alternate as boiling's do. They grow with the smear, so each
 // window's excess counts only beyond kSmearPerPx times the part of its
-// median flow length above kFreeMotionPx (px per frame at a 512 px long
-// side; the camera's motion counts too, as a pan smears what it passes).
-// Re-drawn texture on something still or slow keeps all of its excess.
+// median smear above kFreeMotionPx. The smear is the motion during the
+// exposure: the flow length per frame (px at a 512 px long side; the
+// camera's motion counts too, as a pan smears what it passes) while a
+// frame lasts up to 1/kExposureFps s, and that share of it for longer
+// frames, as a camera's exposure stays short at low frame rates (a 180
+// degree shutter at 8 fps exposes 1/16 s) and a model that makes 3 frames
+// a second draws no smear at all. Re-drawn texture on something still or
+// slow keeps all of its excess.
 //
 // Frame rate: the statistic compares adjacent frames, so noise re-drawn
-// every frame reads the same at any frame rate; the smear allowance is per
-// frame's motion, as the smear is.
+// every frame reads the same at any frame rate; the smear allowance follows
+// the motion per frame up to 1/kExposureFps s per frame, as the smear does.
 #include <algorithm>
 #include <cmath>
 #include <limits>
@@ -99,7 +104,8 @@ const MetricDescriptor& boiling_descriptor() {
                           "its motion explains, minus the median window's.",
            .better = Better::lower,
            .frame_rate = FrameRateDependence::none,
-           .frame_rate_text = "adjacent frames: noise re-drawn every frame reads the same at any fps",
+           .frame_rate_text = "adjacent frames: noise re-drawn every frame reads the same at any fps; the "
+                              "smear allowed for motion counts a frame's motion over at most 1/8 s",
            // Fresh noise of 8-bit standard deviation s in a region reads
            // 3 (s/255)^2, e.g. 0.0046 for s = 10. Measured 2026-12-02 at 320
            // px on opencv-doc footage: clean box.mp4 / cup.mp4 / Megamind.avi
@@ -149,6 +155,13 @@ constexpr size_t kPersistFrames = 3;
 // boiling_reference_test.cpp moves 2.
 constexpr float kSmearPerPx = 0.001F;
 constexpr float kFreeMotionPx = 2.0F;
+// Frames longer than 1/kExposureFps s smear only that share of their motion.
+// Chosen between measured cases (2026-12-05): Text2Video-Zero's walking cat
+// (3 fps, a body re-drawn every frame, seen by eye) moves 9-15 px/frame and
+// loses its boiling review when all of it counts; a camera GIF of a dancer
+// at 10 fps needs all of its motion counted (with 1/12 s it reviewed at
+// 0.0024, where it passed before and with all of it).
+constexpr double kExposureFps = 8;
 // Stands for "not measured" in the persistence step (below any excess).
 constexpr float kUnmeasured = -std::numeric_limits<float>::infinity();
 
@@ -156,7 +169,7 @@ constexpr float kUnmeasured = -std::numeric_limits<float>::infinity();
 struct WindowGrid {
   int cols = 0, rows = 0;
   std::vector<float> values;  // NaN where the window was not measured
-  std::vector<float> motion;  // median flow length of its blocks, px/frame at 512 px
+  std::vector<float> motion;  // median smear of its blocks (block_motion), px at 512 px
 };
 
 class BoilingMetric final : public Metric {
@@ -168,7 +181,7 @@ class BoilingMetric final : public Metric {
   void measure_pair(const FramePair& pair, std::span<double>) const override {
     Residual& r = pair.scratch.slot<Residual>(this);
     compute_residual(pair.cur->bgr, pair.warped_prev_bgr, r.values, r.warped_scaled);
-    block_motion(pair.flow_backward, r.motion);
+    block_motion(pair.flow_backward, pair.dt_s, r.motion);
     r.frame_index = pair.cur->index;
     r.t_s = pair.cur->t_s;
   }
@@ -184,7 +197,7 @@ class BoilingMetric final : public Metric {
       r.frame_index = -1;  // taken
     } else {
       compute_residual(pair.cur->bgr, pair.warped_prev_bgr, residual_, warped_scaled_);
-      block_motion(pair.flow_backward, motion_);
+      block_motion(pair.flow_backward, pair.dt_s, motion_);
     }
     if (has_previous_ && previous_residual_.size() == residual_.size()) {
       BlockGrid blocks = block_statistics(residual_, pair.flow_backward);
@@ -251,9 +264,10 @@ class BoilingMetric final : public Metric {
     return std::max(2, window / kBlocksPerWindowSide);
   }
 
-  // Each block's mean flow length (on the same pixels block_statistics
-  // samples), in px/frame at a 512 px long side, in raster order.
-  static void block_motion(const cv::Mat& flow_backward, std::vector<float>& out) {
+  // Each block's smear: its mean flow length (on the same pixels
+  // block_statistics samples) in px/frame at a 512 px long side, times the
+  // share of a frame of dt_s seconds that kExposureFps exposes; raster order.
+  static void block_motion(const cv::Mat& flow_backward, double dt_s, std::vector<float>& out) {
     out.clear();
     if (flow_backward.empty()) return;
     const int block = block_side(flow_backward.size());
@@ -269,7 +283,8 @@ class BoilingMetric final : public Metric {
         ++count[row_base + static_cast<size_t>(x / block)];
       }
     }
-    const double to_512 = 512.0 / std::max(flow_backward.cols, flow_backward.rows);
+    const double exposed = dt_s > 0 ? std::min(1.0, 1.0 / (kExposureFps * dt_s)) : 1.0;
+    const double to_512 = exposed * 512.0 / std::max(flow_backward.cols, flow_backward.rows);
     out.resize(sum.size());
     for (size_t b = 0; b < sum.size(); ++b)
       out[b] = count[b] > 0 ? static_cast<float>(to_512 * sum[b] / count[b]) : 0.0F;

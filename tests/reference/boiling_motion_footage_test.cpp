@@ -41,10 +41,11 @@ TEST(BoilingMotionFootage, FastMoversSmearedByTheShutterAreNotBoiling) {
 
 // Text2Video-Zero's walking cat (3 fps, 8 frames): its manifest notes a
 // body that morphs between frames (elongated, doubled ears), seen by eye.
-// Its windows move 9-15 px/frame, yet the re-drawing reads 0.030 before the
-// allowance and 0.026 after it (measured 2026-12-05), far above the review
-// level 0.002: the allowance takes off what a smear explains, not the
-// defect.
+// Its windows move 9-15 px/frame. Counted as a full smear, that motion took
+// frames 5-7 under the entry level and the segment under its 4 frames
+// (measured 2026-12-05); a frame of 1/3 s smears only its first 1/8 s, and
+// the clip reads 0.029 at frames 2-7 (0.030 before), far above the review
+// level 0.002.
 TEST(BoilingMotionFootage, AModelOutputsReDrawnBodyStaysReviewed) {
   const std::string path = corpus_clip("gen_t2vzero_cat_walking.gif");
   if (path.empty()) GTEST_SKIP() << "evaluation corpus not found (set CLIPWARDEN_CORPUS)";
