@@ -5,6 +5,8 @@
 #include <cstdlib>
 #include <limits>
 
+#include "analyzer/frame/series_math.h"
+
 namespace clipwarden {
 
 namespace {
@@ -165,6 +167,22 @@ std::vector<Pulse> pulses_with_neighbours(const std::vector<Pulse>& pulses, int 
     }
   }
   return kept;
+}
+
+double recurring_quantile(std::span<const double> values, std::span<const double> times_s,
+                          double q, double apart_s) {
+  const double quantile_level = quantile(defined_values(values), q);
+  if (std::isnan(quantile_level)) return quantile_level;
+  // For each frame j, the highest value among the frames more than apart_s
+  // before it (times ascend, so those frames are a growing prefix).
+  double apart_level = 0, earlier_max = -std::numeric_limits<double>::infinity();
+  const size_t n = std::min(values.size(), times_s.size());
+  for (size_t i = 0, j = 0; j < n; ++j) {
+    for (; i < j && times_s[i] < times_s[j] - apart_s; ++i)
+      if (!std::isnan(values[i])) earlier_max = std::max(earlier_max, values[i]);
+    if (!std::isnan(values[j])) apart_level = std::max(apart_level, std::min(earlier_max, values[j]));
+  }
+  return std::min(quantile_level, apart_level);
 }
 
 float remove_common_change(std::span<float> changes) {

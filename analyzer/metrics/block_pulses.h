@@ -66,6 +66,17 @@ std::vector<bool> blocks_near_movers(const std::vector<float>& own_motion, int c
 // change); returns that median (0 when nothing is known).
 float remove_common_change(std::span<float> changes);
 
+// The level a per-frame amplitude reaches that no single event can reach on
+// its own: the smaller of the series' `q` quantile (linear, as
+// numpy.percentile) and the highest level reached at two frames more than
+// `apart_s` apart (the largest x with values >= x at frames i, j where
+// t_j - t_i > apart_s; 0 when no two frames are that far apart). With
+// apart_s the longest an event can last, a clip-level percentile then needs
+// at least two events, or one that lasts longer. NaN values are skipped;
+// NaN when none are defined.
+double recurring_quantile(std::span<const double> values, std::span<const double> times_s,
+                          double q, double apart_s);
+
 struct Pulse {
   int block = 0;
   int64_t start_frame = 0;  // frame where the first swing was confirmed

@@ -46,6 +46,20 @@ TEST(FlickerLocalFootage, FoliageInWindIsNotLocalFlicker) {
   expect_no_flagged_local_flicker(tree);
 }
 
+// An aquarium (corpus, 7.6 s at 30 fps): the lit rim of the tank shimmers
+// with the water once, for 0.4 s, at amplitudes up to 0.165. The plain p95
+// of the clip read 0.152 (12 frames of 227) and reviewed it; the clip-level
+// rule needs pulses more than 1 s apart and leaves one event to the segment
+// rule, whose review level it stays under.
+TEST(FlickerLocalFootage, OneShimmerOfAnAquariumRimDoesNotFlagTheClip) {
+  const std::string tank = corpus_clip("cam_trackanything_test-sample4.mp4");
+  if (tank.empty()) GTEST_SKIP() << "evaluation corpus not found (set CLIPWARDEN_CORPUS)";
+  const Report r = analyse_with_defaults(tank);
+  expect_no_flagged_local_flicker(tank);
+  ASSERT_TRUE(r.summary.details.contains("flicker_local"));
+  EXPECT_LT(r.summary.details["flicker_local"]["recurring_p95"].get<double>(), 0.15);
+}
+
 TEST(FlickerLocalFootage, AnInjectedPulseInAStreetSceneIsFoundAtItsFrames) {
   const std::string vtest = opencv_sample("vtest.avi");
   if (vtest.empty()) GTEST_SKIP() << "opencv-doc vtest.avi not installed";
@@ -76,6 +90,33 @@ TEST(FlickerLocalFootage, AnInjectedPulseInAStreetSceneIsFoundAtItsFrames) {
   }
   EXPECT_TRUE(found)
       << "no flicker_local review/reject segment starting within the injected second";
+}
+
+// A region pulsing for 3 s (frames 10-39 at 10 fps, gain 0.25 at 4 Hz,
+// clipwarden inject) recurs: the clip-level level reaches the review level
+// 0.15 and the policy names flicker_local.
+TEST(FlickerLocalFootage, ARegionPulsingForSecondsReachesTheClipLevelRule) {
+  const std::string vtest = opencv_sample("vtest.avi");
+  if (vtest.empty()) GTEST_SKIP() << "opencv-doc vtest.avi not installed";
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
+  TempDir dir;
+  const std::string trimmed = dir.file("street.avi");
+  ASSERT_EQ(run_command({"ffmpeg", "-v", "error", "-y", "-i", vtest, "-frames:v", "50", "-c",
+                         "copy", trimmed})
+                .exit_code,
+            0);
+  InjectOptions options;
+  options.defect_specs = {"local_flicker@10-39:strength=moderate,region=0.35/0.4/0.3/0.3"};
+  options.output_path = dir.file("pulsing.mkv");
+  auto truth = inject_defects(trimmed, options);
+  ASSERT_TRUE(truth.ok()) << truth.error().message();
+  const Report r = analyse_with_defaults((*truth)["output"]["path"].get<std::string>());
+  ASSERT_TRUE(r.summary.details.contains("flicker_local"));
+  EXPECT_GE(r.summary.details["flicker_local"]["recurring_p95"].get<double>(), 0.15);
+  bool named = false;
+  for (const std::string& reason : evaluate_policy(r, default_policy()).reasons)
+    if (reason.rfind("flicker_local", 0) == 0) named = true;
+  EXPECT_TRUE(named);
 }
 
 }  // namespace

@@ -201,3 +201,41 @@ TEST(BlockPulses, OnlyPulsesSharedWithANeighbourAreKept) {
   EXPECT_EQ(kept[0].block, 5);
   EXPECT_EQ(kept[1].block, 6);
 }
+
+// The clip-level level of recurring pulses. The quantile is numpy.percentile's
+// default (linear) method: for n values sorted, q = 0.95 sits at index
+// 0.95 (n - 1) between its two neighbours.
+TEST(RecurringQuantile, OneEventAloneReadsZeroTwoEventsReadTheQuantile) {
+  // 201 frames at 20 fps (10 s); the first frame undefined, as the metric's.
+  std::vector<double> v(201, 0.0), t(201);
+  for (size_t i = 0; i < t.size(); ++i) t[i] = i / 20.0;
+  v[0] = NAN;
+  // One event of 0.5 s (frames 50-59, 10 frames, 5% of the 200 defined
+  // values): the p95 sits at index 0.95 * 199 = 189.05 of the sorted values,
+  // 190 zeros and 10 values of 0.2, so 0 * 0.95 + 0.2 * 0.05 = 0.01 (numpy:
+  // percentile([0]*190 + [0.2]*10, 95) = 0.01); but no two frames above 0
+  // lie more than 1 s apart, so nothing recurs.
+  for (int i = 50; i < 60; ++i) v[i] = 0.2;
+  EXPECT_EQ(recurring_quantile(v, t, 0.95, 1.0), 0.0);
+  // Raise it to 20 frames (10%) in two events 3 s apart: the p95 is 0.2 at
+  // index 189.05 (180 zeros) and the events recur, so 0.2.
+  for (int i = 110; i < 120; ++i) v[i] = 0.2;
+  EXPECT_NEAR(recurring_quantile(v, t, 0.95, 1.0), 0.2, 1e-12);
+  // The second event weaker: what recurs is its 0.1.
+  for (int i = 110; i < 120; ++i) v[i] = 0.1;
+  EXPECT_NEAR(recurring_quantile(v, t, 0.95, 1.0), 0.1, 1e-12);
+  // One event that lasts 2 s (frames 50-89) recurs within itself.
+  std::fill(v.begin() + 110, v.begin() + 120, 0.0);
+  std::fill(v.begin() + 50, v.begin() + 90, 0.3);
+  EXPECT_NEAR(recurring_quantile(v, t, 0.95, 1.0), 0.3, 1e-12);
+}
+
+TEST(RecurringQuantile, NeverAboveThePlainQuantile) {
+  // Two lone frames of 0.9 far apart, the rest 0: they recur but make 1% of
+  // the frames, so the p95 (0: index 0.95 * 199 of 198 zeros) caps it.
+  std::vector<double> v(200, 0.0), t(200);
+  for (size_t i = 0; i < t.size(); ++i) t[i] = i / 20.0;
+  v[10] = v[150] = 0.9;
+  EXPECT_EQ(recurring_quantile(v, t, 0.95, 1.0), 0.0);
+  EXPECT_TRUE(std::isnan(recurring_quantile(std::vector<double>(3, NAN), t, 0.95, 1.0)));
+}
