@@ -8,6 +8,7 @@
 // opencv-doc vtest.avi, which must be found at its frames.
 #include <gtest/gtest.h>
 
+#include <optional>
 #include <string>
 
 #include "clipwarden/analysis.h"
@@ -26,6 +27,29 @@ void expect_no_flagged_local_flicker(const std::string& path) {
     if (s.metric == "flicker_local")
       EXPECT_EQ(s.severity, Severity::info)
           << path << ": frames " << s.start_frame << "-" << s.end_frame << " peak " << s.peak;
+}
+
+// The first `frames` frames of opencv-doc vtest.avi (10 fps) with moderate
+// local flicker (gain 0.25, square wave at 4 Hz, clipwarden inject) on a box
+// of 30% of the frame over the plaza at frames `from`-`to`; its report.
+// Empty when vtest.avi is missing (the caller skips).
+std::optional<Report> pulsing_street(int frames, int from, int to) {
+  const std::string vtest = opencv_sample("vtest.avi");
+  if (vtest.empty()) return std::nullopt;
+  TempDir dir;
+  const std::string trimmed = dir.file("street.avi");
+  EXPECT_EQ(run_command({"ffmpeg", "-v", "error", "-y", "-i", vtest, "-frames:v",
+                         std::to_string(frames), "-c", "copy", trimmed})
+                .exit_code,
+            0);
+  InjectOptions options;
+  options.defect_specs = {"local_flicker@" + std::to_string(from) + "-" + std::to_string(to) +
+                          ":strength=moderate,region=0.35/0.4/0.3/0.3"};
+  options.output_path = dir.file("pulsing.mkv");
+  auto truth = inject_defects(trimmed, options);
+  EXPECT_TRUE(truth.ok()) << truth.error().message();
+  if (!truth.ok()) return Report{};
+  return analyse_with_defaults((*truth)["output"]["path"].get<std::string>());
 }
 
 TEST(FlickerLocalFootage, CausticsOnAPoolFloorAreNotLocalFlicker) {
@@ -61,24 +85,11 @@ TEST(FlickerLocalFootage, OneShimmerOfAnAquariumRimDoesNotFlagTheClip) {
 }
 
 TEST(FlickerLocalFootage, AnInjectedPulseInAStreetSceneIsFoundAtItsFrames) {
-  const std::string vtest = opencv_sample("vtest.avi");
-  if (vtest.empty()) GTEST_SKIP() << "opencv-doc vtest.avi not installed";
   CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
-  TempDir dir;
-  const std::string trimmed = dir.file("street.avi");
-  ASSERT_EQ(run_command({"ffmpeg", "-v", "error", "-y", "-i", vtest, "-frames:v", "60", "-c",
-                         "copy", trimmed})
-                .exit_code,
-            0);
-  // Moderate local flicker (gain 0.25, square wave at 4 Hz) for one second
-  // (10 frames at 10 fps) on a box of 30% of the frame over the plaza.
-  InjectOptions options;
-  options.defect_specs = {"local_flicker@20-29:strength=moderate,region=0.35/0.4/0.3/0.3"};
-  options.output_path = dir.file("pulsing.mkv");
-  auto truth = inject_defects(trimmed, options);
-  ASSERT_TRUE(truth.ok()) << truth.error().message();
-  const std::string injected = (*truth)["output"]["path"].get<std::string>();
-  const Report r = analyse_with_defaults(injected);
+  // For one second: 10 frames at 10 fps.
+  const std::optional<Report> pulsing = pulsing_street(60, 20, 29);
+  if (!pulsing) GTEST_SKIP() << "opencv-doc vtest.avi not installed";
+  const Report& r = *pulsing;
   bool found = false;
   for (const Segment& s : r.segments) {
     if (s.metric != "flicker_local") continue;
@@ -92,25 +103,13 @@ TEST(FlickerLocalFootage, AnInjectedPulseInAStreetSceneIsFoundAtItsFrames) {
       << "no flicker_local review/reject segment starting within the injected second";
 }
 
-// A region pulsing for 3 s (frames 10-39 at 10 fps, gain 0.25 at 4 Hz,
-// clipwarden inject) recurs: the clip-level level reaches the review level
-// 0.15 and the policy names flicker_local.
+// A region pulsing for 3 s (frames 10-39 at 10 fps) recurs: the clip-level
+// level reaches the review level 0.15 and the policy names flicker_local.
 TEST(FlickerLocalFootage, ARegionPulsingForSecondsReachesTheClipLevelRule) {
-  const std::string vtest = opencv_sample("vtest.avi");
-  if (vtest.empty()) GTEST_SKIP() << "opencv-doc vtest.avi not installed";
   CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
-  TempDir dir;
-  const std::string trimmed = dir.file("street.avi");
-  ASSERT_EQ(run_command({"ffmpeg", "-v", "error", "-y", "-i", vtest, "-frames:v", "50", "-c",
-                         "copy", trimmed})
-                .exit_code,
-            0);
-  InjectOptions options;
-  options.defect_specs = {"local_flicker@10-39:strength=moderate,region=0.35/0.4/0.3/0.3"};
-  options.output_path = dir.file("pulsing.mkv");
-  auto truth = inject_defects(trimmed, options);
-  ASSERT_TRUE(truth.ok()) << truth.error().message();
-  const Report r = analyse_with_defaults((*truth)["output"]["path"].get<std::string>());
+  const std::optional<Report> pulsing = pulsing_street(50, 10, 39);
+  if (!pulsing) GTEST_SKIP() << "opencv-doc vtest.avi not installed";
+  const Report& r = *pulsing;
   ASSERT_TRUE(r.summary.details.contains("flicker_local"));
   EXPECT_GE(r.summary.details["flicker_local"]["recurring_p95"].get<double>(), 0.15);
   bool named = false;
