@@ -42,7 +42,7 @@ std::optional<std::pair<int, double>> usual_repeats(const std::vector<int>& repe
 
 CadenceFilter::CadenceFilter(size_t lookahead) : lookahead_(std::max<size_t>(lookahead, 2)) {}
 
-void CadenceFilter::push(Frame frame, std::vector<Frame>& ready) {
+void CadenceFilter::push(Frame frame, std::vector<HeldFrame>& ready) {
   // A flat picture (a uniform field, a fade's black) repeats because
   // nothing in it can change, not because the file stores it twice: only a
   // picture with texture counts as a stored repeat.
@@ -51,33 +51,52 @@ void CadenceFilter::push(Frame frame, std::vector<Frame>& ready) {
   ++stored_;
   if (!repeat) ++pictures_;
   if (decided_) {
-    pass(std::move(frame), repeat, ready);
+    pass(HeldFrame(std::move(frame)), repeat, ready);
     return;
   }
   looked_ahead_.push_back(repeat);
   // Nothing held and a new picture: it is analysed whatever the cadence.
-  if (held_.empty() && !repeat)
-    pass(std::move(frame), false, ready);
-  else
-    held_.emplace_back(std::move(frame), repeat);
+  if (held_.empty() && !repeat) {
+    base_ = frame;
+    pass(HeldFrame(std::move(frame)), false, ready);
+  } else {
+    // A held frame waits without its luminance plane (a recycled frame may
+    // still have one): that is made when the frame is handed on.
+    frame->luminance.release();
+    HeldFrame held = repeat ? HeldFrame::repeat_of(frame, base_) : HeldFrame(frame);
+    if (held.in_full()) base_ = std::move(frame);
+    hold(std::move(held), repeat);
+  }
   if (looked_ahead_.size() >= lookahead_) {
     decide(false);
     release_held(ready);
   }
 }
 
-void CadenceFilter::finish(std::vector<Frame>& ready) {
+void CadenceFilter::hold(HeldFrame frame, bool repeat) {
+  held_full_ += frame.in_full() ? 1 : 0;
+  held_bytes_ += frame.held_bytes();
+  peak_held_full_ = std::max(peak_held_full_, held_full_);
+  peak_held_bytes_ = std::max(peak_held_bytes_, held_bytes_);
+  held_.emplace_back(std::move(frame), repeat);
+}
+
+void CadenceFilter::finish(std::vector<HeldFrame>& ready) {
   if (!decided_) decide(true);
   release_held(ready);
   last_.reset();
+  base_.reset();
 }
 
-void CadenceFilter::release_held(std::vector<Frame>& ready) {
+void CadenceFilter::release_held(std::vector<HeldFrame>& ready) {
   while (!held_.empty()) {
     auto [f, r] = std::move(held_.front());
     held_.pop_front();
     pass(std::move(f), r, ready);
   }
+  held_full_ = held_bytes_ = 0;
+  // Nothing is held from here on: no frame needs a base.
+  base_.reset();
 }
 
 void CadenceFilter::decide(bool at_end) {
@@ -95,13 +114,13 @@ void CadenceFilter::decide(bool at_end) {
   looked_ahead_ = {};
 }
 
-void CadenceFilter::pass(Frame frame, bool repeat, std::vector<Frame>& ready) {
+void CadenceFilter::pass(HeldFrame frame, bool repeat, std::vector<HeldFrame>& ready) {
   run_ = repeat ? run_ + 1 : 0;
   // With a cadence of u extra copies a picture lasts u + 1 stored frames;
   // a longer hold keeps one copy per such interval (the content's rate).
   if (repeat && usual_repeats_ > 0 && run_ % (usual_repeats_ + 1) != 0) return;
-  sources_.push_back(frame->index);
-  frame->index = static_cast<int64_t>(sources_.size()) - 1;
+  sources_.push_back(frame.index());
+  frame.renumber(static_cast<int64_t>(sources_.size()) - 1);
   ready.push_back(std::move(frame));
 }
 

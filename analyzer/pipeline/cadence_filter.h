@@ -14,7 +14,8 @@
 // analysed. So frames pass on at once until the first repeat, and only
 // from there to the decision are they held (a clip without repeats, most
 // generated ones, holds nothing and its analysis starts with its first
-// frame, instead of after 30 decoded frames held in memory).
+// frame, instead of after 30 decoded frames held in memory). A held repeat
+// keeps only where it differs from the frame before it (held_frame.h).
 #pragma once
 
 #include <deque>
@@ -25,6 +26,7 @@
 #include <nlohmann/json.hpp>
 
 #include "analyzer/frame/frame_pair.h"
+#include "analyzer/pipeline/held_frame.h"
 
 namespace clipwarden {
 
@@ -50,12 +52,13 @@ class CadenceFilter {
   // decided at its end.
   explicit CadenceFilter(size_t lookahead = kDefaultLookahead);
 
-  // The next decoded frame (index = its decoded index; only its gray plane
-  // is read). Appends the frames to analyse, in order, to `ready`,
-  // renumbered 0, 1, ... in analysis order.
-  void push(Frame frame, std::vector<Frame>& ready);
+  // The next decoded frame (index = its decoded index; its gray plane
+  // decides, its BGR and gray planes are kept). Appends the frames to
+  // analyse, in order, to `ready`, renumbered 0, 1, ... in analysis order;
+  // take() each one's planes when it is handed on.
+  void push(Frame frame, std::vector<HeldFrame>& ready);
   // The stream ended: releases what is still held.
-  void finish(std::vector<Frame>& ready);
+  void finish(std::vector<HeldFrame>& ready);
 
   // After finish(): the cadence found, or nullopt when the clip has none
   // (then every frame was analysed and indices are unchanged).
@@ -65,18 +68,28 @@ class CadenceFilter {
 
   static constexpr size_t kDefaultLookahead = 30;
 
+  // What the filter held at most at once while deciding: frames kept in
+  // full, and bytes of planes and differences (for the memory tests).
+  size_t peak_held_full() const { return peak_held_full_; }
+  size_t peak_held_bytes() const { return peak_held_bytes_; }
+
  private:
   void decide(bool at_end);
-  void release_held(std::vector<Frame>& ready);
-  void pass(Frame frame, bool repeat, std::vector<Frame>& ready);
+  void hold(HeldFrame frame, bool repeat);
+  void release_held(std::vector<HeldFrame>& ready);
+  void pass(HeldFrame frame, bool repeat, std::vector<HeldFrame>& ready);
 
   size_t lookahead_;
   bool decided_ = false;
   int usual_repeats_ = 0;  // 0: no cadence, nothing is left out
   double repeat_share_ = 0;
   std::vector<bool> looked_ahead_;           // before the decision: each frame a repeat?
-  std::deque<std::pair<Frame, bool>> held_;  // frame, is a repeat of the one before
+  std::deque<std::pair<HeldFrame, bool>> held_;  // frame, is a repeat of the one before
   std::shared_ptr<const FramePlanes> last_;  // the previous decoded frame
+  // The last frame held or passed in full: what a held repeat is kept as
+  // a difference from (the picture it repeats, or an earlier copy of it).
+  std::shared_ptr<const FramePlanes> base_;
+  size_t held_full_ = 0, held_bytes_ = 0, peak_held_full_ = 0, peak_held_bytes_ = 0;
   int run_ = 0;                              // repeats of the current picture so far
   int64_t stored_ = 0;
   int64_t pictures_ = 0;  // stored frames that are not repeats

@@ -17,12 +17,15 @@ FrameStream::~FrameStream() {
 void FrameStream::run() {
   DecodedFrame frame;
   using Clock = std::chrono::steady_clock;
-  std::vector<CadenceFilter::Frame> ready;
+  std::vector<HeldFrame> ready;
+  auto spare = [this] { return pool_->take(); };
   // Luminance only for the frames analysed: a repeat the cadence leaves
   // out never needs it, and a frame held back by the filter waits without.
+  // A repeat held as a difference is rebuilt here, one at a time.
   auto hand_on = [&] {
-    for (auto& planes : ready) {
+    for (auto& held : ready) {
       const auto start = Clock::now();
+      std::shared_ptr<FramePlanes> planes = held.take(spare);
       prepare_luminance(*planes);
       busy_ms_ += std::chrono::duration<double, std::milli>(Clock::now() - start).count();
       if (!queue_.push(std::move(planes))) return false;  // consumer stopped

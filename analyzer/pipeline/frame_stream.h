@@ -33,6 +33,9 @@ class FrameStream {
   // After the end: the cadence found (cadence_filter.h) and the decoded
   // index of every frame handed on.
   const CadenceFilter& cadence() const { return cadence_; }
+  // Frame buffers made so far: the most frames alive at once, since a
+  // frame's buffers are recycled once nothing holds it (planes_pool.h).
+  size_t frame_buffers() const { return pool_->created(); }
 
  private:
   void run();

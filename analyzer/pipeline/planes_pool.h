@@ -4,6 +4,7 @@
 // The pool lives as long as any frame it handed out (the frames keep it).
 #pragma once
 
+#include <atomic>
 #include <memory>
 #include <mutex>
 #include <vector>
@@ -26,10 +27,16 @@ class PlanesPool : public std::enable_shared_from_this<PlanesPool> {
         spare_.pop_back();
       }
     }
-    if (!planes) planes = std::make_unique<FramePlanes>();
+    if (!planes) {
+      planes = std::make_unique<FramePlanes>();
+      created_.fetch_add(1, std::memory_order_relaxed);
+    }
     std::shared_ptr<PlanesPool> self = shared_from_this();
     return std::shared_ptr<FramePlanes>(planes.release(), [self](FramePlanes* p) { self->give_back(p); });
   }
+
+  // Frames made so far: the most that were ever out of the pool at once.
+  size_t created() const { return created_.load(std::memory_order_relaxed); }
 
  private:
   PlanesPool() = default;
@@ -40,6 +47,7 @@ class PlanesPool : public std::enable_shared_from_this<PlanesPool> {
 
   std::mutex mutex_;
   std::vector<std::unique_ptr<FramePlanes>> spare_;
+  std::atomic<size_t> created_{0};
 };
 
 }  // namespace clipwarden

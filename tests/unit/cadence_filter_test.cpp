@@ -60,22 +60,24 @@ TEST(SamePicture, ASmallMovingThingIsNotAFrozenPicture) {
 
 namespace {
 
-// A decoded frame for the filter: only its gray plane is read. Pictures
-// differ by their noise seed (uniform noise, standard deviation ~74 levels:
-// textured); a repeat is the same seed again.
+// A decoded frame for the filter: its gray plane decides, its BGR plane is
+// kept with it. Pictures differ by their noise seed (uniform noise,
+// standard deviation ~74 levels: textured); a repeat is the same seed again.
 CadenceFilter::Frame noise_frame(int64_t index, uint64_t seed) {
   auto f = std::make_shared<FramePlanes>();
   f->index = index;
   f->t_s = static_cast<double>(index) / 24.0;
   f->gray.create(64, 64, CV_8UC1);
+  f->bgr.create(64, 64, CV_8UC3);
   cv::RNG rng(seed);
   rng.fill(f->gray, cv::RNG::UNIFORM, 0, 256);
+  rng.fill(f->bgr, cv::RNG::UNIFORM, 0, 256);
   return f;
 }
 
-std::vector<int64_t> indices(const std::vector<CadenceFilter::Frame>& frames) {
+std::vector<int64_t> indices(const std::vector<HeldFrame>& frames) {
   std::vector<int64_t> out;
-  for (const auto& f : frames) out.push_back(f->index);
+  for (const auto& f : frames) out.push_back(f.index());
   return out;
 }
 
@@ -86,11 +88,11 @@ std::vector<int64_t> indices(const std::vector<CadenceFilter::Frame>& frames) {
 // (and the frames after it, to keep the order) waits for the decision.
 TEST(CadenceStream, NewPicturesPassAtOnceUntilTheFirstRepeat) {
   CadenceFilter filter;
-  std::vector<CadenceFilter::Frame> ready;
+  std::vector<HeldFrame> ready;
   for (int64_t i = 0; i < 5; ++i) {
     filter.push(noise_frame(i, 100 + i), ready);
     ASSERT_EQ(ready.size(), 1u) << "frame " << i << " was held back";
-    EXPECT_EQ(ready.front()->index, i);
+    EXPECT_EQ(ready.front().index(), i);
     ready.clear();
   }
   filter.push(noise_frame(5, 104), ready);  // repeats frame 4
@@ -111,7 +113,7 @@ TEST(CadenceStream, NewPicturesPassAtOnceUntilTheFirstRepeat) {
 // waits for the decision at the 30th frame, which drops the repeats.
 TEST(CadenceStream, StoredThreeTimesIsDecidedAtTheLookahead) {
   CadenceFilter filter;
-  std::vector<CadenceFilter::Frame> ready;
+  std::vector<HeldFrame> ready;
   std::vector<int64_t> handed_on_after;  // frames out after each push
   for (int64_t i = 0; i < 36; ++i) {
     filter.push(noise_frame(i, 200 + static_cast<uint64_t>(i / 3)), ready);
@@ -129,4 +131,65 @@ TEST(CadenceStream, StoredThreeTimesIsDecidedAtTheLookahead) {
   ASSERT_TRUE(cadence);
   EXPECT_EQ(cadence->usual_repeats, 2);
   EXPECT_EQ(cadence->pictures, 12);
+}
+
+// While the cadence is decided, a stored repeat is held as the bytes where
+// it differs from the picture it repeats: for the 8 -> 24 fps pattern above
+// the filter holds frames 1..29 (frame 0 passed), of which only the 9 new
+// pictures (frames 3, 6, ..., 27) keep their planes; the 20 exact repeats
+// keep nothing. Counted by hand; holding every frame whole was 29 frames.
+TEST(CadenceStream, RepeatsAreHeldAsTheirDifference) {
+  CadenceFilter filter;
+  std::vector<HeldFrame> ready;
+  for (int64_t i = 0; i < 36; ++i) filter.push(noise_frame(i, 300 + static_cast<uint64_t>(i / 3)), ready);
+  filter.finish(ready);
+  const size_t frame_bytes = 64 * 64 * 3 + 64 * 64;  // BGR and gray
+  EXPECT_EQ(filter.peak_held_full(), 9u);
+  EXPECT_EQ(filter.peak_held_bytes(), 9 * frame_bytes);
+}
+
+// A held repeat that is not left out (no cadence) is rebuilt byte for byte:
+// here a near repeat (3 gray bytes and 2 BGR bytes changed, still the same
+// picture by same_picture's cell test) of a frame passed on at once.
+TEST(CadenceStream, AHeldRepeatIsRebuiltExactly) {
+  CadenceFilter filter;
+  std::vector<HeldFrame> ready;
+  for (int64_t i = 0; i < 5; ++i) filter.push(noise_frame(i, 400 + i), ready);
+  ready.clear();
+  CadenceFilter::Frame repeat = noise_frame(5, 404);
+  repeat->gray.at<uint8_t>(0, 0) ^= 1;
+  repeat->gray.at<uint8_t>(40, 17) ^= 4;
+  repeat->gray.at<uint8_t>(63, 63) ^= 2;
+  repeat->bgr.at<cv::Vec3b>(10, 20)[1] ^= 8;
+  repeat->bgr.at<cv::Vec3b>(63, 0)[2] ^= 1;
+  const cv::Mat gray = repeat->gray.clone(), bgr = repeat->bgr.clone();
+  filter.push(repeat, ready);
+  repeat.reset();
+  EXPECT_EQ(filter.peak_held_full(), 0u);
+  EXPECT_EQ(filter.peak_held_bytes(), 5 * (sizeof(uint32_t) + 1));  // offset and value per byte
+  filter.finish(ready);
+  ASSERT_EQ(ready.size(), 1u);
+  // The spare frame's old pixels must not show through.
+  auto planes = ready.front().take([] {
+    auto spare = std::make_shared<FramePlanes>();
+    spare->gray = cv::Mat(64, 64, CV_8UC1, cv::Scalar(7));
+    spare->bgr = cv::Mat(64, 64, CV_8UC3, cv::Scalar(1, 2, 3));
+    return spare;
+  });
+  EXPECT_EQ(planes->index, 5);
+  EXPECT_DOUBLE_EQ(planes->t_s, 5 / 24.0);
+  EXPECT_EQ(cv::norm(planes->gray, gray, cv::NORM_INF), 0);
+  EXPECT_EQ(cv::norm(planes->bgr, bgr, cv::NORM_INF), 0);
+}
+
+// Two different pictures differ almost everywhere: no difference is kept
+// (it would be larger than the plane), the plane is held whole.
+TEST(PlaneDifference, ADifferentPictureIsKeptWhole) {
+  const auto a = noise_frame(0, 1), b = noise_frame(1, 2);
+  PlaneDifference d;
+  EXPECT_FALSE(sparse_difference(b->gray, a->gray, d));
+  EXPECT_TRUE(sparse_difference(a->gray, a->gray, d));
+  EXPECT_EQ(d.bytes(), 0u);
+  const HeldFrame held = HeldFrame::repeat_of(b, a);
+  EXPECT_TRUE(held.in_full());
 }

@@ -7,6 +7,7 @@
 
 #include <opencv2/imgproc.hpp>
 
+#include "analyzer/pipeline/frame_stream.h"
 #include "clipwarden/analysis.h"
 #include "clipwarden/report_io.h"
 #include "support/synthetic_source.h"
@@ -146,4 +147,30 @@ TEST(Pipeline, LongRangeWarpErrorGrowsWithTheSpanOfASlowChange) {
   const double share = 60.0 * 40.0 / (kFrame.width * kFrame.height);
   EXPECT_NEAR(one[20], 3 * std::pow(2 / 255.0, 2) * share, 0.2 * 3 * std::pow(2 / 255.0, 2) * share);
   EXPECT_NEAR(five[20], 3 * std::pow(10 / 255.0, 2) * share, 0.2 * 3 * std::pow(10 / 255.0, 2) * share);
+}
+
+// Frames the decoder side holds at once, counted by the buffers its pool
+// makes (a frame's buffers are made only when none is free). A GIF storing
+// each picture 3 times: the cadence filter holds frames 1..29 until it
+// decides (cadence_filter_test.cpp counts them); only the 9 new pictures
+// among them keep their planes, the repeats keep their differences (none
+// here). Worked by hand at the decision: those 9, frame 0 (held by the
+// reader below), frame 29 (the filter's last frame, compared with the next),
+// one frame for the decoder; the queue is empty then. 12, and 4 more of
+// slack for the threads' order. Holding the repeats whole made 30.
+TEST(Pipeline, DecodedFramesHeldWhileTheCadenceIsDecidedAreBounded) {
+  const cv::Mat texture = smooth_texture({400, 200}, 11);
+  SyntheticSource source(48, 24, [&](int64_t i) { return view(texture, 4.0 * static_cast<double>(i / 3), 0, kFrame); });
+  FrameStream stream(source, 2);
+  std::shared_ptr<const FramePlanes> frame;
+  int64_t frames = 0;
+  while (auto next = stream.next()) {
+    frame = std::move(next);  // the reader holds one frame at a time
+    ++frames;
+  }
+  EXPECT_EQ(frames, 16);
+  ASSERT_TRUE(stream.cadence().cadence(2.0));
+  EXPECT_EQ(stream.cadence().cadence(2.0)->usual_repeats, 2);
+  EXPECT_LE(stream.frame_buffers(), 16u);
+  EXPECT_GE(stream.frame_buffers(), 11u);  // the 9 pictures held, frame 0 and the decoder's
 }
