@@ -88,4 +88,17 @@ float histogram_distance(const float* reference, const float* current, float ref
   return std::sqrt(0.5f * sum);
 }
 
+float structure_departure(const OrientationHistogram& reference,
+                          const OrientationHistogram& current, float reference_mass,
+                          float contrast_gain) {
+  if (reference_mass <= 0) return 0;
+  float current_mass = 0;
+  for (const float bin : current) current_mass += bin;
+  // Scaling the current measure by its own energy ratio when that exceeds
+  // the contrast gain brings it to the reference's mass: what is left is
+  // the orientation mix.
+  const float scale = std::max(contrast_gain, current_mass / reference_mass);
+  return histogram_distance(reference.data(), current.data(), reference_mass, scale);
+}
+
 }  // namespace clipwarden::drift

@@ -53,4 +53,18 @@ class FrameFeatures {
 float histogram_distance(const float* reference, const float* current, float reference_mass,
                          float current_scale);
 
+// Drift's structure aspect: `histogram_distance` with the current measure
+// (under the global `contrast_gain`) never holding more gradient energy than
+// the reference. It counts texture lost (blur, flattening) and texture
+// rearranged (another orientation mix), not energy gained: a faint surface
+// gains energy whenever a strong edge comes near its windows, and on real
+// footage that edge belonged to something else (the dark base of a tumbler
+// over faint pen marks in hand-held opencv-doc cup.mp4, 2.7 times the
+// reference energy; a small walker's outline against pool tiles, 2.85
+// times), read as structure 0.73-0.76 with the same orientation mix
+// counting for only 0.39-0.42 (docs/drift.md).
+float structure_departure(const OrientationHistogram& reference,
+                          const OrientationHistogram& current, float reference_mass,
+                          float contrast_gain);
+
 }  // namespace clipwarden::drift

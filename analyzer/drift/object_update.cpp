@@ -330,8 +330,7 @@ ObjectSample DriftTracker::update_object(const FramePair& pair, ObjectTrack& obj
     sample.own_colour_de00 = static_cast<float>(look.own_colour_de00);
     sample.colour_now = look.colour_now;
     sample.colour_ref = look.colour_ref;
-    sample.structure =
-        histogram_distance(s.ref_hist.data(), s.cur_hist.data(), s.ref_mass, contrast_gain_);
+    sample.structure = structure_departure(s.ref_hist, s.cur_hist, s.ref_mass, contrast_gain_);
     // Size: the object's own scale against the camera's local scale at the
     // object, so a zoom or dolly is not size drift. Needs most of its points
     // followed (a partial point set of an articulated figure reads limbs,
