@@ -83,14 +83,14 @@ class CadenceFilter {
   bool decided_ = false;
   int usual_repeats_ = 0;  // 0: no cadence, nothing is left out
   double repeat_share_ = 0;
-  std::vector<bool> looked_ahead_;           // before the decision: each frame a repeat?
+  std::vector<bool> looked_ahead_;               // before the decision: each frame a repeat?
   std::deque<std::pair<HeldFrame, bool>> held_;  // frame, is a repeat of the one before
-  std::shared_ptr<const FramePlanes> last_;  // the previous decoded frame
+  std::shared_ptr<const FramePlanes> last_;      // the previous decoded frame
   // The last frame held or passed in full: what a held repeat is kept as
   // a difference from (the picture it repeats, or an earlier copy of it).
   std::shared_ptr<const FramePlanes> base_;
   size_t held_full_ = 0, held_bytes_ = 0, peak_held_full_ = 0, peak_held_bytes_ = 0;
-  int run_ = 0;                              // repeats of the current picture so far
+  int run_ = 0;  // repeats of the current picture so far
   int64_t stored_ = 0;
   int64_t pictures_ = 0;  // stored frames that are not repeats
   std::vector<int64_t> sources_;

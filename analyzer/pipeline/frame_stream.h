@@ -9,8 +9,8 @@
 #include <thread>
 
 #include "analyzer/frame/frame_pair.h"
-#include "analyzer/pipeline/cadence_filter.h"
 #include "analyzer/pipeline/bounded_queue.h"
+#include "analyzer/pipeline/cadence_filter.h"
 #include "analyzer/pipeline/planes_pool.h"
 #include "clipwarden/clip_source.h"
 
@@ -33,9 +33,8 @@ class FrameStream {
   // After the end: the cadence found (cadence_filter.h) and the decoded
   // index of every frame handed on.
   const CadenceFilter& cadence() const { return cadence_; }
-  // Frame buffers made so far: the most frames alive at once, since a
-  // frame's buffers are recycled once nothing holds it (planes_pool.h).
-  size_t frame_buffers() const { return pool_->created(); }
+  // The most decoded frames alive at once so far (planes_pool.h).
+  size_t frames_held_peak() const { return pool_->peak_out(); }
 
  private:
   void run();

@@ -141,7 +141,8 @@ TEST(CadenceStream, StoredThreeTimesIsDecidedAtTheLookahead) {
 TEST(CadenceStream, RepeatsAreHeldAsTheirDifference) {
   CadenceFilter filter;
   std::vector<HeldFrame> ready;
-  for (int64_t i = 0; i < 36; ++i) filter.push(noise_frame(i, 300 + static_cast<uint64_t>(i / 3)), ready);
+  for (int64_t i = 0; i < 36; ++i)
+    filter.push(noise_frame(i, 300 + static_cast<uint64_t>(i / 3)), ready);
   filter.finish(ready);
   const size_t frame_bytes = 64 * 64 * 3 + 64 * 64;  // BGR and gray
   EXPECT_EQ(filter.peak_held_full(), 9u);

@@ -47,7 +47,8 @@ std::vector<Segment> segments_of(const Report& r, const std::string& metric) {
 
 TEST(Pipeline, SmoothPanIsCoherent) {
   const cv::Mat texture = smooth_texture({400, 200}, 7);
-  SyntheticSource source(30, 24, [&](int64_t i) { return view(texture, 1.5 * i, 0.5 * i, kFrame); });
+  SyntheticSource source(30, 24,
+                         [&](int64_t i) { return view(texture, 1.5 * i, 0.5 * i, kFrame); });
   const Report r = run(source);
   ASSERT_EQ(r.frame_times_s.size(), 30u);
   EXPECT_TRUE(std::isnan(r.find_series("warp_error")->values[0]));
@@ -145,22 +146,26 @@ TEST(Pipeline, LongRangeWarpErrorGrowsWithTheSpanOfASlowChange) {
   for (int t = 10; t < 30; ++t, ++n) ratio_sum += five[t] / one[t];
   EXPECT_NEAR(ratio_sum / n, 25.0, 2.5);
   const double share = 60.0 * 40.0 / (kFrame.width * kFrame.height);
-  EXPECT_NEAR(one[20], 3 * std::pow(2 / 255.0, 2) * share, 0.2 * 3 * std::pow(2 / 255.0, 2) * share);
-  EXPECT_NEAR(five[20], 3 * std::pow(10 / 255.0, 2) * share, 0.2 * 3 * std::pow(10 / 255.0, 2) * share);
+  EXPECT_NEAR(one[20], 3 * std::pow(2 / 255.0, 2) * share,
+              0.2 * 3 * std::pow(2 / 255.0, 2) * share);
+  EXPECT_NEAR(five[20], 3 * std::pow(10 / 255.0, 2) * share,
+              0.2 * 3 * std::pow(10 / 255.0, 2) * share);
 }
 
-// Frames the decoder side holds at once, counted by the buffers its pool
-// makes (a frame's buffers are made only when none is free). A GIF storing
-// each picture 3 times: the cadence filter holds frames 1..29 until it
-// decides (cadence_filter_test.cpp counts them); only the 9 new pictures
-// among them keep their planes, the repeats keep their differences (none
-// here). Worked by hand at the decision: those 9, frame 0 (held by the
-// reader below), frame 29 (the filter's last frame, compared with the next),
-// one frame for the decoder; the queue is empty then. 12, and 4 more of
-// slack for the threads' order. Holding the repeats whole made 30.
+// Frames the decoder side holds at once, counted by its pool of frames. A
+// GIF storing each picture 3 times: the cadence filter holds frames 1..29
+// until it decides (cadence_filter_test.cpp counts them); only the 9 new
+// pictures among them keep their planes, the repeats keep their
+// differences (none here). Worked by hand, after the decision: those 9,
+// frame 29 (just decoded, and the filter's last frame, compared with the
+// next), frame 0 and frame 3 (the reader below pops one while holding the
+// one before): 12, and 4 more of slack for the threads' order. Holding the
+// repeats whole made 30.
 TEST(Pipeline, DecodedFramesHeldWhileTheCadenceIsDecidedAreBounded) {
   const cv::Mat texture = smooth_texture({400, 200}, 11);
-  SyntheticSource source(48, 24, [&](int64_t i) { return view(texture, 4.0 * static_cast<double>(i / 3), 0, kFrame); });
+  SyntheticSource source(48, 24, [&](int64_t i) {
+    return view(texture, 4.0 * static_cast<double>(i / 3), 0, kFrame);
+  });
   FrameStream stream(source, 2);
   std::shared_ptr<const FramePlanes> frame;
   int64_t frames = 0;
@@ -171,6 +176,6 @@ TEST(Pipeline, DecodedFramesHeldWhileTheCadenceIsDecidedAreBounded) {
   EXPECT_EQ(frames, 16);
   ASSERT_TRUE(stream.cadence().cadence(2.0));
   EXPECT_EQ(stream.cadence().cadence(2.0)->usual_repeats, 2);
-  EXPECT_LE(stream.frame_buffers(), 16u);
-  EXPECT_GE(stream.frame_buffers(), 11u);  // the 9 pictures held, frame 0 and the decoder's
+  EXPECT_LE(stream.frames_held_peak(), 16u);
+  EXPECT_GE(stream.frames_held_peak(), 11u);  // the 9 pictures held, the decoder's and the reader's
 }
