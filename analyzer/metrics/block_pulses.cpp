@@ -1,6 +1,7 @@
 #include "analyzer/metrics/block_pulses.h"
 
 #include <algorithm>
+#include <array>
 #include <cmath>
 #include <cstdlib>
 #include <limits>
@@ -21,6 +22,20 @@ void for_each_block(cv::Size size, int cols, int rows, Fn&& fn) {
     for (int bx = 0; bx < cols; ++bx)
       fn(static_cast<size_t>(by) * cols + bx, y0, y1, bx * size.width / cols,
          (bx + 1) * size.width / cols);
+  }
+}
+
+// Calls fn(cur, warped_prev) for each valid pixel of rows [y0, y1), columns
+// [x0, x1) (every pixel when `valid` is empty).
+template <class Fn>
+void for_each_valid_pixel(const cv::Mat& cur, const cv::Mat& warped_prev, const cv::Mat& valid,
+                          int y0, int y1, int x0, int x1, Fn&& fn) {
+  for (int y = y0; y < y1; ++y) {
+    const float* c = cur.ptr<float>(y);
+    const float* w = warped_prev.ptr<float>(y);
+    const uint8_t* v = valid.empty() ? nullptr : valid.ptr<uint8_t>(y);
+    for (int x = x0; x < x1; ++x)
+      if (!v || v[x]) fn(c[x], w[x]);
   }
 }
 
@@ -55,16 +70,10 @@ std::vector<float> block_luminance_changes(const cv::Mat& cur, const cv::Mat& wa
   for_each_block(cur.size(), cols, rows, [&](size_t block, int y0, int y1, int x0, int x1) {
     diffs.clear();
     double level = 0;
-    for (int y = y0; y < y1; ++y) {
-      const float* c = cur.ptr<float>(y);
-      const float* w = warped_prev.ptr<float>(y);
-      const uint8_t* v = valid.empty() ? nullptr : valid.ptr<uint8_t>(y);
-      for (int x = x0; x < x1; ++x)
-        if (!v || v[x]) {
-          diffs.push_back(c[x] - w[x]);
-          level += w[x];
-        }
-    }
+    for_each_valid_pixel(cur, warped_prev, valid, y0, y1, x0, x1, [&](float c, float w) {
+      diffs.push_back(c - w);
+      level += w;
+    });
     const size_t area = static_cast<size_t>(y1 - y0) * (x1 - x0);
     if (diffs.empty() || 2 * diffs.size() < area) return;
     const float change = uniform_change(diffs);
@@ -77,33 +86,76 @@ std::vector<float> block_luminance_changes(const cv::Mat& cur, const cv::Mat& wa
   return out;
 }
 
+namespace {
+
+// First and second moments of the current and the warped previous
+// luminance over a block's valid pixels; n = 0 where fewer than half its
+// pixels are valid (or fewer than 2).
+struct BlockMoments {
+  double n = 0, mean_c = 0, mean_w = 0, var_c = 0, var_w = 0, cov = 0;
+};
+
+BlockMoments block_moments(const cv::Mat& cur, const cv::Mat& warped_prev, const cv::Mat& valid,
+                           int y0, int y1, int x0, int x1) {
+  // Sums in double: a block holds up to a few thousand pixels.
+  double n = 0, sc = 0, sw = 0, scc = 0, sww = 0, scw = 0;
+  for_each_valid_pixel(cur, warped_prev, valid, y0, y1, x0, x1, [&](float c, float w) {
+    n += 1, sc += c, sw += w;
+    scc += double(c) * c, sww += double(w) * w, scw += double(c) * w;
+  });
+  const double area = static_cast<double>(y1 - y0) * (x1 - x0);
+  if (n < 2 || 2 * n < area) return {};
+  const double mc = sc / n, mw = sw / n;
+  return {n, mc, mw, std::max(0.0, scc / n - mc * mc), std::max(0.0, sww / n - mw * mw),
+          scw / n - mc * mw};
+}
+
+}  // namespace
+
 std::vector<float> block_texture_agreement(const cv::Mat& cur, const cv::Mat& warped_prev,
                                            const cv::Mat& valid, int cols, int rows,
                                            float min_relative_spread) {
   std::vector<float> out(static_cast<size_t>(cols) * rows, std::numeric_limits<float>::quiet_NaN());
   for_each_block(cur.size(), cols, rows, [&](size_t block, int y0, int y1, int x0, int x1) {
-    // Sums in double: a block holds up to a few thousand pixels.
-    double n = 0, sc = 0, sw = 0, scc = 0, sww = 0, scw = 0;
-    for (int y = y0; y < y1; ++y) {
-      const float* c = cur.ptr<float>(y);
-      const float* w = warped_prev.ptr<float>(y);
-      const uint8_t* v = valid.empty() ? nullptr : valid.ptr<uint8_t>(y);
-      for (int x = x0; x < x1; ++x)
-        if (!v || v[x]) {
-          n += 1, sc += c[x], sw += w[x];
-          scc += double(c[x]) * c[x], sww += double(w[x]) * w[x], scw += double(c[x]) * w[x];
-        }
-    }
-    const double area = static_cast<double>(y1 - y0) * (x1 - x0);
-    if (n < 2 || 2 * n < area) return;
-    const double mc = sc / n, mw = sw / n;
-    const double vc = std::max(0.0, scc / n - mc * mc), vw = std::max(0.0, sww / n - mw * mw);
-    const double floor_c = min_relative_spread * std::max(mc, 1e-6);
-    const double floor_w = min_relative_spread * std::max(mw, 1e-6);
-    if (vc <= floor_c * floor_c && vw <= floor_w * floor_w) return;
-    const double denom = std::sqrt(vc * vw);
+    const BlockMoments m = block_moments(cur, warped_prev, valid, y0, y1, x0, x1);
+    if (m.n == 0) return;
+    const double floor_c = min_relative_spread * std::max(m.mean_c, 1e-6);
+    const double floor_w = min_relative_spread * std::max(m.mean_w, 1e-6);
+    if (m.var_c <= floor_c * floor_c && m.var_w <= floor_w * floor_w) return;
+    const double denom = std::sqrt(m.var_c * m.var_w);
     // One side flat, the other not: the pattern appeared or vanished.
-    out[block] = denom > 0 ? static_cast<float>((scw / n - mc * mw) / denom) : 0.0f;
+    out[block] = denom > 0 ? static_cast<float>(m.cov / denom) : 0.0f;
+  });
+  return out;
+}
+
+std::vector<LightFit> block_light_fit(const cv::Mat& cur, const cv::Mat& warped_prev,
+                                      const cv::Mat& valid, int cols, int rows, float level_floor) {
+  constexpr float kNaN = std::numeric_limits<float>::quiet_NaN();
+  std::vector<LightFit> out(static_cast<size_t>(cols) * rows, LightFit{kNaN, kNaN});
+  for_each_block(cur.size(), cols, rows, [&](size_t block, int y0, int y1, int x0, int x1) {
+    const BlockMoments m = block_moments(cur, warped_prev, valid, y0, y1, x0, x1);
+    if (m.n == 0) return;
+    // Each quarter of the block fitted on its own, so the edge of a lit
+    // region crossing the block is fitted by the quarters on either side.
+    double residual_sum = 0, weight = 0;
+    const int ym = (y0 + y1) / 2, xm = (x0 + x1) / 2;
+    for (const auto& [qy0, qy1, qx0, qx1] :
+         {std::array{y0, ym, x0, xm}, std::array{y0, ym, xm, x1}, std::array{ym, y1, x0, xm},
+          std::array{ym, y1, xm, x1}}) {
+      const BlockMoments q = block_moments(cur, warped_prev, valid, qy0, qy1, qx0, qx1);
+      if (q.n == 0) continue;
+      // d = c - w: its variance and covariance with w from the moments.
+      const double var_d = std::max(0.0, q.var_c + q.var_w - 2 * q.cov);
+      const double cov_wd = q.cov - q.var_w;
+      // The residual variance of a least-squares line: var(d) (1 - r^2).
+      residual_sum += q.n * (q.var_w > 0 ? std::max(0.0, var_d - cov_wd * cov_wd / q.var_w) : var_d);
+      weight += q.n;
+    }
+    if (weight == 0) return;
+    const double level = std::max<double>(level_floor, m.mean_w);
+    out[block] = {static_cast<float>((m.mean_c - m.mean_w) / level),
+                  static_cast<float>(std::sqrt(residual_sum / weight) / level)};
   });
   return out;
 }

@@ -46,6 +46,27 @@ std::vector<float> block_texture_agreement(const cv::Mat& cur_luminance,
                                            const cv::Mat& valid, int cols, int rows,
                                            float min_relative_spread);
 
+// What a change of light cannot explain in each block. Light that
+// brightens a surface scales it and may add a glow: the change d = cur -
+// warped_prev is then a + g * warped_prev over the block (the
+// brightness-change model of Negahdaripour, "Revised definition of optical
+// flow", IEEE PAMI 20(9), 1998: a gain and an offset beside the motion).
+// A bright pattern that travels over the surface - caustics on coral, a
+// glint running along a rim - brings a pattern of its own that neither
+// term fits. Per block, over its valid pixels: the mean change and the
+// spread (standard deviation) of what the least-squares fit a + g * w
+// leaves, fitted in each quarter of the block on its own (so the edge of a
+// lit region crossing the block is fitted on either side) and pooled, both
+// divided by the block's mean warped luminance (at least level_floor) like
+// block_luminance_changes. NaN where fewer than half the pixels are valid.
+struct LightFit {
+  float mean_change = 0;
+  float residual_spread = 0;
+};
+std::vector<LightFit> block_light_fit(const cv::Mat& cur_luminance,
+                                      const cv::Mat& warped_prev_luminance, const cv::Mat& valid,
+                                      int cols, int rows, float level_floor);
+
 // How far each block's content moves apart from the camera: the mean over
 // the block's valid pixels of |flow(x) - camera(x)|, where camera(x) is the
 // backward displacement the camera homography gives (prev -> cur, so

@@ -113,11 +113,13 @@ TEST(Accuracy, ModerateDefectsOnShortRealClips) {
 // freeze 1.00, drop 1.00, jerk 0.83, strobe 0.67; precision 1.00. Floors
 // are those less one case (1/6). Onset medians measured 0-1 frames for the
 // sudden classes (limit 2, as on camera footage) and 11-13 for the drift
-// ramps (limit 30, as on camera footage).
+// ramps (limit 30, as on camera footage). Local flicker 0.50 since
+// 2026-12-05, "Light that a gain cannot explain": the pulse injected on a
+// generated seascape's moving waves is no longer found, as caustics are not.
 namespace {
 const std::map<DefectClass, Floor>& generated_floors() {
   static const std::map<DefectClass, Floor> table = {
-      {DefectClass::flicker, {0.66, 0.66, 2}},      {DefectClass::local_flicker, {0.5, 0.66, 2}},
+      {DefectClass::flicker, {0.66, 0.66, 2}},      {DefectClass::local_flicker, {0.33, 0.66, 2}},
       {DefectClass::boiling, {0.33, 0.66, 2}},      {DefectClass::colour_drift, {0.66, 0.66, 30}},
       {DefectClass::shape_drift, {0.83, 0.66, 30}}, {DefectClass::vanish, {0.66, 0.66, 30}},
       {DefectClass::freeze, {0.83, 0.66, 2}},       {DefectClass::drop, {0.83, 0.66, 2}},

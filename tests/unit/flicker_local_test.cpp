@@ -239,3 +239,35 @@ TEST(RecurringQuantile, NeverAboveThePlainQuantile) {
   EXPECT_EQ(recurring_quantile(v, t, 0.95, 1.0), 0.0);
   EXPECT_TRUE(std::isnan(recurring_quantile(std::vector<double>(3, NAN), t, 0.95, 1.0)));
 }
+
+// The brightness-change model (Negahdaripour 1998): a gain or an offset of a
+// surface is fitted exactly by a + g * w, so nothing is left; a pattern of
+// its own laid over the surface is left whole. For d independent of w the
+// fit takes out only what chance correlation explains, so the spread left
+// is the pattern's own standard deviation: (b - a) / sqrt(12) for a
+// uniform pattern on [a, b]. Each quarter of the block is fitted on its own.
+TEST(BlockLightFit, GainAndOffsetLeaveNothingAPatternOfItsOwnIsLeft) {
+  cv::Mat surface(64, 64, CV_32F);
+  cv::randu(surface, 0.1, 0.5);  // mean 0.3
+  const double level = cv::mean(surface)[0];
+  const LightFit gain = block_light_fit(surface * 1.2, surface, cv::Mat(), 1, 1, 0.02f)[0];
+  EXPECT_NEAR(gain.mean_change, 0.2, 1e-4);  // (1.2 w - w) / w
+  EXPECT_NEAR(gain.residual_spread, 0.0, 1e-3);
+  const LightFit offset = block_light_fit(surface + 0.05, surface, cv::Mat(), 1, 1, 0.02f)[0];
+  EXPECT_NEAR(offset.mean_change, 0.05 / level, 1e-4);
+  EXPECT_NEAR(offset.residual_spread, 0.0, 1e-3);
+  cv::Mat caustic(64, 64, CV_32F);
+  cv::randu(caustic, 0.0, 0.2);  // mean 0.1, spread 0.2 / sqrt(12) = 0.0577
+  const LightFit pattern = block_light_fit(surface + caustic, surface, cv::Mat(), 1, 1, 0.02f)[0];
+  EXPECT_NEAR(pattern.mean_change, 0.1 / level, 0.01);
+  EXPECT_NEAR(pattern.residual_spread, 0.2 / std::sqrt(12.0) / level, 0.01);
+  // The edge of a lit region along the middle of the block: each quarter
+  // lies on one side and is fitted exactly.
+  cv::Mat half_lit = surface.clone();
+  half_lit(cv::Rect(0, 0, 32, 64)) *= 1.3;
+  EXPECT_NEAR(block_light_fit(half_lit, surface, cv::Mat(), 1, 1, 0.02f)[0].residual_spread, 0.0, 1e-3);
+  // Fewer than half the pixels valid: unknown.
+  cv::Mat valid(64, 64, CV_8U, cv::Scalar(0));
+  valid(cv::Rect(0, 0, 64, 20)).setTo(255);
+  EXPECT_TRUE(std::isnan(block_light_fit(surface, surface, valid, 1, 1, 0.02f)[0].mean_change));
+}
