@@ -67,7 +67,10 @@ def test_frames_decoded_by_opencv_give_the_files_report(frames):
     from_file = clipwarden.analyze(FLICKER_CLIP)
     from_frames = clipwarden.analyze_frames(np.stack(frames), from_file.clip["fps"])
     assert from_frames.verdict == from_file.verdict == "review"
-    assert [s["metric"] for s in from_frames.segments] == [s["metric"] for s in from_file.segments]
+    # Info segments are not compared: a metric that peaks near its entry
+    # level can cross it on one side only (measured 2026-12-05 on this clip:
+    # flicker_local peaks 0.108 from OpenCV's frames, 0.093 from the file,
+    # entry 0.1; an info segment from the frames, none from the file).
     flagged = lambda r: [
         (s["metric"], s["severity"], s["start_frame"], s["end_frame"])
         for s in r.segments
