@@ -17,4 +17,9 @@ std::string corpus_clip(const std::string& file);
 // fails the test and gives an empty report.
 Report analyse_with_defaults(const std::string& path);
 
+// The segments of `metric` above info in `report`, each as "frames a-b peak
+// p", joined by "; "; "" when there are none. EXPECT_EQ(flagged_segments(r,
+// "boiling"), "") << clip names every segment that should not be there.
+std::string flagged_segments(const Report& report, const std::string& metric);
+
 }  // namespace clipwarden::test
