@@ -88,26 +88,46 @@ std::vector<float> block_luminance_changes(const cv::Mat& cur, const cv::Mat& wa
 
 namespace {
 
-// First and second moments of the current and the warped previous
-// luminance over a block's valid pixels; n = 0 where fewer than half its
-// pixels are valid (or fewer than 2).
+// Sums over a rectangle's valid pixels of the current (c) and the warped
+// previous (w) luminance, their squares and their product. In double: a
+// block holds up to a few thousand pixels.
+struct PixelSums {
+  double n = 0, c = 0, w = 0, cc = 0, ww = 0, cw = 0;
+  PixelSums& operator+=(const PixelSums& o) {
+    n += o.n, c += o.c, w += o.w, cc += o.cc, ww += o.ww, cw += o.cw;
+    return *this;
+  }
+};
+
+PixelSums pixel_sums(const cv::Mat& cur, const cv::Mat& warped_prev, const cv::Mat& valid, int y0,
+                     int y1, int x0, int x1) {
+  PixelSums s;
+  for_each_valid_pixel(cur, warped_prev, valid, y0, y1, x0, x1, [&](float c, float w) {
+    s.n += 1, s.c += c, s.w += w;
+    s.cc += double(c) * c, s.ww += double(w) * w, s.cw += double(c) * w;
+  });
+  return s;
+}
+
+// First and second moments of c and w from their sums over a rectangle of
+// `area` pixels; n = 0 where fewer than half its pixels are valid (or
+// fewer than 2).
 struct BlockMoments {
   double n = 0, mean_c = 0, mean_w = 0, var_c = 0, var_w = 0, cov = 0;
 };
 
+BlockMoments moments_of(const PixelSums& s, double area) {
+  if (s.n < 2 || 2 * s.n < area) return {};
+  const double mc = s.c / s.n, mw = s.w / s.n;
+  return {s.n, mc, mw, std::max(0.0, s.cc / s.n - mc * mc), std::max(0.0, s.ww / s.n - mw * mw),
+          s.cw / s.n - mc * mw};
+}
+
+double area_of(int y0, int y1, int x0, int x1) { return static_cast<double>(y1 - y0) * (x1 - x0); }
+
 BlockMoments block_moments(const cv::Mat& cur, const cv::Mat& warped_prev, const cv::Mat& valid,
                            int y0, int y1, int x0, int x1) {
-  // Sums in double: a block holds up to a few thousand pixels.
-  double n = 0, sc = 0, sw = 0, scc = 0, sww = 0, scw = 0;
-  for_each_valid_pixel(cur, warped_prev, valid, y0, y1, x0, x1, [&](float c, float w) {
-    n += 1, sc += c, sw += w;
-    scc += double(c) * c, sww += double(w) * w, scw += double(c) * w;
-  });
-  const double area = static_cast<double>(y1 - y0) * (x1 - x0);
-  if (n < 2 || 2 * n < area) return {};
-  const double mc = sc / n, mw = sw / n;
-  return {n, mc, mw, std::max(0.0, scc / n - mc * mc), std::max(0.0, sww / n - mw * mw),
-          scw / n - mc * mw};
+  return moments_of(pixel_sums(cur, warped_prev, valid, y0, y1, x0, x1), area_of(y0, y1, x0, x1));
 }
 
 }  // namespace
@@ -134,16 +154,25 @@ std::vector<LightFit> block_light_fit(const cv::Mat& cur, const cv::Mat& warped_
   constexpr float kNaN = std::numeric_limits<float>::quiet_NaN();
   std::vector<LightFit> out(static_cast<size_t>(cols) * rows, LightFit{kNaN, kNaN});
   for_each_block(cur.size(), cols, rows, [&](size_t block, int y0, int y1, int x0, int x1) {
-    const BlockMoments m = block_moments(cur, warped_prev, valid, y0, y1, x0, x1);
-    if (m.n == 0) return;
     // Each quarter of the block fitted on its own, so the edge of a lit
     // region crossing the block is fitted by the quarters on either side.
-    double residual_sum = 0, weight = 0;
+    // The quarters tile the block: one pass over its pixels gives both.
     const int ym = (y0 + y1) / 2, xm = (x0 + x1) / 2;
-    for (const auto& [qy0, qy1, qx0, qx1] :
-         {std::array{y0, ym, x0, xm}, std::array{y0, ym, xm, x1}, std::array{ym, y1, x0, xm},
-          std::array{ym, y1, xm, x1}}) {
-      const BlockMoments q = block_moments(cur, warped_prev, valid, qy0, qy1, qx0, qx1);
+    const std::array<std::array<int, 4>, 4> quarters = {
+        {{y0, ym, x0, xm}, {y0, ym, xm, x1}, {ym, y1, x0, xm}, {ym, y1, xm, x1}}};
+    std::array<PixelSums, 4> quarter_sums;
+    PixelSums block_sums;
+    for (size_t i = 0; i < quarters.size(); ++i) {
+      const auto& [qy0, qy1, qx0, qx1] = quarters[i];
+      quarter_sums[i] = pixel_sums(cur, warped_prev, valid, qy0, qy1, qx0, qx1);
+      block_sums += quarter_sums[i];
+    }
+    const BlockMoments m = moments_of(block_sums, area_of(y0, y1, x0, x1));
+    if (m.n == 0) return;
+    double residual_sum = 0, weight = 0;
+    for (size_t i = 0; i < quarters.size(); ++i) {
+      const auto& [qy0, qy1, qx0, qx1] = quarters[i];
+      const BlockMoments q = moments_of(quarter_sums[i], area_of(qy0, qy1, qx0, qx1));
       if (q.n == 0) continue;
       // d = c - w: its variance and covariance with w from the moments.
       const double var_d = std::max(0.0, q.var_c + q.var_w - 2 * q.cov);

@@ -31,12 +31,9 @@ class PlanesPool : public std::enable_shared_from_this<PlanesPool> {
         planes = std::move(spare_.back());
         spare_.pop_back();
       }
-    }
-    if (!planes) planes = std::make_unique<FramePlanes>();
-    {
-      std::lock_guard lock(mutex_);
       peak_out_ = std::max(peak_out_, ++out_);
     }
+    if (!planes) planes = std::make_unique<FramePlanes>();
     std::shared_ptr<PlanesPool> self = shared_from_this();
     return std::shared_ptr<FramePlanes>(planes.release(),
                                         [self](FramePlanes* p) { self->give_back(p); });
