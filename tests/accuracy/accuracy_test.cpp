@@ -38,13 +38,14 @@ struct Floor {
 // what the run measured on 2026-12-02 less one case (cut and jerk: 3 of 3
 // on 2026-12-04, once jolt and warp_error_ratio judged them), so a
 // detector that loses a case it found fails here without the test being
-// flaky about threads. Drift classes ramp slowly: their onset is counted
+// flaky about threads (boiling: 3 of 3 since 2026-12-04, floor 0.66 since
+// 2026-12-05). Drift classes ramp slowly: their onset is counted
 // from the frame where the change becomes visible and still lags
 // (measured medians 15-22).
 const std::map<DefectClass, Floor>& floors() {
   static const std::map<DefectClass, Floor> table = {
       {DefectClass::flicker, {0.66, 0.66, 2}},      {DefectClass::local_flicker, {0.66, 0.66, 2}},
-      {DefectClass::boiling, {0.33, 0.33, 2}},      {DefectClass::colour_drift, {0.33, 0.33, 30}},
+      {DefectClass::boiling, {0.66, 0.66, 2}},      {DefectClass::colour_drift, {0.33, 0.33, 30}},
       {DefectClass::shape_drift, {0.33, 0.33, 30}}, {DefectClass::vanish, {0.33, 0.33, 30}},
       {DefectClass::freeze, {0.66, 0.66, 2}},       {DefectClass::drop, {0.66, 0.66, 2}},
       {DefectClass::cut, {0.66, 0.33, 2}},          {DefectClass::jerk, {0.66, 0.66, 2}},
@@ -116,11 +117,14 @@ TEST(Accuracy, ModerateDefectsOnShortRealClips) {
 // ramps (limit 30, as on camera footage). Local flicker 0.50 since
 // 2026-12-05, "Light that a gain cannot explain": the pulse injected on a
 // generated seascape's moving waves is no longer found, as caustics are not.
+// Boiling 0.83 since 2026-12-05, "Boiling against each window's own
+// history" (5 of 6; the walking cat's fast scene is still missed, and
+// EasyAnimate's case counts its own embers' boiling over the defect).
 namespace {
 const std::map<DefectClass, Floor>& generated_floors() {
   static const std::map<DefectClass, Floor> table = {
       {DefectClass::flicker, {0.66, 0.66, 2}},      {DefectClass::local_flicker, {0.33, 0.66, 2}},
-      {DefectClass::boiling, {0.33, 0.66, 2}},      {DefectClass::colour_drift, {0.66, 0.66, 30}},
+      {DefectClass::boiling, {0.66, 0.66, 2}},      {DefectClass::colour_drift, {0.66, 0.66, 30}},
       {DefectClass::shape_drift, {0.83, 0.66, 30}}, {DefectClass::vanish, {0.66, 0.66, 30}},
       {DefectClass::freeze, {0.83, 0.66, 2}},       {DefectClass::drop, {0.83, 0.66, 2}},
       {DefectClass::jerk, {0.66, 0.66, 2}},         {DefectClass::strobe, {0.5, 0.66, 2}},
