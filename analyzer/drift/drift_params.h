@@ -70,6 +70,14 @@ struct DriftParams {
   double structure_unit = 0.6;     // gradient-orientation measure distance
   double size_unit_log = std::log(1.3);  // 30% larger or 23% smaller within the size window
   double size_window_s = 2.0;
+  // Scene cells read in quarters: a quarter's own colour counts beyond its
+  // clean level, the largest reading over the cell's first `quarter_clean_s`;
+  // a quarter needs `min_quarter_points` followed points, and is read only
+  // while every channel gain of the frame's illumination fit lies within
+  // [1 / max_quarter_gain, max_quarter_gain].
+  double quarter_clean_s = 0.5;
+  int min_quarter_points = 8;
+  float max_quarter_gain = 1.25f;
   // The size aspect counts at most this much: a size change is reported
   // (a drift segment opens from 0.35) but never reaches the review level
   // (1.0) on its own. The object's points spreading apart or closing in is

@@ -275,6 +275,12 @@ void DriftTracker::add_object(const RegionProposal& region, ObjectKind kind,
     sum += region.points[i];
   }
   object.ref_centroid = sum * (1.0f / static_cast<float>(region.points.size()));
+  if (kind == ObjectKind::scene) {
+    const cv::Point2f centre(region.box.x + 0.5f * region.box.width,
+                             region.box.y + 0.5f * region.box.height);
+    for (auto& p : object.points)
+      p.quarter = static_cast<uint8_t>((p.ref_pos.x >= centre.x) + 2 * (p.ref_pos.y >= centre.y));
+  }
   mark_interior_points(object.points,
                        kind == ObjectKind::moving ? params_.object_step_px : 2 * params_.object_step_px);
   object.ref_extent_px = static_cast<float>(std::max(region.box.width, region.box.height));

@@ -37,6 +37,9 @@ struct AppearanceSums {
   OrientationHistogram ref_hist{}, cur_hist{};
   float ref_mass = 0;
   int count = 0;
+  // The same colour sums per quarter (TrackPoint::quarter; scene cells).
+  double quarter_pred[4][3] = {}, quarter_now[4][3] = {};
+  int quarter_count[4] = {};
   // `predicted` and `cur` in CIELAB (converted once per point, by the caller).
   void add(const TrackPoint& p, const color::Lab& predicted, const color::Lab& cur,
            const OrientationHistogram& hist);
@@ -113,6 +116,9 @@ class DriftTracker {
   void confirm_support(const FramePair& pair, ObjectTrack& object);
   void decide_state(const FramePair& pair, ObjectTrack& object, const PointCounts& counts);
   bool looks_like_itself(const PointCounts& counts) const;
+  // A scene cell's largest quarter own colour change beyond the quarter's
+  // clean level, in ΔE00; NaN when not read.
+  float read_quarters(const FramePair& pair, ObjectTrack& object, const AppearanceSums& s) const;
   bool seen_well(const PointCounts& counts, int inside_count) const;
   bool breaks_continuity(const ObjectTrack& object, const ObjectSample& now) const;
   GrayFit fit_object_gray(const ObjectTrack& object) const;

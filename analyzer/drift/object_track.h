@@ -3,6 +3,7 @@
 // drift measurements.
 #pragma once
 
+#include <array>
 #include <cstdint>
 #include <limits>
 #include <string>
@@ -35,6 +36,7 @@ struct TrackPoint {
   PointState state = PointState::tracked;
   bool interior = false;  // all four grid neighbours belong to the object too
   bool present = true;  // appearance still matches the reference
+  uint8_t quarter = 0;  // scene cells: which quarter of the cell (by reference position) it lies in
   // During a new object's probation: how far its flow steps fell from the
   // object's own motion and from the camera's (summed, pixels).
   cv::Point2f flow_step;
@@ -61,6 +63,9 @@ struct ObjectSample {
   float structure = kNotMeasured;
   float size_pct = kNotMeasured;         // scale against the first look, camera removed
   float size_window_pct = kNotMeasured;  // scale change over the size window
+  // Scene cells: the largest own colour change of a quarter of the cell
+  // beyond that quarter's clean level (see read_quarters, object_update.cpp).
+  float quarter_colour_de00 = kNotMeasured;
   float visible_fraction = 0;  // share of its reference points seen now
   cv::Vec3f colour_now, colour_ref;  // mean CIELAB (L*, a*, b*) now and of the reference
 };
@@ -78,6 +83,9 @@ struct ObjectTrack {
   cv::Point2f ref_centroid;
   float ref_extent_px = 0;  // larger side of the reference box
   std::vector<TrackPoint> points;
+  // Scene cells: each quarter's own colour change while the cell is young
+  // (its clean level, the largest reading over its first look; read_quarters).
+  std::array<float, 4> quarter_clean_de00{};
   Similarity motion;                 // reference positions -> current positions
   cv::Point2f centroid_velocity_px_s;  // for coasting through full occlusion
   double missing_s = 0;   // support gone without occlusion, consecutive

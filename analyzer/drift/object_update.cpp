@@ -60,6 +60,50 @@ void AppearanceSums::add(const TrackPoint& p, const color::Lab& lp, const color:
   for (int k = 0; k < kOrientationBins; ++k) ref_hist[k] += p.ref_hist[k], cur_hist[k] += hist[k];
   ref_mass += p.ref_mass;
   ++count;
+  const int q = p.quarter & 3;
+  quarter_pred[q][0] += lp.l, quarter_pred[q][1] += lp.a, quarter_pred[q][2] += lp.b;
+  quarter_now[q][0] += lc.l, quarter_now[q][1] += lc.a, quarter_now[q][2] += lc.b;
+  ++quarter_count[q];
+}
+
+// A scene cell averages a recolour of a few percent of the frame with the
+// rest of the cell (a ΔE00 12 recolour over half a cell read about 6), so
+// each quarter of the cell is also read on its own, as its own colour
+// (brightness removed, as for moving objects) while the frame's light is
+// near the shot's first: a fade or a grade scales every channel far from 1
+// and with the brightness freed would read as a hue change (a field scene
+// fading to black read 10). Two things count against a quarter's reading:
+// - its brightness change, 1 ΔE00 per percent of (L* + 16): light added or
+//   taken away locally (a glow, a reflection sweeping over water, coloured
+//   shade) changes a surface's hue as it changes its brightness, while a
+//   repaint turns the hue at the brightness it had (the demo lantern's
+//   reflection read own 4.2 with 9-10% more brightness, injected recolours
+//   up to 11.8 within 2.4%);
+// - its clean level, the largest reading over the cell's first
+//   `quarter_clean_s`: a quarter of dark or flat content reads a few ΔE00
+//   of its own from compression and noise alone.
+float DriftTracker::read_quarters(const FramePair& pair, ObjectTrack& object,
+                                  const AppearanceSums& s) const {
+  for (const ChannelAffine& channel : illumination_cur_.channel) {
+    if (!(channel.gain <= params_.max_quarter_gain && channel.gain * params_.max_quarter_gain >= 1))
+      return kNotMeasured;
+  }
+  const bool young = pair.cur->t_s - object.first_t_s < params_.quarter_clean_s;
+  float largest = kNotMeasured;
+  for (int q = 0; q < 4; ++q) {
+    if (s.quarter_count[q] < params_.min_quarter_points) continue;
+    const double n = s.quarter_count[q];
+    const color::Lab pred{s.quarter_pred[q][0] / n, s.quarter_pred[q][1] / n, s.quarter_pred[q][2] / n};
+    const color::Lab now{s.quarter_now[q][0] / n, s.quarter_now[q][1] / n, s.quarter_now[q][2] / n};
+    const double brightness_pct = 100 * std::abs(std::log((now.l + 16) / std::max(1.0, pred.l + 16)));
+    const float reading =
+        static_cast<float>(std::max(0.0, hue_change_de00(pred, now) - brightness_pct));
+    float& clean = object.quarter_clean_de00[q];
+    if (young) clean = std::max(clean, reading);
+    const float beyond = std::max(0.f, reading - clean);
+    if (!(beyond <= largest)) largest = beyond;
+  }
+  return largest;
 }
 
 
@@ -350,7 +394,11 @@ ObjectSample DriftTracker::update_object(const FramePair& pair, ObjectTrack& obj
     const double full_colour = sample.color_de00 / params_.colour_unit_de00;
     const double colour = object.kind == ObjectKind::moving ? std::min(full_colour, params_.moving_colour_cap)
                                                             : full_colour;
-    sample.drift = static_cast<float>(std::max({colour, own_colour,
+    if (object.kind == ObjectKind::scene) sample.quarter_colour_de00 = read_quarters(pair, object, s);
+    const double quarter_colour = std::isfinite(sample.quarter_colour_de00)
+                                      ? sample.quarter_colour_de00 / params_.own_colour_unit_de00
+                                      : 0.0;
+    sample.drift = static_cast<float>(std::max({colour, own_colour, quarter_colour,
                                                 sample.structure / params_.structure_unit, size}));
     if (breaks_continuity(object, sample)) {
       object.unreliable = true;

@@ -202,6 +202,110 @@ TEST(DriftInjected, PatchWalkingOutOfTheFrameEndsAsLeftFrame) {
   EXPECT_LT(o.peak_drift, kSegmentEnter);
 }
 
+// A part of the static scene, fixed on the background, blended into the
+// frame with sub-pixel edges as the camera pans (`mask` in [0,1]).
+cv::Mat scene_region_mask(const DriftScene& scene, const cv::Rect2f& at_frame0, int frame) {
+  const cv::Point2f cam = scene.camera_px_per_frame * static_cast<float>(frame);
+  cv::Mat ones(cv::Size(cvRound(at_frame0.width), cvRound(at_frame0.height)), CV_32F, cv::Scalar(1));
+  cv::Matx23d place(1, 0, at_frame0.x - cam.x, 0, 1, at_frame0.y - cam.y);
+  cv::Mat mask;
+  cv::warpAffine(ones, mask, place, scene.size, cv::INTER_LINEAR, cv::BORDER_CONSTANT);
+  return mask;
+}
+
+void blend(cv::Mat& frame, const cv::Mat& changed, const cv::Mat& mask) {
+  for (int y = 0; y < frame.rows; ++y) {
+    for (int x = 0; x < frame.cols; ++x) {
+      const float a = mask.at<float>(y, x);
+      if (a <= 0) continue;
+      cv::Vec3b& dst = frame.at<cv::Vec3b>(y, x);
+      const cv::Vec3b src = changed.at<cv::Vec3b>(y, x);
+      for (int k = 0; k < 3; ++k) dst[k] = cv::saturate_cast<uint8_t>(a * src[k] + (1 - a) * dst[k]);
+    }
+  }
+}
+
+// The scene cell (static background) whose first box holds most of `where`.
+const TrackedObject* scene_cell_at(const Report& r, const cv::Rect2f& where) {
+  const TrackedObject* best = nullptr;
+  double best_area = 0;
+  for (const auto& o : r.objects) {
+    if (o.kind != TrackedKind::scene || o.samples.empty() || o.first_frame != 0) continue;
+    const auto& b = o.samples.front().box_px;
+    const double area = (cv::Rect2d(b.x, b.y, b.width, b.height) & cv::Rect2d(where)).area();
+    if (area > best_area) best_area = area, best = &o;
+  }
+  return best;
+}
+
+// A 64 x 64 px part of the static background (2.7% of the 480 x 320 frame,
+// in one quarter of a scene cell) turns its hue by 40 degrees over frames
+// 12-36 while the camera pans: what a generated clip does to a wall or a
+// sky, and what `clipwarden inject` does to a region of static background.
+// The whole cell's mean colour dilutes it (measured 2026-12-05: ΔE00 1.3 of
+// the cell for 7.5 injected, the CIEDE2000 between the region's mean colours
+// before and after); the cell's quarter must read it as own colour (unit
+// 10), within 0.6-1.4 of the injected (measured: drift 0.90, i.e. 9.0 of
+// the quarter's followed points), with a drift segment from the ramp's
+// start (measured: frame 15).
+TEST(DriftInjected, RecolourOfAQuarterOfASceneCellIsRead) {
+  Scene s = base_scene();
+  REQUIRE_SCENE(s);
+  const cv::Rect2f region(328, 176, 64, 64);
+  s.scene.frame_filter = [&s, region](int frame, cv::Mat& bgr) {
+    const double degrees = 40 * ramp(frame, 12, 36);
+    if (degrees == 0) return;
+    blend(bgr, rotate_hue(bgr, degrees), scene_region_mask(s.scene, region, frame));
+  };
+  const std::vector<cv::Mat> frames = render_scene(s.scene);
+  const cv::Mat before = frames[0](cv::Rect(region)).clone();
+  const double injected = mean_colour_de00(before, rotate_hue(before, 40));
+  const Report r = run_drift_on_frames(frames, s.fps);
+  const TrackedObject* cell = scene_cell_at(r, region);
+  ASSERT_NE(cell, nullptr) << "no scene cell on the recoloured region";
+  EXPECT_LT(object_value(*cell, &TrackedSample::color_de00, 44), 0.5 * injected)
+      << "the whole cell dilutes the recolour";
+  EXPECT_GE(cell->peak_drift, 0.6 * injected / 10);
+  EXPECT_LE(cell->peak_drift, 1.4 * injected / 10);
+  ASSERT_FALSE(cell->drift_segments.empty());
+  EXPECT_NEAR(cell->drift_segments[0].start_frame, 12, 8);
+}
+
+// A warm light passes over the static background: a disc (Gaussian,
+// sigma 32 px) that multiplies linear light by up to 1.8 in red, 1.5 in
+// green and 1.1 in blue (IEC 61966-2-1 sRGB transfer), moving across the
+// lower right cell from frame 8 to 40, as a lamp carried past a wall or a
+// glint sweeping over water. Its hue changes with its brightness; it is
+// light, not a recolour, and must open no drift segment on the scene.
+// Measured 2026-12-05: the scene cells peak at 0.26; with a quarter's
+// brightness change not counted against its own colour, 0.66.
+TEST(DriftInjected, WarmLightPassingOverTheSceneIsNotDrift) {
+  Scene s = base_scene();
+  REQUIRE_SCENE(s);
+  s.scene.frame_filter = [](int frame, cv::Mat& bgr) {
+    const double k = ramp(frame, 8, 40);
+    if (k <= 0 || k >= 1) return;
+    const cv::Point2d centre(300 + 170 * k, 230);
+    const double peak[3] = {0.1, 0.5, 0.8};  // B, G, R
+    for (int y = 0; y < bgr.rows; ++y) {
+      for (int x = 0; x < bgr.cols; ++x) {
+        const double d2 = (x - centre.x) * (x - centre.x) + (y - centre.y) * (y - centre.y);
+        const double w = std::exp(-d2 / (2 * 32.0 * 32.0));
+        if (w < 1e-3) continue;
+        cv::Vec3b& p = bgr.at<cv::Vec3b>(y, x);
+        for (int c = 0; c < 3; ++c) {
+          const double lin = color::srgb_to_linear(p[c] / 255.0) * (1 + peak[c] * w);
+          p[c] = cv::saturate_cast<uint8_t>(color::linear_to_srgb(std::min(1.0, lin)) * 255.0 + 0.5);
+        }
+      }
+    }
+  };
+  const Report r = run_drift_on_frames(render_scene(s.scene), s.fps);
+  for (const auto& o : r.objects) {
+    if (o.kind == TrackedKind::scene) EXPECT_LT(o.peak_drift, kSegmentEnter) << "object " << o.id;
+  }
+}
+
 // The same injected hue ramp rendered at 8 and 24 fps (same motion per
 // second, same timing in seconds) reads the same colour drift and the same
 // onset in seconds: drift compares a look with the reference, and its
