@@ -213,18 +213,6 @@ cv::Mat scene_region_mask(const DriftScene& scene, const cv::Rect2f& at_frame0, 
   return mask;
 }
 
-void blend(cv::Mat& frame, const cv::Mat& changed, const cv::Mat& mask) {
-  for (int y = 0; y < frame.rows; ++y) {
-    for (int x = 0; x < frame.cols; ++x) {
-      const float a = mask.at<float>(y, x);
-      if (a <= 0) continue;
-      cv::Vec3b& dst = frame.at<cv::Vec3b>(y, x);
-      const cv::Vec3b src = changed.at<cv::Vec3b>(y, x);
-      for (int k = 0; k < 3; ++k) dst[k] = cv::saturate_cast<uint8_t>(a * src[k] + (1 - a) * dst[k]);
-    }
-  }
-}
-
 // The scene cell (static background) whose first box holds most of `where`.
 const TrackedObject* scene_cell_at(const Report& r, const cv::Rect2f& where) {
   const TrackedObject* best = nullptr;

@@ -71,6 +71,18 @@ double mean_colour_de00(const cv::Mat& a, const cv::Mat& b) {
   return color::ciede2000(mean_lab(a), mean_lab(b));
 }
 
+void blend(cv::Mat& frame, const cv::Mat& over, const cv::Mat& alpha) {
+  for (int y = 0; y < frame.rows; ++y) {
+    for (int x = 0; x < frame.cols; ++x) {
+      const float a = alpha.at<float>(y, x);
+      if (a <= 0) continue;
+      cv::Vec3b& dst = frame.at<cv::Vec3b>(y, x);
+      const cv::Vec3b src = over.at<cv::Vec3b>(y, x);
+      for (int k = 0; k < 3; ++k) dst[k] = cv::saturate_cast<uint8_t>(a * src[k] + (1 - a) * dst[k]);
+    }
+  }
+}
+
 std::vector<cv::Mat> render_scene(const DriftScene& scene) {
   std::vector<cv::Mat> frames;
   for (int f = 0; f < scene.frames; ++f) {
@@ -95,15 +107,7 @@ std::vector<cv::Mat> render_scene(const DriftScene& scene) {
     cv::warpAffine(patch, warped, place, scene.size, cv::INTER_LINEAR, cv::BORDER_CONSTANT);
     cv::Mat ones(patch.size(), CV_32F, cv::Scalar(static_cast<float>(state.alpha)));
     cv::warpAffine(ones, mask, place, scene.size, cv::INTER_LINEAR, cv::BORDER_CONSTANT);
-    for (int y = 0; y < frame.rows; ++y) {
-      for (int x = 0; x < frame.cols; ++x) {
-        const float a = mask.at<float>(y, x);
-        if (a <= 0) continue;
-        cv::Vec3b& dst = frame.at<cv::Vec3b>(y, x);
-        const cv::Vec3b src = warped.at<cv::Vec3b>(y, x);
-        for (int k = 0; k < 3; ++k) dst[k] = cv::saturate_cast<uint8_t>(a * src[k] + (1 - a) * dst[k]);
-      }
-    }
+    blend(frame, warped, mask);
     if (scene.frame_filter) scene.frame_filter(f, frame);
     frames.push_back(frame);
   }

@@ -33,6 +33,10 @@ struct DriftScene {
 
 std::vector<cv::Mat> render_scene(const DriftScene& scene);
 
+// frame = alpha * over + (1 - alpha) * frame, per pixel (alpha: CV_32F in
+// [0,1], the frame's size).
+void blend(cv::Mat& frame, const cv::Mat& over, const cv::Mat& alpha);
+
 // Rotates the CIELAB hue of every pixel by `degrees` (L* and chroma kept),
 // back to 8-bit sRGB with clamping.
 cv::Mat rotate_hue(const cv::Mat& bgr, double degrees);
