@@ -5,6 +5,8 @@
 #include <cstdlib>
 #include <limits>
 
+#include <opencv2/imgproc.hpp>
+
 namespace clipwarden {
 
 double masked_squared_rgb_error(const cv::Mat& a, const cv::Mat& b, const cv::Mat& mask) {
@@ -26,6 +28,13 @@ double masked_squared_rgb_error(const cv::Mat& a, const cv::Mat& b, const cv::Ma
   }
   if (count == 0) return std::numeric_limits<double>::quiet_NaN();
   return static_cast<double>(sum) / (255.0 * 255.0) / static_cast<double>(count);
+}
+
+double smoothed_squared_rgb_error(const cv::Mat& a, const cv::Mat& b, const cv::Mat& mask, double sigma) {
+  cv::Mat a_smooth, b_smooth;
+  cv::GaussianBlur(a, a_smooth, cv::Size(0, 0), sigma);
+  cv::GaussianBlur(b, b_smooth, cv::Size(0, 0), sigma);
+  return masked_squared_rgb_error(a_smooth, b_smooth, mask);
 }
 
 double mean_absolute_difference(const cv::Mat& a, const cv::Mat& b) {

@@ -10,6 +10,22 @@ namespace clipwarden {
 // empty. (The warping error of Lai et al. 2018.)
 double masked_squared_rgb_error(const cv::Mat& a_bgr8, const cv::Mat& b_bgr8, const cv::Mat& mask);
 
+// masked_squared_rgb_error of the two images after a Gaussian blur of
+// `sigma` px (OpenCV's GaussianBlur, kernel size from sigma) of each: a
+// pattern at the pixel scale, such as a GIF palette's dithering that is
+// drawn anew in every picture, is smoothed away (a checkerboard of 2 px
+// squares keeps 0.007 of its amplitude per axis at sigma 2), while a change
+// over a region larger than the kernel survives whole.
+double smoothed_squared_rgb_error(const cv::Mat& a_bgr8, const cv::Mat& b_bgr8, const cv::Mat& mask,
+                                  double sigma);
+
+// The blur of warp_error_smooth, in px at the working size: one pixel of a
+// 256 px GIF shown at the default 512 px. Measured 2026-12-05 on the
+// corpus (docs/accuracy.md, "A reject that survives a small blur"): at 1 px
+// a dithered fireworks clip kept 0.29 of its warping error, at 2 px 0.13,
+// camera footage 0.26-0.50.
+inline constexpr double kWarpSmoothSigmaPx = 2.0;
+
 // Mean absolute difference of two CV_8UC1 images, in [0,1].
 double mean_absolute_difference(const cv::Mat& a8, const cv::Mat& b8);
 

@@ -14,14 +14,14 @@
 
 namespace clipwarden {
 
-enum class NaturalMeasure { warp_error, warp_error_long, occluded_pct };
-inline constexpr int kNaturalMeasures = 3;
+enum class NaturalMeasure { warp_error, warp_error_long, occluded_pct, warp_error_smooth };
+inline constexpr int kNaturalMeasures = 4;
 
 // One bin: pairs whose motion_px lies in [motion_from_px, motion_to_px).
 struct NaturalBin {
   double motion_from_px;
   double motion_to_px;
-  double level[kNaturalMeasures];  // 99th percentile of each measure on clean camera pairs
+  double level[kNaturalMeasures];  // 99th percentile of each measure on clean camera pairs, in enum order
   int pairs;                       // clean pairs the level was derived from
 };
 

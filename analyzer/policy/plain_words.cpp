@@ -72,6 +72,8 @@ std::string plain_words(const Report& r, const std::string& metric, int64_t firs
     return "the camera jolts" + std::string(count > 1 ? " " + times(count) : "");
   if (metric == "warp_error" || metric == "warp_error_ratio")
     return "the picture changes more than its motion explains, for " + over + again;
+  if (metric == "warp_error_smooth" || metric == "warp_error_smooth_ratio")
+    return "whole regions change more than the motion explains, not just a fine pattern, for " + over + again;
   if (metric == "warp_error_long" || metric == "warp_error_long_ratio")
     return "the picture slowly turns into something else over " + over + again;
   if (metric == "occluded_pct")

@@ -8,7 +8,7 @@ namespace clipwarden::calibration {
 namespace {
 
 const char* const kMeasureSeries[kNaturalMeasures] = {"warp_error", "warp_error_long",
-                                                      "occluded_pct"};
+                                                      "occluded_pct", "warp_error_smooth"};
 
 struct Weighted {
   double value;
@@ -95,9 +95,11 @@ std::string natural_levels_cpp(const std::vector<NaturalBin>& bins) {
 }
 
 std::string natural_levels_markdown(const std::vector<NaturalBin>& bins) {
-  std::string out =
-      "| motion (px/frame) | pairs | warp_error p99 | warp_error_long p99 | occluded_pct p99 "
-      "|\n|---|---|---|---|---|\n";
+  std::string out = "| motion (px/frame) | pairs";
+  for (const char* measure : kMeasureSeries) out += std::string(" | ") + measure + " p99";
+  out += " |\n|---|---";
+  for (int k = 0; k < kNaturalMeasures; ++k) out += "|---";
+  out += "|\n";
   for (const auto& b : bins) {
     out += "| " + number(b.motion_from_px) + "–" +
            (std::isfinite(b.motion_to_px) ? number(b.motion_to_px) : "") + " | " +
