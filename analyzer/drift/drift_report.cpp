@@ -96,12 +96,24 @@ std::vector<DriftStretch> object_segments(const ObjectTrack& object, const Objec
   for (const auto& s : merged) {
     if (h[s.end].frame - h[s.start].frame + 1 < rule.min_frames) continue;
     out.push_back({h[s.start].frame, h[s.end].frame, rounded(h[s.start].t_s, 1e-4),
-                   rounded(h[s.end].t_s, 1e-4), rounded(h[s.peak].drift, 1e-4), h[s.peak].frame});
+                   rounded(h[s.end].t_s, 1e-4), rounded(h[s.peak].drift, 1e-4), h[s.peak].frame,
+                   report_name(h[s.peak].aspect)});
   }
   return out;
 }
 
 }  // namespace
+
+const char* report_name(DriftAspect aspect) {
+  switch (aspect) {
+    case DriftAspect::colour: return "color";
+    case DriftAspect::own_colour: return "own_color";
+    case DriftAspect::structure: return "structure";
+    case DriftAspect::size: return "size";
+    case DriftAspect::none: break;
+  }
+  return "";
+}
 
 double theil_sen_slope(const std::vector<double>& t, const std::vector<double>& y) {
   std::vector<double> slopes;

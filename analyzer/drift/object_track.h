@@ -48,6 +48,13 @@ using ObjectKind = TrackedKind;
 
 inline constexpr float kNotMeasured = std::numeric_limits<float>::quiet_NaN();
 
+// The reading behind a drift value (the largest of the four in drift units).
+enum class DriftAspect : uint8_t { none, colour, own_colour, structure, size };
+
+// The report's name of an aspect ("color", "own_color", "structure", "size"),
+// spelled as the report's per-look columns are; "" for none.
+const char* report_name(DriftAspect aspect);
+
 // One frame of an object's life. Drift values are NaN when the object was
 // not measurable (occluded).
 struct ObjectSample {
@@ -67,6 +74,9 @@ struct ObjectSample {
   // beyond that quarter's clean level (see read_quarters, object_update.cpp).
   float quarter_colour_de00 = kNotMeasured;
   float visible_fraction = 0;  // share of its reference points seen now
+  // Which of the readings above gave `drift` (the largest in drift units):
+  // the report says whether an object changed colour, markings or size.
+  DriftAspect aspect = DriftAspect::none;
   cv::Vec3f colour_now, colour_ref;  // mean CIELAB (L*, a*, b*) now and of the reference
 };
 

@@ -398,8 +398,16 @@ ObjectSample DriftTracker::update_object(const FramePair& pair, ObjectTrack& obj
     const double quarter_colour = std::isfinite(sample.quarter_colour_de00)
                                       ? sample.quarter_colour_de00 / params_.own_colour_unit_de00
                                       : 0.0;
-    sample.drift = static_cast<float>(std::max({colour, own_colour, quarter_colour,
-                                                sample.structure / params_.structure_unit, size}));
+    const double structure = sample.structure / params_.structure_unit;
+    sample.drift = static_cast<float>(std::max({colour, own_colour, quarter_colour, structure, size}));
+    // A quarter's reading is its own colour too (its brightness change taken
+    // out), on a part of the cell.
+    sample.aspect = sample.drift == static_cast<float>(own_colour) ||
+                            sample.drift == static_cast<float>(quarter_colour)
+                        ? DriftAspect::own_colour
+                    : sample.drift == static_cast<float>(colour)    ? DriftAspect::colour
+                    : sample.drift == static_cast<float>(structure) ? DriftAspect::structure
+                                                                    : DriftAspect::size;
     if (breaks_continuity(object, sample)) {
       object.unreliable = true;
       object.unreliable_since_s = sample.t_s;

@@ -1,7 +1,9 @@
 #include "analyzer/policy/plain_words.h"
 
 #include <algorithm>
+#include <cmath>
 #include <cstdio>
+#include <cstdlib>
 
 namespace clipwarden {
 namespace {
@@ -40,6 +42,48 @@ std::string local_pulse_words(const Report& r) {
   const int cols = d["grid"][0].get<int>(), rows = d["grid"][1].get<int>();
   return "a region at " + grid_place(b.value("row", 0), b.value("col", 0), rows, cols) +
          " brightens and darkens " + times(b.value("pulses", 1));
+}
+
+// The followed object whose drift stretch overlapping frames first..last
+// peaked highest, as "an object at the lower right (7% of the frame)
+// changes colour" (a scene cell: "the background at ..."). The aspect is
+// the reading that departed most at the stretch's peak; the place is the
+// object's box at the look nearest that peak.
+std::string drift_words(const Report& r, int64_t first, int64_t last) {
+  const TrackedObject* object = nullptr;
+  const DriftStretch* stretch = nullptr;
+  for (const auto& o : r.objects)
+    for (const auto& s : o.drift_segments)
+      if (s.end_frame >= first && s.start_frame <= last && (!stretch || s.peak > stretch->peak))
+        object = &o, stretch = &s;
+  const std::string generic = "an object's colour, markings or shape change as it moves";
+  if (!stretch) return generic;
+  const TrackedSample* look = nullptr;
+  for (const auto& s : object->samples) {
+    if (!std::isfinite(s.box_frac.x) || !std::isfinite(s.box_frac.width)) continue;
+    if (!look || std::llabs(s.frame - stretch->peak_frame) < std::llabs(look->frame - stretch->peak_frame))
+      look = &s;
+  }
+  std::string who = object->kind == TrackedKind::scene ? "the background" : "an object";
+  if (look) {
+    const auto& b = look->box_frac;
+    const int row = std::clamp(static_cast<int>(3 * (b.y + b.height / 2)), 0, 2);
+    const int col = std::clamp(static_cast<int>(3 * (b.x + b.width / 2)), 0, 2);
+    char area[48];
+    std::snprintf(area, sizeof area, " (%.0f%% of the frame)",
+                  std::max(1.0, std::round(100 * b.width * b.height)));
+    who += " at " + grid_place(row, col, 3, 3) + area;
+  }
+  const std::string& a = stretch->aspect;
+  std::string what = " changes colour, markings or shape";
+  if (a == "color" || a == "own_color") what = " changes colour";
+  if (a == "structure") what = " changes its markings or texture";
+  if (a == "size")
+    what = !look || !std::isfinite(look->size_window_pct) ? " changes size"
+           : look->size_window_pct > 0                    ? " grows"
+                                                          : " shrinks";
+  const bool gone = object->vanished && object->last_frame >= first && object->last_frame <= last + 1;
+  return who + what + (gone ? " and vanishes" : "");
 }
 
 }  // namespace
@@ -81,8 +125,7 @@ std::string plain_words(const Report& r, const std::string& metric, int64_t firs
   if (metric == "flicker") return "the whole picture brightens and darkens over " + over + again;
   if (metric == "flicker_local") return local_pulse_words(r) + " in " + over;
   if (metric == "boiling") return "a texture is re-drawn every frame for " + over + again;
-  if (metric == "drift")
-    return "an object's colour, markings or shape change as it moves, over " + over;
+  if (metric == "drift") return drift_words(r, first, last) + ", over " + over;
   if (metric == "flash") return "the picture flashes";
   return "";
 }

@@ -135,6 +135,11 @@ struct DriftStretch {
   double end_s = kUndefined;
   double peak = kUndefined;
   int64_t peak_frame = 0;
+  // Which reading departed most at the peak: "color" (CIEDE2000 of the mean
+  // colour), "own_color" (the same with the object's brightness change taken
+  // out), "structure" (markings and texture) or "size"; empty when unknown
+  // (reports written before it was recorded).
+  std::string aspect;
 };
 
 // What was followed: a region that moves against the camera, or a cell of

@@ -67,7 +67,8 @@ json tracked_object_to_json(const TrackedObject& o) {
                         {"start_s", number_or_null(s.start_s)},
                         {"end_s", number_or_null(s.end_s)},
                         {"peak", number_or_null(s.peak)},
-                        {"peak_frame", s.peak_frame}});
+                        {"peak_frame", s.peak_frame},
+                        {"aspect", s.aspect}});
   json out = {{"id", o.id},
               {"first_frame", o.first_frame},
               {"last_frame", o.last_frame},
@@ -138,6 +139,13 @@ TrackedObject tracked_object_from_json(const json& entry, const std::string& p) 
       o.drift_segments.push_back({whole_int64(s, "start_frame", sp), whole_int64(s, "end_frame", sp),
                                   num(s, "start_s", sp), num(s, "end_s", sp), num(s, "peak", sp),
                                   whole_int64(s, "peak_frame", sp)});
+      if (s.contains("aspect")) {
+        std::string aspect = str(s, "aspect", sp);
+        if (!aspect.empty() && aspect != "color" && aspect != "own_color" && aspect != "structure" &&
+            aspect != "size")
+          throw BadKey{sp + "aspect", "is not color, own_color, structure or size"};
+        o.drift_segments.back().aspect = std::move(aspect);
+      }
     }
   }
   return o;

@@ -32,3 +32,36 @@ TEST(PlainWords, LocalPulseNamesWhereAndHowOften) {
   EXPECT_EQ(plain_words(r, "flicker_local", 10, 21, 1),
             "a region at the lower left brightens and darkens 4 times in 1.2 s");
 }
+
+// A drift reason names the object, where it is and what changed: the
+// stretch that peaked highest within the reason's frames, its aspect, and
+// the box of the look nearest its peak (centre (0.8, 0.8): the lower right
+// third both ways; 0.2 x 0.3 of the frame: 6%).
+TEST(PlainWords, DriftNamesTheObjectItsPlaceAndWhatChanged) {
+  Report r;
+  for (int i = 0; i < 40; ++i) r.frame_times_s.push_back(i / 10.0);
+  TrackedObject quiet, walker;
+  quiet.kind = TrackedKind::scene;
+  quiet.drift_segments = {{2, 30, 0.2, 3.0, 0.6, 12, "color"}};
+  walker.samples.resize(2);
+  walker.samples[0].frame = 5;
+  walker.samples[0].box_frac = {0.1, 0.1, 0.2, 0.3};
+  walker.samples[1].frame = 20;
+  walker.samples[1].box_frac = {0.7, 0.65, 0.2, 0.3};
+  walker.drift_segments = {{10, 29, 1.0, 2.9, 1.4, 19, "structure"}};
+  r.objects = {quiet, walker};
+  EXPECT_EQ(plain_words(r, "drift", 10, 29, 1),
+            "an object at the lower right (6% of the frame) changes its markings or texture, over 2.0 s");
+  // Outside the walker's stretch only the scene cell drifts; it has no
+  // looks with a box, so no place is named.
+  EXPECT_EQ(plain_words(r, "drift", 2, 8, 1), "the background changes colour, over 0.7 s");
+  // Size: the sign of the windowed size change at the look says which way.
+  r.objects[1].drift_segments[0].aspect = "size";
+  r.objects[1].samples[1].size_window_pct = -31;
+  EXPECT_EQ(plain_words(r, "drift", 10, 29, 1),
+            "an object at the lower right (6% of the frame) shrinks, over 2.0 s");
+  // No followed object (a report written before objects were kept).
+  r.objects.clear();
+  EXPECT_EQ(plain_words(r, "drift", 10, 29, 1),
+            "an object's colour, markings or shape change as it moves, over 2.0 s");
+}

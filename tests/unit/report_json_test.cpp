@@ -105,7 +105,7 @@ Report full_report() {
   o.peak_frame = 2;
   o.drift_rate_per_s = 3;
   o.color_de00_rate_per_s = 7;
-  o.drift_segments = {{1, 2, 0.5, 1, 1.5, 2}};
+  o.drift_segments = {{1, 2, 0.5, 1, 1.5, 2, "own_color"}};
   r.objects = {o};
   r.verdict = {Verdict::reject, {"flicker segment peak 0.5 >= reject 0.1 (frame 0, 0.00 s)"}};
   r.notes = {"a note"};
@@ -143,7 +143,8 @@ const char* kFullReportJson = R"json({
     "drift": [0, 1.5], "color_de00": [0, 3.5], "own_color_de00": [0, 2.5], "structure": [0, 0.25], "size_pct": [0, -12.5],
     "size_window_pct": [0, -6.25], "visible_pct": [100, 50], "peak_drift": 1.5, "peak_frame": 2,
     "drift_rate_per_s": 3, "color_de00_rate_per_s": 7,
-    "drift_segments": [{"start_frame": 1, "end_frame": 2, "start_s": 0.5, "end_s": 1, "peak": 1.5, "peak_frame": 2}]}],
+    "drift_segments": [{"start_frame": 1, "end_frame": 2, "start_s": 0.5, "end_s": 1, "peak": 1.5, "peak_frame": 2,
+                        "aspect": "own_color"}]}],
   "verdict": {"status": "reject", "reasons": ["flicker segment peak 0.5 >= reject 0.1 (frame 0, 0.00 s)"]},
   "notes": ["a note"]
 })json";
