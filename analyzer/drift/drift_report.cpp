@@ -108,6 +108,7 @@ const char* report_name(DriftAspect aspect) {
   switch (aspect) {
     case DriftAspect::colour: return "color";
     case DriftAspect::own_colour: return "own_color";
+    case DriftAspect::quarter_colour: return "quarter_color";
     case DriftAspect::structure: return "structure";
     case DriftAspect::size: return "size";
     case DriftAspect::none: break;

@@ -49,9 +49,10 @@ using ObjectKind = TrackedKind;
 inline constexpr float kNotMeasured = std::numeric_limits<float>::quiet_NaN();
 
 // The reading behind a drift value (the largest of the four in drift units).
-enum class DriftAspect : uint8_t { none, colour, own_colour, structure, size };
+enum class DriftAspect : uint8_t { none, colour, own_colour, quarter_colour, structure, size };
 
-// The report's name of an aspect ("color", "own_color", "structure", "size"),
+// The report's name of an aspect ("color", "own_color", "quarter_color",
+// "structure", "size"),
 // spelled as the report's per-look columns are; "" for none.
 const char* report_name(DriftAspect aspect);
 

@@ -400,11 +400,8 @@ ObjectSample DriftTracker::update_object(const FramePair& pair, ObjectTrack& obj
                                       : 0.0;
     const double structure = sample.structure / params_.structure_unit;
     sample.drift = static_cast<float>(std::max({colour, own_colour, quarter_colour, structure, size}));
-    // A quarter's reading is its own colour too (its brightness change taken
-    // out), on a part of the cell.
-    sample.aspect = sample.drift == static_cast<float>(own_colour) ||
-                            sample.drift == static_cast<float>(quarter_colour)
-                        ? DriftAspect::own_colour
+    sample.aspect = sample.drift == static_cast<float>(own_colour)       ? DriftAspect::own_colour
+                    : sample.drift == static_cast<float>(quarter_colour) ? DriftAspect::quarter_colour
                     : sample.drift == static_cast<float>(colour)    ? DriftAspect::colour
                     : sample.drift == static_cast<float>(structure) ? DriftAspect::structure
                                                                     : DriftAspect::size;

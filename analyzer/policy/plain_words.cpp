@@ -64,7 +64,9 @@ std::string drift_words(const Report& r, int64_t first, int64_t last) {
     if (!look || std::llabs(s.frame - stretch->peak_frame) < std::llabs(look->frame - stretch->peak_frame))
       look = &s;
   }
-  std::string who = object->kind == TrackedKind::scene ? "the background" : "an object";
+  std::string who = object->kind == TrackedKind::moving         ? "an object"
+                    : stretch->aspect == "quarter_color" ? "a part of the background"
+                                                         : "the background";
   if (look) {
     const auto& b = look->box_frac;
     const int row = std::clamp(static_cast<int>(3 * (b.y + b.height / 2)), 0, 2);
@@ -76,7 +78,7 @@ std::string drift_words(const Report& r, int64_t first, int64_t last) {
   }
   const std::string& a = stretch->aspect;
   std::string what = " changes colour, markings or shape";
-  if (a == "color" || a == "own_color") what = " changes colour";
+  if (a == "color" || a == "own_color" || a == "quarter_color") what = " changes colour";
   if (a == "structure") what = " changes its markings or texture";
   if (a == "size")
     what = !look || !std::isfinite(look->size_window_pct) ? " changes size"

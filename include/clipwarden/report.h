@@ -137,7 +137,8 @@ struct DriftStretch {
   int64_t peak_frame = 0;
   // Which reading departed most at the peak: "color" (CIEDE2000 of the mean
   // colour), "own_color" (the same with the object's brightness change taken
-  // out), "structure" (markings and texture) or "size"; empty when unknown
+  // out), "quarter_color" (the same on a quarter of a scene cell), "structure"
+  // (markings and texture) or "size"; empty when unknown
   // (reports written before it was recorded).
   std::string aspect;
 };

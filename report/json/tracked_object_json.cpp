@@ -141,9 +141,9 @@ TrackedObject tracked_object_from_json(const json& entry, const std::string& p) 
                                   whole_int64(s, "peak_frame", sp)});
       if (s.contains("aspect")) {
         std::string aspect = str(s, "aspect", sp);
-        if (!aspect.empty() && aspect != "color" && aspect != "own_color" && aspect != "structure" &&
-            aspect != "size")
-          throw BadKey{sp + "aspect", "is not color, own_color, structure or size"};
+        if (!aspect.empty() && aspect != "color" && aspect != "own_color" && aspect != "quarter_color" &&
+            aspect != "structure" && aspect != "size")
+          throw BadKey{sp + "aspect", "is not color, own_color, quarter_color, structure or size"};
         o.drift_segments.back().aspect = std::move(aspect);
       }
     }
