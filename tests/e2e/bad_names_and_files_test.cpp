@@ -84,8 +84,10 @@ TEST(BadNamesAndFiles, NameThatIsNotUtf8IsJudgedAndKeptByteForByte) {
 
   // merge reads the escaped queue back without losing a byte.
   const fs::path merged = dir.path() / "merged";
+  // Its exit status reports the verdicts as gate's does (docs/gate.md: 1 when
+  // a clip reached --fail-on), which this test does not judge.
   run = cli({"merge", out.string(), "--out", merged.string()}, dir.path() / "logs" / "merge");
-  ASSERT_EQ(run.exit_code, 0) << run.err;
+  ASSERT_TRUE(run.exit_code == 0 || run.exit_code == 1) << run.outcome() << "\n" << run.err;
   bool found = false;
   for (const auto& line : queue_of(merged)) found = found || get_bytes_field(line, "path") == odd;
   EXPECT_TRUE(found);
