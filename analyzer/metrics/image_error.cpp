@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <cstdint>
 #include <cstdlib>
 #include <limits>
 
@@ -30,11 +31,53 @@ double masked_squared_rgb_error(const cv::Mat& a, const cv::Mat& b, const cv::Ma
   return static_cast<double>(sum) / (255.0 * 255.0) / static_cast<double>(count);
 }
 
+namespace {
+
+// Mean over the mask's pixels (x step, y step) of the squared difference
+// summed over three float channels (8-bit levels), scaled to [0,1]
+// channels as masked_squared_rgb_error.
+double masked_squared_float_rgb(const cv::Mat& d32, const cv::Mat& mask, int step) {
+  double sum = 0;
+  uint64_t count = 0;
+  for (int y = 0; y < d32.rows; ++y) {
+    const float* p = d32.ptr<float>(y);
+    const uint8_t* m = mask.ptr<uint8_t>(y * step);
+    for (int x = 0; x < d32.cols; ++x, p += 3) {
+      if (!m[x * step]) continue;
+      sum += static_cast<double>(p[0] * p[0] + p[1] * p[1] + p[2] * p[2]);
+      ++count;
+    }
+  }
+  if (count == 0) return std::numeric_limits<double>::quiet_NaN();
+  return sum / (255.0 * 255.0) / static_cast<double>(count);
+}
+
+}  // namespace
+
 double smoothed_squared_rgb_error(const cv::Mat& a, const cv::Mat& b, const cv::Mat& mask, double sigma) {
-  cv::Mat a_smooth, b_smooth;
-  cv::GaussianBlur(a, a_smooth, cv::Size(0, 0), sigma);
-  cv::GaussianBlur(b, b_smooth, cv::Size(0, 0), sigma);
-  return masked_squared_rgb_error(a_smooth, b_smooth, mask);
+  CV_Assert(a.type() == CV_8UC3 && b.type() == CV_8UC3 && mask.type() == CV_8UC1);
+  // The blur is linear, so blurring the difference once equals the
+  // difference of the two blurred pictures, at half the cost and without
+  // rounding either to 8 bits.
+  cv::Mat diff, smooth;
+  cv::subtract(a, b, diff, cv::noArray(), CV_32F);
+  // kPyramidSigma: the [1 4 6 4 1]/16 kernel of pyrDown has variance
+  // (4 + 4 + 4 + 4) / 16 = 1 px^2. A blur of sigma >= 1.5 px leaves little
+  // above half the sampling rate, so it is taken as pyrDown's blur, then at
+  // half size the rest (sigma^2 = 1 + (2 s)^2) and the mean over every
+  // second pixel of each row and column: a quarter of the work. Measured
+  // on consecutive unwarped frames of six corpus clips at 512 px against
+  // the full-size blur: median pair within 1%, worst pair 10% lower
+  // (docs/accuracy.md, "The smoothed warping error at half size").
+  constexpr double kPyramidSigma = 1.0;
+  if (sigma < 1.5) {
+    cv::GaussianBlur(diff, smooth, cv::Size(0, 0), sigma);
+    return masked_squared_float_rgb(smooth, mask, 1);
+  }
+  cv::Mat half;
+  cv::pyrDown(diff, half);
+  cv::GaussianBlur(half, smooth, cv::Size(0, 0), std::sqrt(sigma * sigma - kPyramidSigma * kPyramidSigma) / 2);
+  return masked_squared_float_rgb(smooth, mask, 2);
 }
 
 double mean_absolute_difference(const cv::Mat& a, const cv::Mat& b) {

@@ -11,11 +11,11 @@ namespace clipwarden {
 double masked_squared_rgb_error(const cv::Mat& a_bgr8, const cv::Mat& b_bgr8, const cv::Mat& mask);
 
 // masked_squared_rgb_error of the two images after a Gaussian blur of
-// `sigma` px (OpenCV's GaussianBlur, kernel size from sigma) of each: a
-// pattern at the pixel scale, such as a GIF palette's dithering that is
-// drawn anew in every picture, is smoothed away (a checkerboard of 2 px
-// squares keeps 0.007 of its amplitude per axis at sigma 2), while a change
-// over a region larger than the kernel survives whole.
+// `sigma` px of each (computed as one blur of their difference, in float;
+// from 1.5 px on, pyrDown's blur and the rest at half size): a pattern at
+// the pixel scale, such as a GIF palette's dithering that is drawn anew in
+// every picture, is smoothed away, while a change over a region larger
+// than the kernel survives whole.
 double smoothed_squared_rgb_error(const cv::Mat& a_bgr8, const cv::Mat& b_bgr8, const cv::Mat& mask,
                                   double sigma);
 
