@@ -11,11 +11,6 @@ namespace {
 
 constexpr double kTimeEpsilon_s = 1e-6;
 
-// Default pulse frequencies: flicker a few times a second (the band where
-// luminance flicker is most visible, common practice); strobe above WCAG's
-// three flashes in any one second.
-double default_hz(DefectClass c) { return c == DefectClass::strobe ? 6.0 : 4.0; }
-
 double mean_luminance(const cv::Mat& bgr) {
   cv::Mat y;
   relative_luminance(bgr, y);
@@ -75,7 +70,7 @@ double ActiveDefect::progress(const FrameContext& ctx) const {
 }
 
 double ActiveDefect::pulse(const FrameContext& ctx) const {
-  const double hz = spec_.hz > 0 ? spec_.hz : default_hz(spec_.cls);
+  const double hz = spec_.hz > 0 ? spec_.hz : default_pulse_hz(spec_.cls);
   if (hz >= ctx.nominal_fps / 2) return (covered_ - 1) % 2 == 0 ? 1.0 : -1.0;  // every other frame
   // Time since the first frame, snapped to the frame grid when it sits on
   // it: containers round timestamps (Matroska to 1 ms), and a phase that is

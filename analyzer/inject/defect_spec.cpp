@@ -279,4 +279,6 @@ Expected<DefectSpec> parse_defect_spec(const std::string& text) {
   return d;
 }
 
+double default_pulse_hz(DefectClass c) { return c == DefectClass::strobe ? 6.0 : 4.0; }
+
 }  // namespace clipwarden::inject

@@ -91,4 +91,10 @@ struct DefectSpec {
 
 Expected<DefectSpec> parse_defect_spec(const std::string& text);
 
+// A pulsing class's rate when the spec gives none: flicker a few times a
+// second (the band where luminance flicker is most visible, common
+// practice); strobe above WCAG's three flashes in any one second. At or
+// above half the frame rate a pulse alternates every other frame.
+double default_pulse_hz(DefectClass c);
+
 }  // namespace clipwarden::inject

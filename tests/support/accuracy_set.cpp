@@ -9,6 +9,7 @@
 
 #include "clipwarden/clip_source.h"
 #include "analyzer/encode/clip_writer.h"
+#include "analyzer/inject/defect_spec.h"
 #include "clipwarden/inject.h"
 #include "support/clips.h"
 
@@ -185,13 +186,26 @@ uint64_t case_seed(uint64_t seed, const std::string& id) {
 
 std::string range_spec(DefectClass cls, StrengthLevel level, int start, const BaseClip& b) {
   const int n = b.frames;
-  const int pulse_len = std::clamp(static_cast<int>(std::lround(b.fps)), 6, n / 4);
+  // About a second of pulsing, at least 6 frames, at most a quarter of the
+  // clip (which wins in a clip of under 24 frames).
+  const int pulse_len = std::min(std::max(static_cast<int>(std::lround(b.fps)), 6), std::max(n / 4, 1));
   switch (cls) {
     case DefectClass::flicker:
     case DefectClass::local_flicker:
     case DefectClass::boiling:
-    case DefectClass::strobe:
       return std::to_string(start) + "-" + std::to_string(start + pulse_len - 1);
+    case DefectClass::strobe: {
+      // A strobe is a hazard, and `flash` is to find it, only with more than
+      // three flashes in one second (WCAG 2.x, 2.3.1). The injector draws at
+      // most one flash per two frames (every other frame when its rate is
+      // at or above half the frame rate), so four flashes need 4 * fps /
+      // min(6 Hz, fps / 2) frames: 8 at 8 fps. A quarter of a 16-frame clip
+      // (4 frames) held two flashes, which no screening should flag.
+      const double flashes_per_s = std::min(inject::default_pulse_hz(DefectClass::strobe), b.fps / 2);
+      const int hazard_len = static_cast<int>(std::ceil(4 * b.fps / flashes_per_s - 1e-9));
+      const int len = std::min(std::max(pulse_len, hazard_len), n - 1 - start);
+      return std::to_string(start) + "-" + std::to_string(start + len - 1);
+    }
     case DefectClass::freeze:
     case DefectClass::drop: {
       const int len = static_cast<int>(inject::strength_for_level(cls, level));
