@@ -37,12 +37,14 @@ struct AppearanceSums {
   OrientationHistogram ref_hist{}, cur_hist{};
   float ref_mass = 0;
   int count = 0;
-  // The same colour sums per quarter (TrackPoint::quarter; scene cells).
+  // The same colour sums per quarter (TrackPoint::quarter), kept for scene
+  // cells only: nothing else is read in quarters.
   double quarter_pred[4][3] = {}, quarter_now[4][3] = {};
   int quarter_count[4] = {};
   // `predicted` and `cur` in CIELAB (converted once per point, by the caller).
-  void add(const TrackPoint& p, const color::Lab& predicted, const color::Lab& cur,
-           const OrientationHistogram& hist);
+  void add_colour(const TrackPoint& p, const color::Lab& predicted, const color::Lab& cur,
+                  bool by_quarter);
+  void add_structure(const TrackPoint& p, const OrientationHistogram& hist);
 };
 
 // An object's gray levels now = gain * reference + offset.
@@ -112,7 +114,14 @@ class DriftTracker {
   ObjectSample update_object(const FramePair& pair, ObjectTrack& object);
   void fit_object_motion(const FramePair& pair, ObjectTrack& object);
   double object_scale(const ObjectTrack& object);
+  // Counts the object's points and sums their colour (all_, interior_);
+  // the indices of the points summed are left in `observed_`.
   void observe_points(const FramePair& pair, ObjectTrack& object, PointCounts& counts);
+  // Sums the gradient-orientation histograms of the observed points into
+  // `sums` (interior points only when `interior_only`), in the order they
+  // were observed. Done only for a look that is read: the histograms are
+  // the largest per-point cost of the serial stage.
+  void sum_structure(const ObjectTrack& object, bool interior_only, AppearanceSums& sums);
   void confirm_support(const FramePair& pair, ObjectTrack& object);
   void decide_state(const FramePair& pair, ObjectTrack& object, const PointCounts& counts);
   bool looks_like_itself(const PointCounts& counts) const;
@@ -156,6 +165,7 @@ class DriftTracker {
   std::vector<uint8_t> inliers_;
   std::vector<float> ratios_, ratios_x_, ratios_y_;  // pair distance ratios: all, along x, along y
   AppearanceSums all_, interior_;
+  std::vector<int> observed_;  // points summed by observe_points, in order
   MotionMasks motion_masks_;
   cv::Mat covered_nodes_;
 };

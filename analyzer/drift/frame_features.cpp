@@ -62,10 +62,20 @@ float FrameFeatures::local_histogram(cv::Point2f p, int radius, int stride, floa
       const float m = mag[x];
       if (m <= 0) continue;
       float pos = ang[x] * kBinsPerRad - shift;
-      pos -= kOrientationBins * std::floor(pos / kOrientationBins);
-      const int lo = static_cast<int>(pos) % kOrientationBins;
+      int lo;
+      float frac;
+      if (pos >= 0 && pos < kOrientationBins) {
+        // Already in range (most samples): the wrap below would subtract 0,
+        // and the integer part is the floor, so this gives the same values
+        // without its division and two floors.
+        lo = static_cast<int>(pos);
+        frac = pos - static_cast<float>(lo);
+      } else {
+        pos -= kOrientationBins * std::floor(pos / kOrientationBins);
+        lo = static_cast<int>(pos) % kOrientationBins;
+        frac = pos - std::floor(pos);
+      }
       const int hi = lo + 1 == kOrientationBins ? 0 : lo + 1;
-      const float frac = pos - std::floor(pos);
       bins[lo] += m * (1.0f - frac);
       bins[hi] += m * frac;
       total += m;

@@ -53,17 +53,21 @@ double hue_change_de00(const color::Lab& ref, const color::Lab& now) {
 
 }  // namespace
 
-void AppearanceSums::add(const TrackPoint& p, const color::Lab& lp, const color::Lab& lc,
-                         const OrientationHistogram& hist) {
+void AppearanceSums::add_colour(const TrackPoint& p, const color::Lab& lp, const color::Lab& lc,
+                                bool by_quarter) {
   pred[0] += lp.l, pred[1] += lp.a, pred[2] += lp.b;
   now[0] += lc.l, now[1] += lc.a, now[2] += lc.b;
-  for (int k = 0; k < kOrientationBins; ++k) ref_hist[k] += p.ref_hist[k], cur_hist[k] += hist[k];
-  ref_mass += p.ref_mass;
   ++count;
+  if (!by_quarter) return;
   const int q = p.quarter & 3;
   quarter_pred[q][0] += lp.l, quarter_pred[q][1] += lp.a, quarter_pred[q][2] += lp.b;
   quarter_now[q][0] += lc.l, quarter_now[q][1] += lc.a, quarter_now[q][2] += lc.b;
   ++quarter_count[q];
+}
+
+void AppearanceSums::add_structure(const TrackPoint& p, const OrientationHistogram& hist) {
+  for (int k = 0; k < kOrientationBins; ++k) ref_hist[k] += p.ref_hist[k], cur_hist[k] += hist[k];
+  ref_mass += p.ref_mass;
 }
 
 // A scene cell averages a recolour of a few percent of the frame with the
@@ -280,12 +284,13 @@ bool DriftTracker::point_present(const TrackPoint& p, const GrayFit& fit) const 
 
 void DriftTracker::observe_points(const FramePair& pair, ObjectTrack& object, PointCounts& counts) {
   const cv::Mat& frame = pair.cur->bgr;
-  const float rotation = static_cast<float>(object.motion.rotation_rad());
   counts = PointCounts{};
+  observed_.clear();
+  const bool by_quarter = object.kind == ObjectKind::scene;
   const GrayFit fit = fit_object_gray(object);
-  OrientationHistogram hist;
   float x0 = 1e9f, y0 = 1e9f, x1 = -1e9f, y1 = -1e9f;
-  for (auto& p : object.points) {
+  for (size_t i = 0; i < object.points.size(); ++i) {
+    TrackPoint& p = object.points[i];
     if (p.state == PointState::occluded) {
       p.pos = object.motion.apply(p.ref_pos);
       if (!inside(frame, p.pos)) p.state = PointState::outside;
@@ -315,16 +320,28 @@ void DriftTracker::observe_points(const FramePair& pair, ObjectTrack& object, Po
     }
     ++counts.tracked;
     p.present ? ++counts.visible : ++counts.absent;
-    cur_features_.local_histogram(p.pos, params_.histogram_radius_px, params_.histogram_stride_px,
-                                  rotation, hist);
-    all_.add(p, predicted, cur, hist);
-    if (p.interior) interior_.add(p, predicted, cur, hist);
+    observed_.push_back(static_cast<int>(i));
+    all_.add_colour(p, predicted, cur, by_quarter);
+    if (p.interior) interior_.add_colour(p, predicted, cur, by_quarter);
   }
   if (x1 >= x0) {
     const float pad = 0.5f * params_.object_step_px;
     counts.box = cv::Rect2f(cv::Point2f(std::max(0.f, x0 - pad), std::max(0.f, y0 - pad)),
                             cv::Point2f(std::min<float>(frame.cols, x1 + pad),
                                         std::min<float>(frame.rows, y1 + pad)));
+  }
+}
+
+void DriftTracker::sum_structure(const ObjectTrack& object, bool interior_only,
+                                 AppearanceSums& sums) {
+  const float rotation = static_cast<float>(object.motion.rotation_rad());
+  OrientationHistogram hist;
+  for (const int i : observed_) {
+    const TrackPoint& p = object.points[static_cast<size_t>(i)];
+    if (interior_only && !p.interior) continue;
+    cur_features_.local_histogram(p.pos, params_.histogram_radius_px, params_.histogram_stride_px,
+                                  rotation, hist);
+    sums.add_structure(p, hist);
   }
 }
 
@@ -339,13 +356,26 @@ ObjectSample DriftTracker::update_object(const FramePair& pair, ObjectTrack& obj
   observe_points(pair, object, counts);
   const int reference_count = static_cast<int>(object.points.size());
   sample.visible_fraction = static_cast<float>(counts.visible) / std::max(1, reference_count);
+  // Interior points see no background in their window; their sums are used
+  // when there are enough.
+  const bool interior_only = interior_.count >= std::max(8, counts.tracked / 3);
+  AppearanceSums& s = interior_only ? interior_ : all_;
+  const bool measurable = counts.tracked >= std::max(3, reference_count / 10) && s.count > 0;
+  // Drift is read only while the object is followed well (`seen_well`).
+  const int inside_count = reference_count - counts.outside;
+  // An object with most of its points already out of the frame is read on
+  // a sliver at the edge, whose windows and histograms are cut by the frame
+  // (a walker leaving the hand-held pool scene read structure 0.65 on its
+  // last fifth, drift 1.09): it needs half of its points in view.
+  const bool mostly_in_view = inside_count * 2 >= reference_count;
+  const bool reads = !object.unreliable && measurable && mostly_in_view &&
+                    seen_well(counts, inside_count) && looks_like_itself(counts);
+  // Before confirm_support, which may drop points (observed_ indexes them).
+  if (reads) sum_structure(object, interior_only, s);
   confirm_support(pair, object);
   sample.box = counts.box;
   ObjectLook look;
-  const AppearanceSums& s = interior_.count >= std::max(8, counts.tracked / 3) ? interior_ : all_;
-  if (counts.tracked >= std::max(3, reference_count / 10) && s.count > 0) {
-    // Interior points see no background in their window; use them when
-    // there are enough.
+  if (reads) {
     look.measured = true;
     const double n = s.count;
     const color::Lab pred{s.pred[0] / n, s.pred[1] / n, s.pred[2] / n};
@@ -361,15 +391,7 @@ ObjectSample DriftTracker::update_object(const FramePair& pair, ObjectTrack& obj
     look.colour_ref = cv::Vec3f(static_cast<float>(pred.l), static_cast<float>(pred.a),
                                 static_cast<float>(pred.b));
   }
-  // Drift is read only while the object is followed well (`seen_well`).
-  const int inside_count = reference_count - counts.outside;
-  // An object with most of its points already out of the frame is read on
-  // a sliver at the edge, whose windows and histograms are cut by the frame
-  // (a walker leaving the hand-held pool scene read structure 0.65 on its
-  // last fifth, drift 1.09): it needs half of its points in view.
-  const bool mostly_in_view = inside_count * 2 >= reference_count;
-  if (!object.unreliable && look.measured && mostly_in_view && seen_well(counts, inside_count) &&
-      looks_like_itself(counts)) {
+  if (reads) {
     sample.color_de00 = static_cast<float>(look.colour_de00);
     sample.own_colour_de00 = static_cast<float>(look.own_colour_de00);
     sample.colour_now = look.colour_now;

@@ -78,6 +78,10 @@ bool fit_similarity(std::span<const cv::Point2f> src, std::span<const cv::Point2
     s.ty = dst[i].y - (s.b * src[i].x + s.a * src[i].y);
     const int count = count_inliers(src, dst, s, inlier_px, nullptr);
     if (count > best_count) best_count = count, best = s;
+    // Only a strictly larger count replaces the best: with every point an
+    // inlier the remaining samples cannot change the fit (a rigid object
+    // or scene cell usually gets there within a few samples).
+    if (best_count == static_cast<int>(n)) break;
   }
   if (best_count < 2) {
     // Degenerate sample set (e.g. all points coincide): translation only.
