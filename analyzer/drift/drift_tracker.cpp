@@ -45,6 +45,12 @@ int DriftTracker::active_count() const {
 
 namespace {
 
+// An ended object is never followed again and the report reads only its
+// history: its points (about 110 bytes each, a hundred or more per object)
+// are let go, so a long clip that follows hundreds of objects in turn does
+// not keep every one's point set to its end.
+void release_points(ObjectTrack& object) { std::vector<TrackPoint>().swap(object.points); }
+
 bool followable(const FramePair& pair) {
   return pair.prev && pair.cur && !pair.cur->bgr.empty() && !pair.flow_forward.empty() &&
          !pair.flow_backward.empty();
@@ -121,6 +127,7 @@ FrameDrift DriftTracker::step(const FramePair& pair) {
     const ObjectSample sample = update_object(pair, object);
     object.history.push_back(sample);
     if (!object.ended) object.last_frame = pair.cur->index;
+    else release_points(object);
     if (std::isfinite(sample.drift) && !(sample.drift <= result.drift)) {
       result.drift = sample.drift;
       result.color_de00 = sample.color_de00;
@@ -141,6 +148,7 @@ void DriftTracker::finish() {
     if (object.ended) continue;
     object.ended = true;
     object.end_reason = "clip_end";
+    release_points(object);
   }
 }
 
@@ -169,6 +177,7 @@ void DriftTracker::end_shot(const FramePair& pair) {
     object.ended = true;
     object.end_reason = "cut";
     object.last_frame = pair.prev->index;
+    release_points(object);
   }
   anchors_.clear();
   shot_active_ = false;

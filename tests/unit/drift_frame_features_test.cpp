@@ -5,6 +5,7 @@
 // by 1/8, magnitude and signed orientation).
 #include <gtest/gtest.h>
 
+#include <cmath>
 #include <cstring>
 
 #include <opencv2/imgproc.hpp>
@@ -74,6 +75,47 @@ TEST(DriftFrameFeatures, ReusedForAnotherSize) {
   whole_plane_gradient(small_gray, magnitude, angle);
   EXPECT_TRUE(same_bits(features.magnitude(), magnitude));
   EXPECT_TRUE(same_bits(features.angle(), angle));
+}
+
+// The local orientation histogram is HOG's soft binning (Dalal & Triggs,
+// CVPR 2005): each gradient votes its magnitude into the two orientation
+// bins nearest its angle, split linearly; here 12 signed bins of 30
+// degrees, angles measured from the object's rotation and wrapped into
+// [0, 360). The reference below computes that definition in double
+// precision from the feature planes; the histogram takes an in-range
+// orientation without the wrap, and a rotation moves orientations below 0
+// and past 360, so both ways are compared.
+TEST(DriftFrameFeatures, LocalHistogramIsSoftBinnedOrientation) {
+  cv::Mat gray, bgr;
+  textured_frame(gray, bgr);
+  FrameFeatures features;
+  features.compute(0, gray, bgr, 2);
+  const cv::Point2f at(61.4f, 30.6f);  // on the bright edge and the ramp
+  const int radius = 5, stride = 2;
+  for (const float rotation : {0.0f, 1.3f, -2.2f, 7.0f}) {
+    double expected[kOrientationBins] = {};
+    double total = 0;
+    const int cx = 61, cy = 31;
+    for (int y = cy - radius; y <= cy + radius; y += stride) {
+      for (int x = cx - radius; x <= cx + radius; x += stride) {
+        const double m = features.magnitude().at<float>(y, x);
+        if (m <= 0) continue;
+        double pos = (features.angle().at<float>(y, x) - rotation) * kOrientationBins / (2 * M_PI);
+        pos = std::fmod(pos, kOrientationBins);
+        if (pos < 0) pos += kOrientationBins;
+        const int lo = static_cast<int>(pos) % kOrientationBins;
+        const double frac = pos - std::floor(pos);
+        expected[lo] += m * (1 - frac);
+        expected[(lo + 1) % kOrientationBins] += m * frac;
+        total += m;
+      }
+    }
+    OrientationHistogram hist;
+    const float mass = features.local_histogram(at, radius, stride, rotation, hist);
+    EXPECT_NEAR(mass, total, 1e-4 * total) << "rotation " << rotation;
+    for (int k = 0; k < kOrientationBins; ++k)
+      EXPECT_NEAR(hist[k], expected[k], 1e-3 + 1e-4 * total) << "bin " << k << ", rotation " << rotation;
+  }
 }
 
 }  // namespace
