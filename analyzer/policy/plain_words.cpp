@@ -114,6 +114,8 @@ std::string plain_words(const Report& r, const std::string& metric, int64_t firs
   if (metric == "cut")
     return "the picture jumps to a different view" +
            std::string(count > 1 ? " " + times(count) : "");
+  if (metric == "jump_cut")
+    return "the picture jumps within the shot, as if frames were cut out" + again;
   if (metric == "jerk" || metric == "jolt")
     return "the camera jolts" + std::string(count > 1 ? " " + times(count) : "");
   if (metric == "warp_error" || metric == "warp_error_ratio")

@@ -138,8 +138,8 @@ TEST(MetricRegistry, EveryInjectableClassIsCaughtByADeclaredColumn) {
   for (inject::DefectClass cls : inject::all_defect_classes())
     EXPECT_FALSE(accuracy::metrics_for(cls).empty()) << inject::to_string(cls);
   // As docs/accuracy.md (Scoring) states the matching: strobe is found by
-  // flash, a splice by cut or warp_error_ratio.
+  // flash, a splice by cut, jump_cut or warp_error_ratio.
   EXPECT_EQ(accuracy::metrics_for(inject::DefectClass::strobe), std::vector<std::string>{"flash"});
   EXPECT_EQ(accuracy::metrics_for(inject::DefectClass::cut),
-            (std::vector<std::string>{"warp_error_ratio", "cut"}));
+            (std::vector<std::string>{"warp_error_ratio", "cut", "jump_cut"}));
 }
