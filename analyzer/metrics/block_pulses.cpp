@@ -250,6 +250,18 @@ std::vector<Pulse> pulses_with_neighbours(const std::vector<Pulse>& pulses, int 
   return kept;
 }
 
+std::vector<Pulse> pulses_within_shots(const std::vector<Pulse>& pulses, const std::vector<bool>& boundaries) {
+  std::vector<Pulse> kept;
+  for (const Pulse& p : pulses) {
+    bool crosses = false;
+    for (int64_t f = std::max<int64_t>(0, p.start_frame);
+         f <= p.end_frame && f < static_cast<int64_t>(boundaries.size()) && !crosses; ++f)
+      crosses = boundaries[static_cast<size_t>(f)];
+    if (!crosses) kept.push_back(p);
+  }
+  return kept;
+}
+
 double recurring_quantile(std::span<const double> values, std::span<const double> times_s,
                           double q, double apart_s) {
   const double quantile_level = quantile(defined_values(values), q);

@@ -112,6 +112,12 @@ struct Pulse {
 // in one block at a time. Order is kept.
 std::vector<Pulse> pulses_with_neighbours(const std::vector<Pulse>& pulses, int cols);
 
+// The pulses that no shot boundary interrupts (`boundaries[f]` true when
+// frame f starts a new shot, analyzer/frame/shot_boundaries.h): a cut
+// replaces a block's content, and the jump of its level there is no light.
+// Order is kept.
+std::vector<Pulse> pulses_within_shots(const std::vector<Pulse>& pulses, const std::vector<bool>& boundaries);
+
 // A pulse is recorded when the swing back is confirmed; while that swing
 // goes on - until it has come as far back as the first swing went, and for
 // at most max_pulse_s after it was confirmed - its amplitude and end frame

@@ -202,6 +202,20 @@ TEST(BlockPulses, OnlyPulsesSharedWithANeighbourAreKept) {
   EXPECT_EQ(kept[1].block, 6);
 }
 
+TEST(BlockPulses, APulseAcrossACutIsDropped) {
+  // A cut at frame 12 (boundaries[12]): the pulse spanning frames 10-14
+  // holds it and goes; those before and after it stay, in order.
+  std::vector<bool> boundaries(30, false);
+  boundaries[12] = true;
+  const std::vector<Pulse> pulses = {{1, 3, 8, 0.1}, {2, 10, 14, 0.3}, {3, 12, 16, 0.2}, {4, 13, 20, 0.1}};
+  const auto kept = pulses_within_shots(pulses, boundaries);
+  ASSERT_EQ(kept.size(), 2u);
+  EXPECT_EQ(kept[0].block, 1);
+  EXPECT_EQ(kept[1].block, 4);
+  // Without a cut series (no boundaries known) every pulse stays.
+  EXPECT_EQ(pulses_within_shots(pulses, {}).size(), pulses.size());
+}
+
 // The clip-level level of recurring pulses. The quantile is numpy.percentile's
 // default (linear) method: for n values sorted, q = 0.95 sits at index
 // 0.95 (n - 1) between its two neighbours.
