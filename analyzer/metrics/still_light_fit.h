@@ -14,8 +14,11 @@
 // block (the edge of a lit region crossing a block is fitted on either
 // side), (u, v) the block's own motion beyond the camera in px per frame,
 // shared by its quarters. The light terms are partialled out of the motion
-// terms quarter by quarter (Frisch-Waugh-Lovell), so the motion estimate does
-// not see a change of gain or offset at all.
+// terms quarter by quarter (Frisch-Waugh-Lovell), so an offset changes the
+// motion estimate not at all; a gain g scales the motion term by (1 + g)
+// (first order: cur = (1 + g) w(x + shift) + a), so a block that brightens
+// by 30% reads 30% more motion (the safe side: it is less often called
+// still) and one that darkens by 25% reads 25% less.
 #pragma once
 
 #include <vector>
