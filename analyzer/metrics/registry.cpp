@@ -18,7 +18,8 @@
   X(jerk)                                \
   X(flicker_local)                       \
   X(boiling)                             \
-  X(drift)
+  X(drift)                               \
+  X(appearance)
 // clang-format on
 
 namespace clipwarden {
