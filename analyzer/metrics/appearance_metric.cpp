@@ -71,27 +71,27 @@ const MetricDescriptor& appearance_descriptor() {
 
 namespace {
 
-constexpr int kCellPx = 32;              // at the working size
-constexpr int kPointStepPx = 4;          // followed points, at the working size
+constexpr int kAppearCellPx = 32;              // at the working size
+constexpr int kAppearPointStepPx = 4;          // followed points, at the working size
 // Two spans k: a thing that shows for a few pictures (a pole that comes and
 // goes in 0.5 s) and one that grows over half a second (hair).
-constexpr double kShortSpan_s = 0.25;
-constexpr double kLongSpan_s = 0.5;
-constexpr int kMaxSpan = 8;              // pictures
-constexpr double kHoldFloor = 3.0;       // grey levels: compression noise of the blurred picture
+constexpr double kAppearShortSpan_s = 0.25;
+constexpr double kAppearLongSpan_s = 0.5;
+constexpr int kAppearMaxSpan = 8;              // pictures
+constexpr double kAppearHoldFloor = 3.0;       // grey levels: compression noise of the blurred picture
 // Grey levels beyond the frame's median cell: a stark change, as an opaque
 // thing of strong contrast replacing its background gives. Measured
 // 2026-12-05 on the corpus (docs/accuracy.md, "Local appearances that
 // stay"): where nothing moved of its own, camera clips changed a cell by
 // at most 82 levels with a score above 3 (a person in a short 8 fps clip),
 // AnimateDiff model03's pole 160, model07's glow 117.
-constexpr double kMinChange = 100.0;
-constexpr double kBlurSigmaPx = 2.0;     // at the working size, as warp_error_smooth
-constexpr double kMinPointShare = 0.5;   // of a cell's points still inside at every step
-constexpr double kMaxOwnMotion_px = 1.5; // per frame at 512 px, near the cell while it changes
+constexpr double kAppearMinChange = 100.0;
+constexpr double kAppearBlurSigmaPx = 2.0;     // at the working size, as warp_error_smooth
+constexpr double kAppearMinPointShare = 0.5;   // of a cell's points still inside at every step
+constexpr double kAppearMaxOwnMotion_px = 1.5; // per frame at 512 px, near the cell while it changes
 
 // What one pair leaves for the in-order stage, at half the working size.
-struct HalfPair {
+struct AppearancePair {
   int64_t index = -1;
   cv::Mat image;  // CV_8UC3, frame t blurred
   cv::Mat back;   // CV_32FC2: t -> t-1
@@ -99,13 +99,13 @@ struct HalfPair {
   std::vector<float> own_motion;  // per cell, px/frame at 512 px: the flow apart from the camera
 };
 
-void halve(const cv::Mat& bgr, cv::Mat& out) {
+void halve_appearance_picture(const cv::Mat& bgr, cv::Mat& out) {
   cv::Mat half;
   cv::resize(bgr, half, cv::Size((bgr.cols + 1) / 2, (bgr.rows + 1) / 2), 0, 0, cv::INTER_AREA);
-  cv::GaussianBlur(half, out, cv::Size(0, 0), kBlurSigmaPx / 2);
+  cv::GaussianBlur(half, out, cv::Size(0, 0), kAppearBlurSigmaPx / 2);
 }
 
-void halve_flow(const cv::Mat& flow, cv::Size size, cv::Mat& out) {
+void halve_appearance_flow(const cv::Mat& flow, cv::Size size, cv::Mat& out) {
   if (flow.empty()) {
     out = cv::Mat::zeros(size, CV_32FC2);
     return;
@@ -116,16 +116,16 @@ void halve_flow(const cv::Mat& flow, cv::Size size, cv::Mat& out) {
 }
 
 // Per cell: sum and count of one comparison's absolute differences.
-struct CellSums {
+struct AppearanceCellSums {
   std::vector<double> sum;
   std::vector<int> count;
   void reset(size_t cells) { sum.assign(cells, 0), count.assign(cells, 0); }
   double mean(size_t cell, int points) const {
-    return count[cell] >= kMinPointShare * points ? sum[cell] / count[cell] : -1;
+    return count[cell] >= kAppearMinPointShare * points ? sum[cell] / count[cell] : -1;
   }
 };
 
-double colour_difference(const cv::Vec3f& a, const cv::Vec3f& b) {
+double appearance_colour_difference(const cv::Vec3f& a, const cv::Vec3f& b) {
   return 255.0 / 3.0 * (std::fabs(a[0] - b[0]) + std::fabs(a[1] - b[1]) + std::fabs(a[2] - b[2]));
 }
 
@@ -135,20 +135,20 @@ class AppearanceMetric final : public Metric {
   bool needs_in_order() const override { return true; }
 
   void measure_pair(const FramePair& pair, std::span<double>) const override {
-    fill(pair, pair.scratch.slot<HalfPair>(this));
+    fill(pair, pair.scratch.slot<AppearancePair>(this));
   }
 
   void observe_in_order(const FramePair& pair, std::span<double>) override {
-    HalfPair& h = pair.scratch.slot<HalfPair>(this);
+    AppearancePair& h = pair.scratch.slot<AppearancePair>(this);
     if (h.index != pair.cur->index) fill(pair, h);
     if (pictures_.empty()) {
-      HalfPair first;
+      AppearancePair first;
       first.index = pair.prev->index;
-      halve(pair.prev->bgr, first.image);
+      halve_appearance_picture(pair.prev->bgr, first.image);
       times_.push_back(pair.prev->t_s);
       pictures_.push_back(std::move(first));
     }
-    HalfPair p;
+    AppearancePair p;
     p.index = h.index;
     h.image.copyTo(p.image);
     h.back.copyTo(p.back);
@@ -159,10 +159,10 @@ class AppearanceMetric final : public Metric {
     if (k_ == 0) {
       const double dt = times_[1] - times_[0];
       auto span = [&](double s, int least) {
-        return dt > 0 ? std::clamp(static_cast<int>(std::lround(s / dt)), least, kMaxSpan) : least;
+        return dt > 0 ? std::clamp(static_cast<int>(std::lround(s / dt)), least, kAppearMaxSpan) : least;
       };
-      short_k_ = span(kShortSpan_s, 2);
-      k_ = std::max(short_k_ + 1, span(kLongSpan_s, 3));
+      short_k_ = span(kAppearShortSpan_s, 2);
+      k_ = std::max(short_k_ + 1, span(kAppearLongSpan_s, 3));
       dt_ = std::max(0.0, dt);
       cols_ = cells_along(pair.cur->bgr.cols);
       rows_ = cells_along(pair.cur->bgr.rows);
@@ -207,11 +207,11 @@ class AppearanceMetric final : public Metric {
     double change, hold, score, moved;
   };
 
-  static void fill(const FramePair& pair, HalfPair& h) {
+  static void fill(const FramePair& pair, AppearancePair& h) {
     h.index = pair.cur->index;
-    halve(pair.cur->bgr, h.image);
-    halve_flow(pair.flow_backward, h.image.size(), h.back);
-    halve_flow(pair.flow_forward, h.image.size(), h.fwd);
+    halve_appearance_picture(pair.cur->bgr, h.image);
+    halve_appearance_flow(pair.flow_backward, h.image.size(), h.back);
+    halve_appearance_flow(pair.flow_forward, h.image.size(), h.fwd);
     const int cols = cells_along(pair.cur->bgr.cols), rows = cells_along(pair.cur->bgr.rows);
     h.own_motion = pair.flow_backward.empty()
                        ? std::vector<float>(static_cast<size_t>(cols) * rows, 0.0f)
@@ -220,14 +220,14 @@ class AppearanceMetric final : public Metric {
     for (float& m : h.own_motion) m *= to_512;
   }
 
-  static int cells_along(int px) { return std::max(1, static_cast<int>(std::lround(static_cast<double>(px) / kCellPx))); }
+  static int cells_along(int px) { return std::max(1, static_cast<int>(std::lround(static_cast<double>(px) / kAppearCellPx))); }
 
   // Judge picture t, k pictures before the newest, over t-2k .. t+k.
   void judge(int k) {
     const size_t t = pictures_.size() - 1 - k;
     const cv::Mat& now = pictures_[t].image;
     const size_t cells = static_cast<size_t>(cols_) * rows_;
-    const int step = kPointStepPx / 2;
+    const int step = kAppearPointStepPx / 2;
     const float cell_w = static_cast<float>(now.cols) / cols_, cell_h = static_cast<float>(now.rows) / rows_;
     const int points_per_cell = static_cast<int>((cell_w / step) * (cell_h / step));
     change_.reset(cells);
@@ -248,7 +248,7 @@ class AppearanceMetric final : public Metric {
         for (int j = 1; j <= k; ++j) {
           p += cv::Point2f(drift::sample_flow(pictures_[t + j].fwd, p));
           if (!inside(p)) break;
-          after_[j - 1].sum[cell] += colour_difference(here, drift::sample_colour(pictures_[t + j].image, p));
+          after_[j - 1].sum[cell] += appearance_colour_difference(here, drift::sample_colour(pictures_[t + j].image, p));
           ++after_[j - 1].count[cell];
         }
         // Backward: what was this scene point k pictures ago, and was it
@@ -261,12 +261,12 @@ class AppearanceMetric final : public Metric {
         }
         if (!in) continue;
         const cv::Vec3f then = drift::sample_colour(pictures_[t - k].image, p);
-        change_.sum[cell] += colour_difference(here, then);
+        change_.sum[cell] += appearance_colour_difference(here, then);
         ++change_.count[cell];
         for (int j = 1; j <= k; ++j) {
           p += cv::Point2f(drift::sample_flow(pictures_[t - k - j + 1].back, p));
           if (!inside(p)) break;
-          before_[j - 1].sum[cell] += colour_difference(then, drift::sample_colour(pictures_[t - k - j].image, p));
+          before_[j - 1].sum[cell] += appearance_colour_difference(then, drift::sample_colour(pictures_[t - k - j].image, p));
           ++before_[j - 1].count[cell];
         }
       }
@@ -300,9 +300,9 @@ class AppearanceMetric final : public Metric {
                 moved = pictures_[i].own_motion[n];
             }
         const double own = change[cell] - ground;
-        if (own < kMinChange) continue;
-        const double score = own / (hold[cell] + kHoldFloor);
-        if (moved > kMaxOwnMotion_px) continue;
+        if (own < kAppearMinChange) continue;
+        const double score = own / (hold[cell] + kAppearHoldFloor);
+        if (moved > kAppearMaxOwnMotion_px) continue;
         frame_best = std::max(frame_best, score);
         best_.push_back({pictures_[t].index, r, c, k, change[cell], hold[cell], score, moved});
       }
@@ -313,13 +313,13 @@ class AppearanceMetric final : public Metric {
     }
   }
 
-  std::vector<HalfPair> pictures_;  // window t-2k .. t+k
+  std::vector<AppearancePair> pictures_;  // window t-2k .. t+k
   std::vector<double> times_;       // the first two pictures' times
   int k_ = 0, short_k_ = 0;  // the long and short span
   double dt_ = 0;
   int cols_ = 0, rows_ = 0;
-  CellSums change_;
-  std::vector<CellSums> after_, before_;
+  AppearanceCellSums change_;
+  std::vector<AppearanceCellSums> after_, before_;
   struct Judged {
     int64_t index;
     int k;
