@@ -18,8 +18,7 @@
   X(jerk)                                \
   X(flicker_local)                       \
   X(boiling)                             \
-  X(drift)                               \
-  X(appearance)
+  X(drift)
 // clang-format on
 
 namespace clipwarden {

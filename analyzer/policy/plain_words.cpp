@@ -88,25 +88,6 @@ std::string drift_words(const Report& r, int64_t first, int64_t last) {
   return who + what + (gone ? " and vanishes" : "");
 }
 
-// The cell of `appearance` that scored highest within frames first..last,
-// as "a region at the left edge changes over 0.3 s and stays changed while
-// its surroundings hold".
-std::string appearance_words(const Report& r, int64_t first, int64_t last) {
-  const std::string generic = "a region changes and stays changed while its surroundings hold";
-  if (!r.summary.details.contains("appearance")) return generic;
-  const auto& d = r.summary.details["appearance"];
-  if (!d.contains("cells") || !d["cells"].is_array() || !d.contains("grid")) return generic;
-  const nlohmann::json* best = nullptr;
-  for (const auto& c : d["cells"]) {
-    const int64_t f = c.value("frame", int64_t{-1});
-    if (f >= first && f <= last && (!best || c.value("score", 0.0) > best->value("score", 0.0))) best = &c;
-  }
-  if (!best) return generic;
-  const int cols = d["grid"][0].get<int>(), rows = d["grid"][1].get<int>();
-  return "a region at " + grid_place(best->value("row", 0), best->value("col", 0), rows, cols) + " changes over " +
-         spoken_duration(best->value("span_s", 0.0)) + " and stays changed while its surroundings hold";
-}
-
 }  // namespace
 
 std::string grid_place(int row, int col, int rows, int cols) {
@@ -150,7 +131,6 @@ std::string plain_words(const Report& r, const std::string& metric, int64_t firs
   if (metric == "boiling") return "a texture is re-drawn every frame for " + over + again;
   if (metric == "drift") return drift_words(r, first, last) + ", over " + over;
   if (metric == "flash") return "the picture flashes";
-  if (metric == "appearance") return appearance_words(r, first, last);
   return "";
 }
 

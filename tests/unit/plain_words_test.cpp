@@ -65,22 +65,3 @@ TEST(PlainWords, DriftNamesTheObjectItsPlaceAndWhatChanged) {
   EXPECT_EQ(plain_words(r, "drift", 10, 29, 1),
             "an object's colour, markings or shape change as it moves, over 2.0 s");
 }
-
-// An appearance reason names the cell that scored highest within the
-// reason's frames and the span it changed over: a 16 x 16 grid, row 3 col 1
-// is the upper left third both ways; outside its frames the other cell, at
-// the lower right.
-TEST(PlainWords, AppearanceNamesWhereARegionChangedAndStayed) {
-  Report r;
-  for (int i = 0; i < 16; ++i) r.frame_times_s.push_back(i / 8.0);
-  r.summary.details["appearance"] = {
-      {"grid", {16, 16}},
-      {"cells",
-       {{{"frame", 5}, {"row", 3}, {"col", 1}, {"span_s", 0.26}, {"score", 5.7}},
-        {{"frame", 13}, {"row", 14}, {"col", 15}, {"span_s", 0.52}, {"score", 3.4}}}}};
-  EXPECT_EQ(plain_words(r, "appearance", 4, 6, 1),
-            "a region at the upper left changes over 0.3 s and stays changed while its surroundings hold");
-  EXPECT_EQ(plain_words(r, "appearance", 12, 14, 1),
-            "a region at the lower right changes over 0.5 s and stays changed while its surroundings hold");
-  EXPECT_EQ(plain_words(r, "appearance", 0, 2, 1), "a region changes and stays changed while its surroundings hold");
-}
