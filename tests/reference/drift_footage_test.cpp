@@ -22,6 +22,7 @@
 #include "support/clips.h"
 #include "support/corpus.h"
 #include "support/drift_pairs.h"
+#include "support/opencv_doc.h"
 
 namespace clipwarden::test {
 namespace {
@@ -81,13 +82,11 @@ TEST(DriftFootage, TreeReadsNoDrift) {
 // clips of the corpus, docs/accuracy.md); the size change must still be
 // measured, and reported under review.
 TEST(DriftFootage, BoxCarriedToAndFromTheCameraReadsNoDriftReview) {
-  const std::string gz = "/usr/share/doc/opencv-doc/opencv4/html/box.mp4.gz";
-  if (!std::filesystem::exists(gz)) GTEST_SKIP() << "opencv-doc box.mp4.gz not installed";
   CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
-  CLIPWARDEN_SKIP_WITHOUT_TOOL("gzip");
   const TempDir dir;
-  const std::string full = dir.file("box.mp4"), window = dir.file("box240.mkv");
-  ASSERT_EQ(std::system(("gzip -dc '" + gz + "' > '" + full + "'").c_str()), 0);
+  const std::string full = unpacked_opencv_doc_clip(dir.path().string(), "box.mp4");
+  if (full.empty()) GTEST_SKIP() << "opencv-doc box.mp4.gz (or gzip) not installed";
+  const std::string window = dir.file("box240.mkv");
   // Frame 240 is at 8.008 s (29.97 fps); seeking before the input decodes
   // from the key frame before it and starts exactly there.
   const std::string cut =
@@ -142,12 +141,9 @@ TEST(DriftFootage, DimGuitarCloseUpBrightnessIsNotAReview) {
 // (rearranged orientations on the cup's own objects, 0.42-0.44 measured;
 // the floor of 0.3 sits a quarter below it).
 TEST(DriftFootage, HandHeldCupReadsNoDriftReview) {
-  const std::string gz = "/usr/share/doc/opencv-doc/opencv4/html/cup.mp4.gz";
-  if (!std::filesystem::exists(gz)) GTEST_SKIP() << "opencv-doc cup.mp4.gz not installed";
-  CLIPWARDEN_SKIP_WITHOUT_TOOL("gzip");
   const TempDir dir;
-  const std::string cup = dir.file("cup.mp4");
-  ASSERT_EQ(std::system(("gzip -dc '" + gz + "' > '" + cup + "'").c_str()), 0);
+  const std::string cup = unpacked_opencv_doc_clip(dir.path().string(), "cup.mp4");
+  if (cup.empty()) GTEST_SKIP() << "opencv-doc cup.mp4.gz (or gzip) not installed";
   const Report report = analyse_with_defaults(cup);
   double largest_structure = 0;
   for (const auto& o : report.objects) {

@@ -9,23 +9,16 @@
 
 #include <algorithm>
 #include <cstdlib>
-#include <filesystem>
 #include <string>
 
 #include "clipwarden/analysis.h"
 #include "clipwarden/policy.h"
 #include "support/clips.h"
 #include "support/corpus.h"
+#include "support/opencv_doc.h"
 
 namespace clipwarden::test {
 namespace {
-
-std::string unpacked(const TempDir& dir, const std::string& name) {
-  const std::string gz = "/usr/share/doc/opencv-doc/opencv4/html/" + name + ".gz";
-  if (!std::filesystem::exists(gz)) return "";
-  const std::string out = dir.file(name);
-  return std::system(("gzip -dc '" + gz + "' > '" + out + "'").c_str()) == 0 ? out : "";
-}
 
 Report analyse_at(const std::string& path, int long_side) {
   AnalysisSettings settings;
@@ -46,10 +39,9 @@ double largest(const Report& r, const std::string& name) {
 
 TEST(JumpCutFootage, ASpliceWithinTheBoxShotReviews) {
   CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
-  CLIPWARDEN_SKIP_WITHOUT_TOOL("gzip");
   const TempDir dir;
-  const std::string box = unpacked(dir, "box.mp4");
-  if (box.empty()) GTEST_SKIP() << "opencv-doc box.mp4.gz not installed";
+  const std::string box = unpacked_opencv_doc_clip(dir.path().string(), "box.mp4");
+  if (box.empty()) GTEST_SKIP() << "opencv-doc box.mp4.gz (or gzip) not installed";
   // Frames 240-299, then 400-459: 5.3 s of the same shot left out.
   const std::string splice = dir.file("splice.mkv");
   const std::string command =
@@ -68,10 +60,9 @@ TEST(JumpCutFootage, ASpliceWithinTheBoxShotReviews) {
 }
 
 TEST(JumpCutFootage, HandHeldCupStaysQuiet) {
-  CLIPWARDEN_SKIP_WITHOUT_TOOL("gzip");
   const TempDir dir;
-  const std::string cup = unpacked(dir, "cup.mp4");
-  if (cup.empty()) GTEST_SKIP() << "opencv-doc cup.mp4.gz not installed";
+  const std::string cup = unpacked_opencv_doc_clip(dir.path().string(), "cup.mp4");
+  if (cup.empty()) GTEST_SKIP() << "opencv-doc cup.mp4.gz (or gzip) not installed";
   const Report r = analyse_at(cup, 320);
   EXPECT_LT(largest(r, "jump_cut"), 4.5) << "measured 3.6 at 512 px on the corpus's copy";
   EXPECT_EQ(flagged_segments(r, "jump_cut"), "");

@@ -12,6 +12,7 @@
 #include "analyzer/inject/defect_spec.h"
 #include "clipwarden/inject.h"
 #include "support/clips.h"
+#include "support/opencv_doc.h"
 
 namespace clipwarden::accuracy {
 namespace fs = std::filesystem;
@@ -21,23 +22,9 @@ using inject::StrengthLevel;
 namespace {
 
 const char* kOpencvData = "/usr/share/doc/opencv-doc/examples/data";
-const char* kOpencvHtml = "/usr/share/doc/opencv-doc/opencv4/html";
 
 void say(const SetOptions& o, const std::string& line) {
   if (o.log) o.log(line);
-}
-
-// A gzipped opencv-doc clip, unpacked once into the work folder.
-std::string gunzipped(const SetOptions& o, const std::string& name) {
-  const std::string gz = std::string(kOpencvHtml) + "/" + name + ".gz";
-  const std::string out = o.work_dir + "/sources/" + name;
-  if (fs::exists(out)) return out;
-  if (!fs::exists(gz) || !test::have_tool("gzip")) return "";
-  fs::create_directories(o.work_dir + "/sources");
-  const std::string tmp = out + ".part";
-  if (std::system(("gzip -dc '" + gz + "' > '" + tmp + "'").c_str()) != 0) return "";
-  fs::rename(tmp, out);
-  return out;
 }
 
 // Renders a lavfi test source with the ffmpeg command-line tool (FFV1).
@@ -138,7 +125,7 @@ std::vector<BaseSource> available_sources(const SetOptions& o) {
         continue;
       }
     } else if (s.path.find('/') == std::string::npos) {
-      s.path = gunzipped(o, s.path);
+      s.path = test::unpacked_opencv_doc_clip(o.work_dir + "/sources", s.path);
       if (s.path.empty()) {
         say(o, "skipping " + s.name + ": opencv-doc's gzipped clip (or gzip) is missing");
         continue;
