@@ -12,7 +12,19 @@
 // and drinking, far off) differs between frames by less than the repeat
 // test's -60 dB, and stays that way: compression noise, not a stop. Such a
 // run is cleared to 0. An exact repeat changes by 0, so it always stops.
+//
+// A held picture that then fades to black is an edited freeze-frame ending
+// (an editor's freeze and fade-out, e.g. FFmpeg's `tpad=stop_mode=clone`
+// then `fade=t=out`): every frame after the hold shows the held picture
+// times one falling gain, and nothing moves again. The clip ends there, or
+// a new shot begins from black; no stalled motion is ever seen. Such a
+// hold is cleared to 0 and told in report.notes instead. A hold in the
+// middle of a shot, or one after which the scene fades while it moves,
+// stays a freeze.
 #include <algorithm>
+#include <cstdio>
+#include <optional>
+#include <string>
 
 #include "analyzer/frame/series_math.h"
 #include "analyzer/metrics/image_error.h"
@@ -65,14 +77,42 @@ class FreezeMetric final : public Metric {
     out[0] = same_picture(pair.cur->gray, pair.prev->gray) ? 1.0 : 0.0;
   }
 
+  // Follows each hold into what comes after it. The per-pair work (a gain
+  // fit against the held picture) runs only on the frames right after a
+  // hold while they keep showing it dimmed, so a clip without holds pays
+  // nothing here.
+  bool needs_in_order() const override { return true; }
+  void observe_in_order(const FramePair& pair, std::span<double> out) override {
+    const bool repeat = out[0] == 1.0;
+    if (state_ == State::fading) {
+      const std::optional<double> gain = dimmed_copy_gain(held_, pair.cur->gray);
+      if (gain && *gain <= kMaxFadeGain) {
+        ending_.last_s = pair.cur->t_s;
+        ending_.black = ending_.black || *gain <= kBlackGain;
+        return;
+      }
+      close_fade();
+    } else if (state_ == State::holding && !repeat) {
+      const std::optional<double> gain = dimmed_copy_gain(held_, pair.cur->gray);
+      state_ = gain && *gain <= kMaxFadeGain ? State::fading : State::idle;
+      ending_.last_s = pair.cur->t_s;
+      ending_.black = gain && *gain <= kBlackGain;
+      return;
+    }
+    if (repeat && state_ == State::idle) {
+      pair.prev->gray.copyTo(held_);
+      ending_ = {.first_s = pair.cur->t_s};
+      state_ = State::holding;
+    }
+  }
+
   // warp_error finishes before freeze (registry order), so its series is
   // complete here.
   void finish(Report& report) override {
+    if (state_ == State::fading) close_fade();
     MetricSeries* freeze = report.find_series("freeze");
     const MetricSeries* change = report.find_series("warp_error");
-    if (!freeze || !change || change->values.size() != freeze->values.size() ||
-        report.frame_times_s.size() != freeze->values.size())
-      return;
+    if (!freeze || report.frame_times_s.size() != freeze->values.size()) return;
     std::vector<double>& f = freeze->values;
     for (size_t start = 0; start < f.size();) {
       if (f[start] != 1.0) {
@@ -81,14 +121,68 @@ class FreezeMetric final : public Metric {
       }
       size_t end = start;
       while (end < f.size() && f[end] == 1.0) ++end;
-      if (!stops(change->values, report.frame_times_s, start, end))
+      FadedHold* faded = faded_hold_at(report.frame_times_s[start]);
+      const bool still_scene = change && change->values.size() == f.size() &&
+                               !stops(change->values, report.frame_times_s, start, end);
+      if (faded || still_scene)
         std::fill(f.begin() + static_cast<std::ptrdiff_t>(start),
                   f.begin() + static_cast<std::ptrdiff_t>(end), 0.0);
+      if (faded && !faded->told) {
+        report.notes.push_back(faded_hold_note(report.frame_times_s, start - 1, faded->last_s));
+        faded->told = true;
+      }
       start = end;
     }
   }
 
  private:
+  // A hold followed by a fade of the held picture: times of the hold's first
+  // repeated frame and of the fade's last frame.
+  struct FadedHold {
+    double first_s = 0, last_s = 0;
+    bool black = false;  // the fade reached kBlackGain
+    bool told = false;   // its note is written
+  };
+  enum class State { idle, holding, fading };
+
+  // A fade dims: a gain a little above 1 is the fit's noise on the fade's
+  // first frames, more is a picture that brightens. It ends in black when
+  // the gain falls to 0.1 (the held picture's mean of 182 codes on the
+  // plane clip shows as 18: a dark frame, where the picture is gone).
+  static constexpr double kMaxFadeGain = 1.02;
+  static constexpr double kBlackGain = 0.1;
+
+  void close_fade() {
+    if (ending_.black) faded_holds_.push_back(ending_);
+    state_ = State::idle;
+  }
+
+  // The faded hold that frame time t lies in (a hold may be broken into
+  // runs by a frame of compression noise between them).
+  FadedHold* faded_hold_at(double t) {
+    for (FadedHold& h : faded_holds_)
+      if (t >= h.first_s - 1e-9 && t <= h.last_s + 1e-9) return &h;
+    return nullptr;
+  }
+
+  // What a reviewer reads instead of a freeze: where the picture is held
+  // and where it is faded out. `held` is the frame the hold repeats.
+  static std::string faded_hold_note(const std::vector<double>& times, size_t held, double last_s) {
+    size_t last = held;
+    while (last + 1 < times.size() && times[last + 1] <= last_s + 1e-9) ++last;
+    char text[320];
+    std::snprintf(text, sizeof text,
+                  "Frames %zu-%zu (%.2f-%.2f s) show one picture: held still, then faded to black. "
+                  "An edited freeze-frame ending, not counted as a freeze.",
+                  held, last, times[held], times[last]);
+    return text;
+  }
+
+  State state_ = State::idle;
+  cv::Mat held_;
+  FadedHold ending_;
+  std::vector<FadedHold> faded_holds_;
+
   // Measured on the corpus's camera clips (2026-12-04): in near-still
   // scenes the median change of the half second before a run of repeats is
   // 0.7-2.3x that inside it (compression noise varies that much); where

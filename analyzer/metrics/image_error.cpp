@@ -5,6 +5,7 @@
 #include <cstdint>
 #include <cstdlib>
 #include <limits>
+#include <optional>
 
 #include <opencv2/imgproc.hpp>
 
@@ -85,20 +86,48 @@ double mean_absolute_difference(const cv::Mat& a, const cv::Mat& b) {
   return cv::norm(a, b, cv::NORM_L1) / (255.0 * static_cast<double>(a.total()));
 }
 
-bool same_picture(const cv::Mat& a, const cv::Mat& b) {
-  constexpr double kRepeatMaxMeanDifference = 0.001;
+namespace {
+
+// True when a and b differ by at most max_mean on average and by at most
+// max_cell_mean on average in every 32x32 cell (fractions of the 8-bit
+// range): the whole frame's mean hides one small region that changes, a
+// cell's does not.
+bool close_everywhere(const cv::Mat& a, const cv::Mat& b, double max_mean, double max_cell_mean) {
   constexpr int kCellPx = 32;
-  constexpr double kCellMaxMeanDifference = 2.0 / 255.0;
-  if (a.size() != b.size() || mean_absolute_difference(a, b) > kRepeatMaxMeanDifference)
-    return false;
+  if (a.size() != b.size() || mean_absolute_difference(a, b) > max_mean) return false;
   cv::Mat diff;
   cv::absdiff(a, b, diff);
   for (int y = 0; y < diff.rows; y += kCellPx)
     for (int x = 0; x < diff.cols; x += kCellPx) {
       const cv::Rect cell(x, y, std::min(kCellPx, diff.cols - x), std::min(kCellPx, diff.rows - y));
-      if (cv::mean(diff(cell))[0] / 255.0 > kCellMaxMeanDifference) return false;
+      if (cv::mean(diff(cell))[0] / 255.0 > max_cell_mean) return false;
     }
   return true;
+}
+
+}  // namespace
+
+bool same_picture(const cv::Mat& a, const cv::Mat& b) {
+  return close_everywhere(a, b, 0.001, 2.0 / 255.0);
+}
+
+std::optional<double> dimmed_copy_gain(const cv::Mat& picture, const cv::Mat& cur) {
+  CV_Assert(picture.type() == CV_8UC1 && cur.type() == CV_8UC1);
+  // Below a mean of 8 codes there is too little picture to fit a gain to
+  // (a black frame is a dimmed copy of anything).
+  constexpr double kMinPictureLevel = 8.0;
+  // The plane clip's fade (corpus, frames 180-279 against its held frame
+  // 179, 512 px): rounding and H.264 left 0.4-1.1 codes on average and at
+  // most 2.9 codes in a 32 px cell once the gain is divided out, where one
+  // frame of hand-held motion leaves 1.5 codes on average and 20 in a cell.
+  constexpr double kMaxMeanCodes = 2.0, kMaxCellCodes = 5.0;
+  if (picture.size() != cur.size() || cv::mean(picture)[0] < kMinPictureLevel) return std::nullopt;
+  // Least-squares gain through 0: the fade's multiplier.
+  const double gain = cur.dot(picture) / picture.dot(picture);
+  cv::Mat scaled;
+  picture.convertTo(scaled, CV_8U, gain);
+  if (!close_everywhere(cur, scaled, kMaxMeanCodes / 255.0, kMaxCellCodes / 255.0)) return std::nullopt;
+  return gain;
 }
 
 double masked_mean_difference(const cv::Mat& a, const cv::Mat& b, const cv::Mat& mask) {

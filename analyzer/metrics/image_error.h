@@ -1,6 +1,8 @@
 // Per-pixel comparisons shared by several metrics.
 #pragma once
 
+#include <optional>
+
 #include <opencv2/core.hpp>
 
 namespace clipwarden {
@@ -40,6 +42,13 @@ double mean_absolute_difference(const cv::Mat& a8, const cv::Mat& b8);
 // cell. The freeze metric and the cadence filter share this one test, so a
 // repeat the cadence keeps reads as still.
 bool same_picture(const cv::Mat& a8, const cv::Mat& b8);
+
+// The gain g when CV_8UC1 frame `cur` shows `picture` scaled by g (a fade:
+// an editor multiplies code values), fitted by least squares; nothing when
+// what is left after the scaling is more than rounding and compression
+// noise (2 codes on average, 5 in any 32x32 cell) or `picture` is nearly
+// black.
+std::optional<double> dimmed_copy_gain(const cv::Mat& picture, const cv::Mat& cur);
 
 // Mean over mask of (a - b) for CV_32FC1 images; NaN if the mask is empty.
 double masked_mean_difference(const cv::Mat& a32, const cv::Mat& b32, const cv::Mat& mask);
