@@ -9,6 +9,8 @@
 #include <set>
 #include <sstream>
 
+#include "support/noted_defect_time.h"
+
 namespace clipwarden::corpus {
 namespace {
 
@@ -38,6 +40,10 @@ double minutes_of(const CorpusResult& r) {
   if (r.report && r.report->summary.stream.video_duration_s > 0)
     return r.report->summary.stream.video_duration_s / 60;
   return r.clip.duration_s / 60;
+}
+
+FlagTiming timing_of(const CorpusResult& r) {
+  return flag_timing(*r.report, noted_time(r.clip.defect, r.clip.fps, r.clip.frames), r.clip.fps);
 }
 
 int segments_above_info(const Report& r) {
@@ -119,6 +125,7 @@ Expected<std::vector<CorpusClip>> read_manifest(const std::string& dir) {
     c.codec = f[column["codec"]];
     c.fps = std::atof(f[column["fps"]].c_str());
     c.duration_s = std::atof(f[column["duration_s"]].c_str());
+    if (column.count("frames")) c.frames = std::atoi(f[column["frames"]].c_str());
     c.notes = f[column["notes"]];
     const auto seen = c.notes.find("visible defect");
     if (seen != std::string::npos) c.defect = c.notes.substr(seen);
@@ -182,6 +189,11 @@ CorpusCounts count(const std::vector<CorpusResult>& results, bool camera) {
     }
     n.minutes += minutes_of(r);
     n.segments_above_info += segments_above_info(*r.report);
+    if (!r.clip.defect.empty()) {
+      ++n.defects;
+      n.defects_flagged += r.report->verdict.status != Verdict::pass;
+      n.defects_at_noted_time += timing_of(r) == FlagTiming::at_noted_time;
+    }
     switch (r.report->verdict.status) {
       case Verdict::pass:
         ++n.pass;
@@ -208,6 +220,10 @@ std::string corpus_markdown(const std::vector<CorpusResult>& results) {
           std::to_string(n.pass) + ", review " + std::to_string(n.review) + ", reject " +
           std::to_string(n.reject) + (n.errors ? ", errors " + std::to_string(n.errors) : "") +
           "; segments above info " + fmt("%.2f", n.false_alarm_segments_per_minute()) + "/min\n";
+    if (n.defects > 0)
+      md += "\nWith a defect seen by eye: " + std::to_string(n.defects) + " clips, " +
+            std::to_string(n.defects_flagged) + " flagged, " + std::to_string(n.defects_at_noted_time) +
+            " of them by a segment at the time the note gives.\n";
     if (!camera) continue;
     // By content type and by frame-rate band.
     for (int by = 0; by < 2; ++by) {
@@ -249,7 +265,7 @@ std::string corpus_markdown(const std::vector<CorpusResult>& results) {
       md += "| " + metric + " | " + std::to_string(c.first) + " | " + std::to_string(c.second) +
             " | " + fmt("%.2f", n.minutes > 0 ? (c.first + c.second) / n.minutes : 0) + " |\n";
   }
-  md += "\n| clip | kind | fps | content | verdict | first reason |\n|---|---|---|---|---|---|\n";
+  md += "\n| clip | kind | fps | content | verdict | flagged | first reason |\n|---|---|---|---|---|---|---|\n";
   for (const auto& r : results) {
     const bool listed = r.clip.camera ? (!r.report || r.report->verdict.status != Verdict::pass)
                                       : !r.clip.defect.empty();
@@ -261,7 +277,8 @@ std::string corpus_markdown(const std::vector<CorpusResult>& results) {
     md += "| " + r.clip.file + " | " +
           (r.clip.camera ? "camera" : "generated, " + r.clip.defect.substr(0, 60)) + " | " +
           fmt("%.3g", r.clip.fps) + " | " + r.clip.content + " | " +
-          (r.report ? to_string(r.report->verdict.status) : "error") + " | " + reason + " |\n";
+          (r.report ? to_string(r.report->verdict.status) : "error") + " | " +
+          (r.report && !r.clip.defect.empty() ? to_string(timing_of(r)) : "") + " | " + reason + " |\n";
   }
   return md;
 }

@@ -22,6 +22,7 @@ struct CorpusClip {
   std::string codec;
   double fps = 0;
   double duration_s = 0;
+  int frames = 0;  // stored frames (manifest column "frames"; 0 when absent)
   std::string notes;
   std::string defect;   // what the notes' "visible defect:" says, else empty
   std::string content;  // content type from the notes (content_type below)
@@ -59,6 +60,10 @@ struct CorpusCounts {
   int clips = 0, pass = 0, review = 0, reject = 0, errors = 0;
   double minutes = 0;
   int segments_above_info = 0;  // review or reject segments
+  // Clips whose notes say what defect a person saw: how many, how many the
+  // verdict flags (review or reject), and how many of those have a segment
+  // above info at the time the note gives (noted_defect_time.h).
+  int defects = 0, defects_flagged = 0, defects_at_noted_time = 0;
   double false_alarm_segments_per_minute() const {
     return minutes > 0 ? segments_above_info / minutes : 0;
   }
@@ -67,7 +72,8 @@ CorpusCounts count(const std::vector<CorpusResult>& results, bool camera);
 
 // Markdown: camera clips' verdicts by content type and by frame-rate band,
 // false-alarm segments per minute by metric, each camera clip not passed
-// with its first reason, and the clips with a visible defect.
+// with its first reason, and the clips with a visible defect (whether they
+// are flagged at the time their note gives).
 std::string corpus_markdown(const std::vector<CorpusResult>& results);
 
 }  // namespace clipwarden::corpus
