@@ -15,6 +15,12 @@
 // (A cut between two near-blank frames can fit an identity homography with
 // many inliers, hence the cut check.)
 //
+// Where no camera fit holds, the frame's jerk and jolt come from the whole
+// picture's acceleration read from the flow itself (picture_acceleration.h):
+// defined only where most of the picture accelerates as one, as when a frame
+// is displaced, so a hand-held close-up keeps a reading without a moving
+// hand or head standing in for the camera.
+//
 // jolt: the same acceleration per frame interval squared, in frame
 // diagonals per frame^2 (jerk * dt^2, dt the mean of the two intervals). A
 // single frame displaced by a fraction d of the diagonal reads 2 d at any
@@ -24,6 +30,7 @@
 
 #include "analyzer/metrics/camera_path.h"
 #include "analyzer/metrics/metric.h"
+#include "analyzer/metrics/picture_acceleration.h"
 #include "analyzer/frame/series_math.h"
 #include "analyzer/frame/shot_boundaries.h"
 
@@ -100,6 +107,11 @@ class JerkMetric final : public Metric {
     const bool valid = pair.camera_inlier_fraction >= kMinInlierFraction &&
                        pair.valid_fraction >= kMinValidFraction;
     steps_.push_back(camera_step(pair.camera_homography, frame_size_, pair.dt_s, valid));
+    // This pair leaves frame t - 1, which the previous pair entered.
+    const size_t t = steps_.size() - 1;
+    picture_jolt_.resize(t, kUndefined);
+    if (t >= 2) picture_jolt_[t - 1] = picture_acceleration(incoming_, pair.flow_forward, pair.valid);
+    incoming_ = sample_incoming_flow(pair.flow_backward, pair.valid);
   }
 
   void finish(Report& report) override {
@@ -108,7 +120,15 @@ class JerkMetric final : public Metric {
     const std::vector<bool> boundary = shot_boundaries(report);
     for (size_t t = 1; t < steps_.size() && t < boundary.size(); ++t)
       if (boundary[t]) steps_[t].valid = false;
-    const std::vector<double> jerk = camera_jerk(steps_, frame_size_);
+    std::vector<double> jerk = camera_jerk(steps_, frame_size_);
+    // Frames without a camera path take the picture's own acceleration
+    // (jolt = jerk * dt^2 below, so jerk = jolt / dt^2 here).
+    for (size_t t = 1; t + 1 < steps_.size() && t < jerk.size() && t < picture_jolt_.size(); ++t) {
+      if (!std::isnan(jerk[t]) || std::isnan(picture_jolt_[t])) continue;
+      if ((t < boundary.size() && boundary[t]) || (t + 1 < boundary.size() && boundary[t + 1])) continue;
+      const double dt = (steps_[t].dt_s + steps_[t + 1].dt_s) / 2;
+      if (dt > 0) jerk[t] = picture_jolt_[t] / (dt * dt), ++picture_frames_;
+    }
     for (size_t i = 0; i < series->values.size(); ++i)
       series->values[i] = i < jerk.size() ? jerk[i] : kUndefined;
     if (MetricSeries* jolt = report.find_series("jolt"))
@@ -128,6 +148,7 @@ class JerkMetric final : public Metric {
     nlohmann::json out = {
         {"units", "frame diagonals per second squared"},
         {"camera_fit_pairs", fitted},
+        {"picture_frames", picture_frames_},
         {"pairs", steps_.empty() ? 0 : static_cast<int>(steps_.size()) - 1}};
     const std::vector<double> defined = defined_values(jerk);
     if (defined.empty()) return out;
@@ -144,6 +165,9 @@ class JerkMetric final : public Metric {
 
   cv::Size frame_size_;
   std::vector<CameraStep> steps_;
+  IncomingFlowSamples incoming_;     // pair t-1 -> t's backward flow on frame t
+  std::vector<double> picture_jolt_;  // per frame, NaN where the picture does not agree
+  int picture_frames_ = 0;            // frames read from the picture, not the camera path
 };
 
 }  // namespace
