@@ -7,6 +7,7 @@
 #include <opencv2/imgproc.hpp>
 
 #include "analyzer/drift/sampling.h"
+#include "analyzer/drift/scene_departure.h"
 
 namespace clipwarden::drift {
 namespace {
@@ -143,13 +144,33 @@ FrameDrift DriftTracker::step(const FramePair& pair) {
   return result;
 }
 
-void DriftTracker::finish() {
+std::vector<int64_t> DriftTracker::finish() {
   for (auto& object : objects_) {
     if (object.ended) continue;
     object.ended = true;
     object.end_reason = "clip_end";
     release_points(object);
   }
+  return hold_scene_departures(objects_);
+}
+
+FrameDrift DriftTracker::worst_at(int64_t frame) const {
+  FrameDrift worst;
+  for (const auto& object : objects_) {
+    // Histories run in frame order: the sample of `frame`, if any.
+    const auto it = std::lower_bound(
+        object.history.begin(), object.history.end(), frame,
+        [](const ObjectSample& s, int64_t f) { return s.frame < f; });
+    if (it == object.history.end() || it->frame != frame || it == object.history.begin()) continue;
+    if (std::isfinite(it->drift) && !(it->drift <= worst.drift)) {
+      worst.drift = it->drift;
+      worst.color_de00 = it->color_de00;
+      worst.structure = it->structure;
+      worst.size_pct = it->size_window_pct;
+      worst.object_id = object.id;
+    }
+  }
+  return worst;
 }
 
 bool DriftTracker::is_cut(const FramePair& pair, double distance) {

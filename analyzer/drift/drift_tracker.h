@@ -93,8 +93,13 @@ class DriftTracker {
   void prepare(const FramePair& pair) const;
 
   FrameDrift step(const FramePair& pair);
-  // Ends every object still followed ("clip_end").
-  void finish();
+  // Ends every object still followed ("clip_end"), then holds under review
+  // the readings of departures spread over the scene (scene_departure.h):
+  // returns the frames whose readings it held, whose worst object
+  // (worst_at) step() no longer gives.
+  std::vector<int64_t> finish();
+  // The worst object's reading of `frame`, from the objects' histories.
+  FrameDrift worst_at(int64_t frame) const;
 
   // Every object, ended ones included, in order of creation.
   const std::vector<ObjectTrack>& objects() const { return objects_; }

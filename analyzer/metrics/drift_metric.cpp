@@ -8,6 +8,7 @@
 // analysis time.
 #include <cmath>
 #include <cstdlib>
+#include <iterator>
 #include <memory>
 #include <string>
 
@@ -137,7 +138,9 @@ class DriftMetric final : public Metric {
 
   void finish(Report& report) override {
     if (!enabled_) return;
-    tracker_.finish();
+    // Readings that the scene's own change held under review lower their
+    // frames' values: the columns are rewritten from the objects there.
+    for (const int64_t frame : tracker_.finish()) write_frame(report, frame, tracker_.worst_at(frame));
     const drift::ObjectSegmentRule rule = object_segment_rule();
     for (const auto& object : tracker_.objects()) {
       report.objects.push_back(drift::to_tracked_object(object, frame_width_, frame_height_, rule));
@@ -155,6 +158,17 @@ class DriftMetric final : public Metric {
       if (!series || frame < 0 || frame >= static_cast<int64_t>(series->values.size())) continue;
       double& v = series->values[static_cast<size_t>(frame)];
       if (!is_defined(v)) v = 0;
+    }
+  }
+
+  // The four columns of `frame`, in the order observe_in_order writes them.
+  static void write_frame(Report& report, int64_t frame, const drift::FrameDrift& d) {
+    const double values[] = {d.drift, d.color_de00, d.structure, d.size_pct};
+    const auto& columns = drift_descriptor().columns;
+    for (size_t i = 0; i < columns.size() && i < std::size(values); ++i) {
+      MetricSeries* series = report.find_series(columns[i].name);
+      if (!series || frame < 0 || frame >= static_cast<int64_t>(series->values.size())) continue;
+      series->values[static_cast<size_t>(frame)] = values[i];
     }
   }
 
