@@ -86,6 +86,7 @@ FrameDrift DriftTracker::step(const FramePair& pair) {
   if (!params_ready_) {
     params_ = DriftParams::for_frame(pair.cur->bgr.cols, pair.cur->bgr.rows, max_objects_);
     params_ready_ = true;
+    frame_area_px_ = static_cast<double>(pair.cur->bgr.cols) * pair.cur->bgr.rows;
   }
   // Features of the previous frame are those of "current" one step earlier
   // (computed here only for the first pair); those of the current frame were
@@ -151,7 +152,7 @@ std::vector<int64_t> DriftTracker::finish() {
     object.end_reason = "clip_end";
     release_points(object);
   }
-  return hold_scene_departures(objects_);
+  return hold_scene_departures(objects_, frame_area_px_);
 }
 
 FrameDrift DriftTracker::worst_at(int64_t frame) const {

@@ -148,6 +148,7 @@ class DriftTracker {
   int max_objects_;
   DriftParams params_;
   bool params_ready_ = false;
+  double frame_area_px_ = 0;
   bool shot_active_ = false;
   int next_id_ = 1;
   double last_proposal_t_s_ = 0;

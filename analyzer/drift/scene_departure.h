@@ -23,6 +23,10 @@ struct SceneDepartureRule {
   double departed_own_de00 = 4;   // an own colour change from this counts as departed
   double min_departed_share = 0.32;  // of the other readings in the window
   int min_other_objects = 2;      // the window must hold readings of this many other objects
+  // The departed other objects' boxes (each at its largest while departed
+  // in the window) must cover this share of the frame together: a recolour
+  // of one region passes to the few objects that cross it.
+  double min_departed_area_share = 0.08;
   double held_drift = 0.9;        // such a reading counts at most this (under review)
 };
 
@@ -30,7 +34,7 @@ struct SceneDepartureRule {
 // and structure reading above it that the rule finds spread over the scene;
 // returns the frames of the readings held, in increasing order, each once.
 // Reads and changes only the objects' histories.
-std::vector<int64_t> hold_scene_departures(std::vector<ObjectTrack>& objects,
+std::vector<int64_t> hold_scene_departures(std::vector<ObjectTrack>& objects, double frame_area_px,
                                            const SceneDepartureRule& rule = {});
 
 }  // namespace clipwarden::drift
