@@ -5,6 +5,7 @@
 #include <cmath>
 #include <cstdlib>
 #include <limits>
+#include <numeric>
 
 #include "analyzer/frame/series_math.h"
 
@@ -250,16 +251,58 @@ std::vector<Pulse> pulses_with_neighbours(const std::vector<Pulse>& pulses, int 
   return kept;
 }
 
-std::vector<Pulse> pulses_within_shots(const std::vector<Pulse>& pulses, const std::vector<bool>& boundaries) {
-  std::vector<Pulse> kept;
-  for (const Pulse& p : pulses) {
-    bool crosses = false;
-    for (int64_t f = std::max<int64_t>(0, p.start_frame);
-         f <= p.end_frame && f < static_cast<int64_t>(boundaries.size()) && !crosses; ++f)
-      crosses = boundaries[static_cast<size_t>(f)];
-    if (!crosses) kept.push_back(p);
+std::vector<int> places_pulsing_around(const std::vector<Pulse>& pulses, std::span<const double> times_s,
+                                       double within_s, int cols, int rows) {
+  const auto time_of = [&](int64_t f) {
+    if (times_s.empty()) return static_cast<double>(f);
+    return times_s[static_cast<size_t>(std::clamp<int64_t>(f, 0, static_cast<int64_t>(times_s.size()) - 1))];
+  };
+  // The pulses by start time: those that reach [from, to] start within
+  // [from - longest span, to], one range of them.
+  std::vector<size_t> by_start(pulses.size());
+  std::iota(by_start.begin(), by_start.end(), size_t{0});
+  std::sort(by_start.begin(), by_start.end(), [&](size_t a, size_t b) {
+    return pulses[a].start_frame < pulses[b].start_frame;
+  });
+  std::vector<double> starts;
+  double longest = 0;
+  for (size_t k : by_start) {
+    starts.push_back(time_of(pulses[k].start_frame));
+    longest = std::max(longest, time_of(pulses[k].end_frame) - starts.back());
   }
-  return kept;
+  std::vector<int> out(pulses.size(), 0);
+  std::vector<uint8_t> pulsing;  // per block: 0 quiet, 1 pulsing, 2 counted in a place
+  std::vector<int> stack;
+  for (size_t i = 0; i < pulses.size(); ++i) {
+    const double from = time_of(pulses[i].start_frame) - within_s, to = time_of(pulses[i].end_frame) + within_s;
+    pulsing.assign(static_cast<size_t>(cols) * rows, 0);
+    for (auto it = std::lower_bound(starts.begin(), starts.end(), from - longest);
+         it != starts.end() && *it <= to; ++it) {
+      const Pulse& q = pulses[by_start[static_cast<size_t>(it - starts.begin())]];
+      if (q.block >= 0 && q.block < cols * rows && time_of(q.end_frame) >= from)
+        pulsing[static_cast<size_t>(q.block)] = 1;
+    }
+    int places = 0;
+    for (int b = 0; b < cols * rows; ++b) {
+      if (pulsing[b] != 1) continue;
+      ++places;  // a new place: mark every block connected to it
+      pulsing[b] = 2;
+      stack.assign(1, b);
+      while (!stack.empty()) {
+        const int x = stack.back();
+        stack.pop_back();
+        for (int dr = -1; dr <= 1; ++dr)
+          for (int dc = -1; dc <= 1; ++dc) {
+            const int r = x / cols + dr, c = x % cols + dc;
+            if (r < 0 || r >= rows || c < 0 || c >= cols || pulsing[r * cols + c] != 1) continue;
+            pulsing[r * cols + c] = 2;
+            stack.push_back(r * cols + c);
+          }
+      }
+    }
+    out[i] = places;
+  }
+  return out;
 }
 
 double recurring_quantile(std::span<const double> values, std::span<const double> times_s,
@@ -295,6 +338,8 @@ BlockPulseTracker::BlockPulseTracker(int blocks, double min_swing, double max_pu
     : blocks_(static_cast<size_t>(blocks)), max_pulse_s_(max_pulse_s) {
   rule_.min_change = static_cast<float>(min_swing);
 }
+
+void BlockPulseTracker::restart() { std::fill(blocks_.begin(), blocks_.end(), Block{}); }
 
 void BlockPulseTracker::add(int64_t frame, double t_s, std::span<const float> changes) {
   for (size_t b = 0; b < blocks_.size() && b < changes.size(); ++b) {

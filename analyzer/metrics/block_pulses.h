@@ -112,11 +112,15 @@ struct Pulse {
 // in one block at a time. Order is kept.
 std::vector<Pulse> pulses_with_neighbours(const std::vector<Pulse>& pulses, int cols);
 
-// The pulses that no shot boundary interrupts (`boundaries[f]` true when
-// frame f starts a new shot, analyzer/frame/shot_boundaries.h): a cut
-// replaces a block's content, and the jump of its level there is no light.
-// Order is kept.
-std::vector<Pulse> pulses_within_shots(const std::vector<Pulse>& pulses, const std::vector<bool>& boundaries);
+// For each pulse, in how many separate places the picture pulses within
+// `within_s` of it: the blocks with a pulse whose span comes within that
+// time of its span (`times_s[f]` the time of frame f; frame numbers stand
+// for times when `times_s` is empty), grouped by 8-neighbourhood on a grid
+// `cols` x `rows`, counted as groups. A region that pulses is one place,
+// however large; light that plays over the scene - an aurora's curtains
+// brightening here and there - pulses in several places at once.
+std::vector<int> places_pulsing_around(const std::vector<Pulse>& pulses, std::span<const double> times_s,
+                                       double within_s, int cols, int rows);
 
 // A pulse is recorded when the swing back is confirmed; while that swing
 // goes on - until it has come as far back as the first swing went, and for
@@ -128,6 +132,11 @@ class BlockPulseTracker {
 
   // One pair's block changes (NaN = unknown) ending at `frame`, time t_s.
   void add(int64_t frame, double t_s, std::span<const float> changes);
+
+  // Forgets every block's level and swings, as at the start: a new shot
+  // begins, and a pulse needs both its swings within one shot. Pulses found
+  // so far stay.
+  void restart();
 
   // Every pulse so far, in the order they were confirmed.
   const std::vector<Pulse>& pulses() const { return pulses_; }

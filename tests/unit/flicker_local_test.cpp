@@ -202,18 +202,61 @@ TEST(BlockPulses, OnlyPulsesSharedWithANeighbourAreKept) {
   EXPECT_EQ(kept[1].block, 6);
 }
 
-TEST(BlockPulses, APulseAcrossACutIsDropped) {
-  // A cut at frame 12 (boundaries[12]): the pulse spanning frames 10-14
-  // holds it and goes; those before and after it stay, in order.
-  std::vector<bool> boundaries(30, false);
-  boundaries[12] = true;
-  const std::vector<Pulse> pulses = {{1, 3, 8, 0.1}, {2, 10, 14, 0.3}, {3, 12, 16, 0.2}, {4, 13, 20, 0.1}};
-  const auto kept = pulses_within_shots(pulses, boundaries);
-  ASSERT_EQ(kept.size(), 2u);
-  EXPECT_EQ(kept[0].block, 1);
-  EXPECT_EQ(kept[1].block, 4);
-  // Without a cut series (no boundaries known) every pulse stays.
-  EXPECT_EQ(pulses_within_shots(pulses, {}).size(), pulses.size());
+TEST(BlockPulses, ARestartForgetsTheSwingBeforeACut) {
+  // One block at 24 fps: brightens by 0.05 at frame 6, darkens back at
+  // frame 9. Fed straight through, that is a pulse (min swing 0.02); with
+  // a restart between them (a cut at frame 8, whose own change is skipped)
+  // the swing back has no first swing in its shot, so nothing pulses.
+  std::vector<float> c(20, 0.0f);
+  c[5] = 0.05f;
+  c[8] = -0.05f;
+  ASSERT_EQ(feed(c, 24).size(), 1u);
+  BlockPulseTracker tracker(1, 0.02, 0.5);
+  for (size_t i = 0; i < c.size(); ++i) {
+    const int64_t frame = static_cast<int64_t>(i + 1);
+    if (frame == 8) {
+      tracker.restart();
+      continue;
+    }
+    tracker.add(frame, frame / 24.0, std::span(&c[i], 1));
+  }
+  EXPECT_TRUE(tracker.pulses().empty());
+  // After the restart a whole pulse within the new shot is found again.
+  std::vector<float> later = {0.0f, 0.05f, 0.0f, -0.05f};
+  for (size_t i = 0; i < later.size(); ++i)
+    tracker.add(static_cast<int64_t>(30 + i), (30 + i) / 24.0, std::span(&later[i], 1));
+  EXPECT_EQ(tracker.pulses().size(), 1u);
+}
+
+TEST(BlockPulses, PlacesPulsingAroundCountsSeparateRegions) {
+  // Grid 4 x 4, frame numbers as times (no frame times given), within 2.
+  // Blocks 0, 1 and 5 touch (one place); block 3 and block 15 stand alone;
+  // block 12's pulse is long after the others.
+  const std::vector<Pulse> pulses = {
+      {0, 10, 12, 0.1}, {1, 11, 13, 0.1}, {5, 13, 14, 0.1}, {3, 15, 16, 0.1}, {15, 4, 9, 0.1}, {12, 40, 42, 0.1}};
+  const std::vector<int> places = places_pulsing_around(pulses, {}, 2, 4, 4);
+  // Pulse on block 0 (frames 8-14 reached): blocks 0, 1, 5 (one place), 3
+  // (starts at 15: no), 15 (ends at 9: yes) -> 2 places.
+  EXPECT_EQ(places[0], 2);
+  // Block 3 (13-18): 1 and 5 (touching 0's place through 1: 0 ends at 12,
+  // out), so {1, 5} one place, 3 another -> 2.
+  EXPECT_EQ(places[3], 2);
+  // Block 5 (11-16): 0, 1, 5 one place, 3 another -> 2.
+  EXPECT_EQ(places[2], 2);
+  // Block 12 alone in its time.
+  EXPECT_EQ(places[5], 1);
+  // A region of any size is one place: a 3 x 3 square pulsing together.
+  std::vector<Pulse> square;
+  for (int r = 0; r < 3; ++r)
+    for (int col = 0; col < 3; ++col) square.push_back({r * 4 + col, 20, 22, 0.2});
+  for (int p : places_pulsing_around(square, {}, 0.5, 4, 4)) EXPECT_EQ(p, 1);
+  // With frame times, the window is in seconds: at 10 fps frames 10-12 and
+  // 19-20 are more than 0.5 s apart.
+  std::vector<double> times(50);
+  for (size_t i = 0; i < times.size(); ++i) times[i] = i / 10.0;
+  const std::vector<Pulse> apart = {{0, 10, 12, 0.1}, {15, 19, 20, 0.1}};
+  EXPECT_EQ(places_pulsing_around(apart, times, 0.5, 4, 4), (std::vector<int>{1, 1}));
+  EXPECT_EQ(places_pulsing_around(apart, times, 0.8, 4, 4), (std::vector<int>{2, 2}));
 }
 
 // The clip-level level of recurring pulses. The quantile is numpy.percentile's
