@@ -41,6 +41,20 @@
 // table) is exactly where the flow cannot settle, and the median keeps the
 // few blocks at a true occlusion edge out.
 //
+// Sparkle. Sun glints on water, glitter and wet highlights are re-drawn
+// every frame as well: points far brighter than the surface around them
+// that appear and vanish, so their residuals alternate as boiling's do,
+// but a glint changes a pixel by 100-200 codes where a re-drawn texture
+// changes it by tens (injected boiling: noise of standard deviation 4, 10
+// and 24 codes). A few glints in a block outweighed its surface. So at
+// sparkle points, pixels where the brighter of the two frames stands high
+// above its surroundings on a scale of a few pixels (sparkle_points), the
+// residual is clipped to +-kResidualCap per channel before the 3 x 3 mean
+// (a Huber-style clip, Huber 1964, recalled from memory: beyond the cap a
+// point counts as an outlier of bounded weight). A glint then weighs about
+// as much as a pixel of strong boiling, no more; elsewhere nothing is clipped, so a body or a
+// texture re-drawn with large changes keeps its whole value.
+//
 // Natural re-drawing. Water, foliage and flames re-draw their texture all
 // the time, in the same place, at a steady level; generated boiling starts
 // and stops, or sits where nothing should change. So each window is judged
@@ -82,6 +96,7 @@
 // the motion per frame up to 1/kExposureFps s per frame, as the smear does.
 #include <algorithm>
 #include <cmath>
+#include <cstdint>
 #include <limits>
 #include <utility>
 #include <vector>
@@ -176,6 +191,21 @@ constexpr double kExposureFps = 8;
 // 0.5 leaves it an info segment (0.0019) and keeps every injected case
 // found, 1 loses a weak injected case on the glossy cup.
 constexpr float kSpreadShare = 0.5F;
+// Largest change per channel that counts at a sparkle point (Sparkle, at
+// the top): 48 of 255 codes. Measured 2026-12-05 at 512 px (docs/accuracy.md,
+// "Sun glints are not boiling"): clipping every pixel there cleared the
+// pool's three reviews but also model outputs' re-drawn bodies (48 of 255
+// is 2.4 sigma of the residual of moderate injected boiling, 1 sigma of
+// strong); clipping at 72 or 96 codes left two of the pool's reviews.
+constexpr float kResidualCap = 48.0F / 255.0F;
+// A pixel is a sparkle point when the brighter of its two frames stands
+// kSparkleAbove grey codes above the opening of that frame by a square of
+// kSparkleSidePx (its white top-hat): a bright point narrower than the
+// square. At 512 px the pool's glints are 2-5 px across and 60-150 codes
+// above the water; a square of 5 px also took a panda's re-drawn white fur
+// edges in a model output (measured 2026-12-05, docs/accuracy.md).
+constexpr uint8_t kSparkleAbove = 40;
+constexpr int kSparkleSidePx = 7;
 // Stands for "not measured" in the persistence step (below any excess).
 constexpr float kUnmeasured = -std::numeric_limits<float>::infinity();
 
@@ -186,6 +216,12 @@ struct WindowGrid {
   std::vector<float> motion;  // median smear of its blocks (block_motion), px at 512 px
 };
 
+// Scratch of compute_residual: one band of the warped frame in float, and
+// the planes of the sparkle test.
+struct SparkleScratch {
+  cv::Mat warped_scaled, warped_gray, brighter, surround, peak;
+};
+
 class BoilingMetric final : public Metric {
  public:
   const MetricDescriptor& descriptor() const override { return boiling_descriptor(); }
@@ -194,7 +230,7 @@ class BoilingMetric final : public Metric {
   // the pair's scratch, and taken over in observe_in_order.
   void measure_pair(const FramePair& pair, std::span<double>) const override {
     Residual& r = pair.scratch.slot<Residual>(this);
-    compute_residual(pair.cur->bgr, pair.warped_prev_bgr, r.values, r.warped_scaled);
+    compute_residual(pair.cur->bgr, pair.warped_prev_bgr, pair.cur->gray, r.values, r.scratch);
     block_motion(pair.flow_backward, pair.dt_s, r.motion);
     r.frame_index = pair.cur->index;
     r.t_s = pair.cur->t_s;
@@ -210,7 +246,7 @@ class BoilingMetric final : public Metric {
       std::swap(motion_, r.motion);
       r.frame_index = -1;  // taken
     } else {
-      compute_residual(pair.cur->bgr, pair.warped_prev_bgr, residual_, warped_scaled_);
+      compute_residual(pair.cur->bgr, pair.warped_prev_bgr, pair.cur->gray, residual_, scratch_);
       block_motion(pair.flow_backward, pair.dt_s, motion_);
     }
     if (has_previous_ && previous_residual_.size() == residual_.size()) {
@@ -511,28 +547,51 @@ class BoilingMetric final : public Metric {
 
   // r = V_t - W(V_{t-1}) with 8-bit values scaled to [0,1]: each term
   // scaled as convertTo(CV_32F, 1/255) scales it (a float product), then
-  // subtracted. OpenCV's vectorized passes give exactly the values of a
-  // per-element loop, at a fraction of the cost. `warped_scaled` is scratch.
+  // subtracted and clipped to +-kResidualCap (Sparkle, at the top).
+  // OpenCV's vectorized passes give exactly the values of a per-element
+  // loop, at a fraction of the cost. `warped_scaled` is scratch.
   // Done in bands of rows, so the scratch holds a band, not a frame.
-  static void compute_residual(const cv::Mat& cur, const cv::Mat& warped, cv::Mat& residual,
-                               cv::Mat& warped_scaled) {
+  static void compute_residual(const cv::Mat& cur, const cv::Mat& warped, const cv::Mat& cur_gray,
+                               cv::Mat& residual, SparkleScratch& scratch) {
     constexpr int kBand = 32;
+    sparkle_points(cur_gray, warped, scratch);
     residual.create(cur.size(), CV_32FC3);
-    warped_scaled.create(std::min(kBand, cur.rows), cur.cols, CV_32FC3);
+    scratch.warped_scaled.create(std::min(kBand, cur.rows), cur.cols, CV_32FC3);
     for (int y = 0; y < cur.rows; y += kBand) {
       const cv::Range rows(y, std::min(cur.rows, y + kBand));
       cv::Mat out = residual.rowRange(rows);
-      cv::Mat band = warped_scaled.rowRange(0, rows.size());
+      cv::Mat band = scratch.warped_scaled.rowRange(0, rows.size());
       cur.rowRange(rows).convertTo(out, CV_32F, 1.0 / 255.0);
       warped.rowRange(rows).convertTo(band, CV_32F, 1.0 / 255.0);
       cv::subtract(out, band, out);
+      for (int yy = rows.start; yy < rows.end; ++yy) {
+        const uint8_t* peak = scratch.peak.ptr<uint8_t>(yy);
+        cv::Vec3f* r = residual.ptr<cv::Vec3f>(yy);
+        for (int x = 0; x < cur.cols; ++x)
+          if (peak[x] > kSparkleAbove)
+            for (int c = 0; c < 3; ++c) r[x][c] = std::clamp(r[x][c], -kResidualCap, kResidualCap);
+      }
     }
     cv::blur(residual, residual, cv::Size(3, 3), cv::Point(-1, -1), cv::BORDER_REPLICATE);
   }
 
+  // How far (grey codes) the brighter of frame t and the warped frame t-1
+  // stands above what an opening by a kSparkleSidePx square leaves of it
+  // (the white top-hat of mathematical morphology, Serra 1982, recalled
+  // from memory): bright points smaller than the square keep their
+  // height, the edge of a larger bright surface (a white coat, a lit wall)
+  // keeps none. Into scratch.peak.
+  static void sparkle_points(const cv::Mat& cur_gray, const cv::Mat& warped, SparkleScratch& s) {
+    cv::cvtColor(warped, s.warped_gray, cv::COLOR_BGR2GRAY);
+    cv::max(cur_gray, s.warped_gray, s.brighter);
+    static const cv::Mat kSquare =
+        cv::getStructuringElement(cv::MORPH_RECT, cv::Size(kSparkleSidePx, kSparkleSidePx));
+    cv::morphologyEx(s.brighter, s.peak, cv::MORPH_TOPHAT, kSquare);
+  }
+
   struct Residual {
     cv::Mat values;            // CV_32FC3
-    cv::Mat warped_scaled;     // scratch of compute_residual (one band)
+    SparkleScratch scratch;    // of compute_residual
     std::vector<float> motion;  // per block, block_motion
     int64_t frame_index = -1;  // which frame's residual it holds; -1: none
     double t_s = 0;
@@ -540,7 +599,8 @@ class BoilingMetric final : public Metric {
 
   bool has_previous_ = false;
   std::vector<std::pair<int64_t, WindowGrid>> windows_by_frame_;  // frame, window statistics
-  cv::Mat residual_, previous_residual_, warped_scaled_;
+  cv::Mat residual_, previous_residual_;
+  SparkleScratch scratch_;
   std::vector<float> motion_;  // this pair's block_motion
   // Scratch of block_statistics and window_statistics.
   std::vector<int> block_of_column_, count_, area_;

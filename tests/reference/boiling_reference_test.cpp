@@ -12,6 +12,7 @@
 #include <algorithm>
 #include <cmath>
 #include <random>
+#include <string>
 
 #include <opencv2/imgproc.hpp>
 
@@ -202,6 +203,41 @@ TEST(BoilingReference, FfmpegFilmGrainOnAStillPhotographIsNotBoilingButARedrawnP
                 r->peak);
   EXPECT_NEAR(reviews.front()->start_frame, 17, 2);
   EXPECT_NEAR(reviews.back()->end_frame, 36, 2);
+}
+
+
+// Sun glints: white points of 4 x 4 px that appear and vanish every frame
+// over 5% of a 128 px patch, drawn with FFmpeg's geq (positions from a
+// hash of x, y and the frame number, the same in all three planes, so the
+// points are white) over frames 16-35. Each point is narrower than the
+// metric's 7 px square, so it is a sparkle point and its residual is
+// clipped to 48 codes per channel. Worked value (elementary probability):
+// a point lit at t-1 and dark at t has residuals of opposite sign, so it
+// adds 3 (48/255)^2 = 0.106 to the product; that happens on p (1 - p) =
+// 4.75% of the patch, times the 49/81 that the 3 x 3 mean keeps of 4 px
+// blobs: about 0.0030. Unclipped, a point 150-200 codes above the
+// photograph would add 3 (175/255)^2 = 1.41 instead: 0.041 (the metric
+// read 0.035 before the clip, measured 2026-12-05). A dense field of pure
+// white glints still reviews; the pool's glints, softer and sparser, no
+// longer do (boiling_glints_footage_test.cpp).
+TEST(BoilingReference, FfmpegGlintsWeighNoMoreThanTheClippedResidual) {
+  CLIPWARDEN_SKIP_WITHOUT_TOOL("ffmpeg");
+  if (!test::opencv_data("baboon.jpg")) GTEST_SKIP() << "opencv-doc baboon.jpg not installed";
+  const TempDir dir;
+  const std::string lit = "lt(abs(mod(sin(X*12.9898+Y*78.233+N*37.719)*43758.5453\\,1))\\,0.05)";
+  const Report glints = analyse_ffmpeg_still(
+      dir.file("glints.mkv"),
+      "[0]scale=512:384,format=yuv444p,split[bg][p];"
+      "[p]crop=32:32:192:160,geq=lum='if(" + lit + ",255,lum(X,Y))':cb='if(" + lit +
+          ",128,cb(X,Y))':cr='if(" + lit + ",128,cr(X,Y))',scale=128:128:flags=neighbor[q];"
+      "[bg][q]overlay=192:160:enable='between(n,16,35)'");
+  double peak = 0;
+  for (const auto& s : glints.segments)
+    if (s.metric == "boiling") peak = std::max(peak, s.peak);
+  const double clipped = 3 * std::pow(48.0 / 255, 2) * 0.05 * 0.95 * kBlobNoiseShare;
+  const double unclipped = 3 * std::pow(175.0 / 255, 2) * 0.05 * 0.95 * kBlobNoiseShare;
+  EXPECT_GT(peak, clipped / 2) << "the glints are re-drawn every frame: they must still read";
+  EXPECT_LT(peak, clipped * 2) << "unclipped they would read about " << unclipped;
 }
 
 }  // namespace
