@@ -5,23 +5,19 @@
 
 #include <opencv2/calib3d.hpp>
 
+#include "analyzer/frame/flow_samples.h"
+
 namespace clipwarden {
 
 CameraMotion fit_camera_motion(const cv::Mat& flow_backward, const cv::Mat& valid) {
-  // About 600 samples whatever the working size: enough for a stable fit,
-  // cheap next to the flow itself.
-  const int step = std::max(4, static_cast<int>(std::sqrt(flow_backward.total() / 600.0)));
+  const FlowSamples samples = sample_flow_grid(flow_backward, valid);
   std::vector<cv::Point2f> prev_pts, cur_pts;
-  prev_pts.reserve(flow_backward.total() / (step * step) + 1);
-  cur_pts.reserve(prev_pts.capacity());
-  for (int y = step / 2; y < flow_backward.rows; y += step) {
-    const cv::Vec2f* b = flow_backward.ptr<cv::Vec2f>(y);
-    const uint8_t* v = valid.ptr<uint8_t>(y);
-    for (int x = step / 2; x < flow_backward.cols; x += step) {
-      if (!v[x]) continue;
-      cur_pts.emplace_back(static_cast<float>(x), static_cast<float>(y));
-      prev_pts.emplace_back(x + b[x][0], y + b[x][1]);
-    }
+  prev_pts.reserve(samples.at.size());
+  cur_pts.reserve(samples.at.size());
+  for (size_t i = 0; i < samples.at.size(); ++i) {
+    const cv::Point p = samples.at[i];
+    cur_pts.emplace_back(static_cast<float>(p.x), static_cast<float>(p.y));
+    prev_pts.emplace_back(p.x + samples.flow[i].x, p.y + samples.flow[i].y);
   }
   CameraMotion out;
   if (prev_pts.size() < 12) return out;

@@ -111,7 +111,7 @@ class JerkMetric final : public Metric {
     const size_t t = steps_.size() - 1;
     picture_jolt_.resize(t, kUndefined);
     if (t >= 2) picture_jolt_[t - 1] = picture_acceleration(incoming_, pair.flow_forward, pair.valid);
-    incoming_ = sample_incoming_flow(pair.flow_backward, pair.valid);
+    incoming_ = sample_flow_grid(pair.flow_backward, pair.valid);
   }
 
   void finish(Report& report) override {
@@ -165,7 +165,7 @@ class JerkMetric final : public Metric {
 
   cv::Size frame_size_;
   std::vector<CameraStep> steps_;
-  IncomingFlowSamples incoming_;     // pair t-1 -> t's backward flow on frame t
+  FlowSamples incoming_;     // pair t-1 -> t's backward flow on frame t
   std::vector<double> picture_jolt_;  // per frame, NaN where the picture does not agree
   int picture_frames_ = 0;            // frames read from the picture, not the camera path
 };

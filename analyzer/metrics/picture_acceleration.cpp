@@ -4,6 +4,8 @@
 #include <cmath>
 #include <limits>
 
+#include "analyzer/frame/series_math.h"
+
 namespace clipwarden {
 namespace {
 
@@ -21,32 +23,9 @@ constexpr float kAgreementShareOfLength = 0.25f;
 constexpr double kMinAgreeingShare = 0.8;
 constexpr size_t kMinPoints = 12;
 
-float median_of(std::vector<float>& v) {
-  const auto mid = v.begin() + static_cast<long>(v.size() / 2);
-  std::nth_element(v.begin(), mid, v.end());
-  return *mid;
-}
-
 }  // namespace
 
-IncomingFlowSamples sample_incoming_flow(const cv::Mat& flow_backward, const cv::Mat& valid) {
-  IncomingFlowSamples out;
-  if (flow_backward.empty() || valid.size() != flow_backward.size()) return out;
-  // The grid of analyzer/flow/camera_motion.cpp: about 600 samples.
-  const int step = std::max(4, static_cast<int>(std::sqrt(flow_backward.total() / 600.0)));
-  for (int y = step / 2; y < flow_backward.rows; y += step) {
-    const cv::Vec2f* b = flow_backward.ptr<cv::Vec2f>(y);
-    const uint8_t* v = valid.ptr<uint8_t>(y);
-    for (int x = step / 2; x < flow_backward.cols; x += step) {
-      if (!v[x]) continue;
-      out.at.emplace_back(x, y);
-      out.backward.emplace_back(b[x][0], b[x][1]);
-    }
-  }
-  return out;
-}
-
-double picture_acceleration(const IncomingFlowSamples& incoming, const cv::Mat& flow_forward,
+double picture_acceleration(const FlowSamples& incoming, const cv::Mat& flow_forward,
                             const cv::Mat& valid_next) {
   constexpr double kUndefinedReading = std::numeric_limits<double>::quiet_NaN();
   if (flow_forward.empty() || valid_next.empty() || incoming.at.size() < kMinPoints) return kUndefinedReading;
@@ -59,12 +38,12 @@ double picture_acceleration(const IncomingFlowSamples& incoming, const cv::Mat& 
     const int lx = static_cast<int>(std::lround(p.x + f[0])), ly = static_cast<int>(std::lround(p.y + f[1]));
     if (lx < 0 || ly < 0 || lx >= valid_next.cols || ly >= valid_next.rows || !valid_next.at<uint8_t>(ly, lx))
       continue;
-    a.emplace_back(f[0] + incoming.backward[i].x, f[1] + incoming.backward[i].y);
+    a.emplace_back(f[0] + incoming.flow[i].x, f[1] + incoming.flow[i].y);
   }
   if (a.size() < kMinPoints) return kUndefinedReading;
   std::vector<float> xs(a.size()), ys(a.size());
   for (size_t i = 0; i < a.size(); ++i) xs[i] = a[i].x, ys[i] = a[i].y;
-  const cv::Point2f m(median_of(xs), median_of(ys));
+  const cv::Point2f m(upper_median_in_place(xs), upper_median_in_place(ys));
   const float length = std::hypot(m.x, m.y);
   const float tolerance = std::max(kAgreementPx, kAgreementShareOfLength * length);
   const auto agreeing = std::count_if(a.begin(), a.end(), [&](const cv::Point2f& v) {

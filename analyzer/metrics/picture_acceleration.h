@@ -19,29 +19,20 @@
 // one-frame displacement), else undefined.
 #pragma once
 
-#include <vector>
-
 #include <opencv2/core.hpp>
+
+#include "analyzer/frame/flow_samples.h"
 
 namespace clipwarden {
 
-// Backward flow of pair t-1 -> t sampled on a grid of frame t, kept until
-// pair t -> t+1 arrives.
-struct IncomingFlowSamples {
-  std::vector<cv::Point> at;          // grid points of frame t
-  std::vector<cv::Point2f> backward;  // b(x) there; only points where it passed the check
-};
-
-// Samples `flow_backward` (CV_32FC2, frame t's pixels) where `valid` is set,
-// on a grid of about 600 points whatever the size.
-IncomingFlowSamples sample_incoming_flow(const cv::Mat& flow_backward, const cv::Mat& valid);
-
-// The reading at frame t in frame diagonals per frame^2, NaN when fewer than
-// 12 points have both flows or fewer than half agree. `flow_forward` is pair
+// The reading at frame t in frame diagonals per frame^2, NaN when fewer
+// than 12 points have both flows or fewer than four in five agree.
+// `incoming` is the backward flow of pair t-1 -> t sampled on frame t
+// (sample_flow_grid), kept until pair t -> t+1 arrives; `flow_forward` is pair
 // t -> t+1's (on frame t's pixels), `valid_next` its check on frame t+1's
 // pixels (a forward vector counts when it lands where the backward one
 // passed).
-double picture_acceleration(const IncomingFlowSamples& incoming, const cv::Mat& flow_forward,
+double picture_acceleration(const FlowSamples& incoming, const cv::Mat& flow_forward,
                             const cv::Mat& valid_next);
 
 }  // namespace clipwarden

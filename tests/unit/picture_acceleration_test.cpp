@@ -21,11 +21,11 @@ cv::Mat all_valid() { return cv::Mat(kFrame, CV_8UC1, cv::Scalar(255)); }
 TEST(PictureAcceleration, ADisplacedFrameReadsTwiceItsShiftOverTheDiagonal) {
   // A pan of 3 px per frame; frame t sits 8 px further right: it came from
   // 3 + 8 px to the left and leaves 3 - 8 px to the right.
-  const IncomingFlowSamples in = sample_incoming_flow(uniform_flow(-11, -1), all_valid());
+  const FlowSamples in = sample_flow_grid(uniform_flow(-11, -1), all_valid());
   ASSERT_GT(in.at.size(), 500u);
   EXPECT_NEAR(picture_acceleration(in, uniform_flow(-5, 1), all_valid()), 2 * 8 / 400.0, 1e-6);
   // The steady pan alone: no acceleration.
-  EXPECT_NEAR(picture_acceleration(sample_incoming_flow(uniform_flow(-3, -1), all_valid()), uniform_flow(3, 1),
+  EXPECT_NEAR(picture_acceleration(sample_flow_grid(uniform_flow(-3, -1), all_valid()), uniform_flow(3, 1),
                                    all_valid()),
               0, 1e-6);
 }
@@ -37,19 +37,19 @@ TEST(PictureAcceleration, SomethingAcceleratingOnItsOwnGivesNoReading) {
   cv::Mat back = uniform_flow(0, 0), fwd = uniform_flow(0, 0);
   back(cv::Rect(0, 0, kFrame.width / 3, kFrame.height)).setTo(cv::Scalar(-10, 0));
   fwd(cv::Rect(0, 0, kFrame.width / 3, kFrame.height)).setTo(cv::Scalar(-10, 0));
-  EXPECT_TRUE(std::isnan(picture_acceleration(sample_incoming_flow(back, all_valid()), fwd, all_valid())));
+  EXPECT_TRUE(std::isnan(picture_acceleration(sample_flow_grid(back, all_valid()), fwd, all_valid())));
   // A bird filling the middle 60% of the view jerks by 16 px; the rest
   // keeps still. Most points agree on the bird's jerk, but not four in five.
   back = uniform_flow(0, 0), fwd = uniform_flow(0, 0);
   const cv::Rect bird(32, 32, kFrame.width - 64, kFrame.height - 64);
   back(bird).setTo(cv::Scalar(-8, 0));
   fwd(bird).setTo(cv::Scalar(-8, 0));
-  EXPECT_TRUE(std::isnan(picture_acceleration(sample_incoming_flow(back, all_valid()), fwd, all_valid())));
+  EXPECT_TRUE(std::isnan(picture_acceleration(sample_flow_grid(back, all_valid()), fwd, all_valid())));
   // Flat cells (no valid flow) say nothing: the displaced picture still
   // reads where two thirds of it is textured.
   cv::Mat textured = all_valid();
   textured(cv::Rect(0, 0, kFrame.width / 3, kFrame.height)).setTo(0);
-  EXPECT_NEAR(picture_acceleration(sample_incoming_flow(uniform_flow(-11, -1), textured), uniform_flow(-5, 1), textured),
+  EXPECT_NEAR(picture_acceleration(sample_flow_grid(uniform_flow(-11, -1), textured), uniform_flow(-5, 1), textured),
               2 * 8 / 400.0, 1e-6);
 }
 
@@ -63,13 +63,13 @@ TEST(PictureAcceleration, NoAgreementNoReading) {
       back.at<cv::Vec2f>(y, x) = {u(rng), u(rng)};
       fwd.at<cv::Vec2f>(y, x) = {u(rng), u(rng)};
     }
-  EXPECT_TRUE(std::isnan(picture_acceleration(sample_incoming_flow(back, all_valid()), fwd, all_valid())));
+  EXPECT_TRUE(std::isnan(picture_acceleration(sample_flow_grid(back, all_valid()), fwd, all_valid())));
 }
 
 TEST(PictureAcceleration, FlowThatFailedItsCheckIsNotRead) {
   const cv::Mat none = cv::Mat::zeros(kFrame, CV_8UC1);
-  EXPECT_TRUE(sample_incoming_flow(uniform_flow(-11, 0), none).at.empty());
-  const IncomingFlowSamples in = sample_incoming_flow(uniform_flow(-11, 0), all_valid());
+  EXPECT_TRUE(sample_flow_grid(uniform_flow(-11, 0), none).at.empty());
+  const FlowSamples in = sample_flow_grid(uniform_flow(-11, 0), all_valid());
   EXPECT_TRUE(std::isnan(picture_acceleration(in, uniform_flow(-5, 0), none)));
   EXPECT_TRUE(std::isnan(picture_acceleration(in, cv::Mat(), all_valid())));
 }
